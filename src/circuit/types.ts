@@ -1,0 +1,263 @@
+// The resolved circuit: the typed, immutable value every later stage reads.
+// All quantities are SI base units (ohm, farad, henry, volt, ampere, watt, hertz, kelvin).
+
+/** Where an item came from in its circuit file; lines and columns start at 1. */
+export interface SourcePos {
+  readonly file: string;
+  readonly line: number;
+  readonly column: number;
+  readonly endLine?: number;
+  readonly endColumn?: number;
+}
+
+/** A problem with a circuit file (parse, schema, value, expression, topology). */
+export interface InputError {
+  readonly file: string;
+  readonly line?: number;
+  readonly column?: number;
+  /** What is wrong, in one sentence, naming the item ("unknown key `vaule` in component R3"). */
+  readonly message: string;
+  /** What to do about it ("did you mean `value`?"). */
+  readonly hint?: string;
+  /** Parts and nodes involved, for topology errors. */
+  readonly parts?: readonly string[];
+  readonly nodes?: readonly string[];
+}
+
+/** A component value with its tolerance band: min ≤ nominal ≤ max (equal when no tolerance is given). */
+export interface Toleranced {
+  readonly nominal: number;
+  readonly min: number;
+  readonly max: number;
+}
+
+/** A model parameter range as the datasheet gives it. */
+export interface Spread {
+  readonly min: number;
+  readonly typ: number;
+  readonly max: number;
+}
+
+interface ComponentBase {
+  readonly id: string;
+  readonly pos: SourcePos;
+}
+
+export interface Resistor extends ComponentBase {
+  readonly kind: "resistor";
+  readonly pins: { readonly a: string; readonly b: string };
+  readonly value: Toleranced;
+  /** Power rating in W, from `powerRating`, else undefined (the rule may derive it from `package`). */
+  readonly powerRating?: number;
+  /** Chip size code as written, e.g. "0603". */
+  readonly package?: string;
+}
+
+export interface Capacitor extends ComponentBase {
+  readonly kind: "capacitor";
+  readonly pins: { readonly a: string; readonly b: string };
+  readonly value: Toleranced;
+  readonly voltageRating?: number;
+}
+
+export interface Inductor extends ComponentBase {
+  readonly kind: "inductor";
+  readonly pins: { readonly a: string; readonly b: string };
+  readonly value: Toleranced;
+  /** Winding resistance in ohm; 0 when not given. */
+  readonly seriesResistance: number;
+}
+
+export interface VoltageSource extends ComponentBase {
+  readonly kind: "voltage-source";
+  readonly pins: { readonly plus: string; readonly minus: string };
+  readonly dc: Toleranced;
+  /** Small-signal amplitude when this source is a gain input; undefined = not given (1 is used). */
+  readonly ac?: number;
+}
+
+export interface CurrentSource extends ComponentBase {
+  readonly kind: "current-source";
+  /** The dc current flows through the source from `from` to `to` (out of the source into node `to`). */
+  readonly pins: { readonly from: string; readonly to: string };
+  readonly dc: Toleranced;
+  readonly ac?: number;
+}
+
+export interface Diode extends ComponentBase {
+  readonly kind: "diode";
+  readonly pins: { readonly anode: string; readonly cathode: string };
+  readonly model: string;
+}
+
+export interface Bjt extends ComponentBase {
+  readonly kind: "npn" | "pnp";
+  readonly pins: { readonly collector: string; readonly base: string; readonly emitter: string };
+  readonly model: string;
+}
+
+export interface Mosfet extends ComponentBase {
+  readonly kind: "nmos" | "pmos";
+  /** `body` is the source node when the file leaves it out (body tied to source). */
+  readonly pins: { readonly drain: string; readonly gate: string; readonly source: string; readonly body: string };
+  readonly model: string;
+}
+
+/**
+ * Voltage-controlled sources. Controlling voltage Vc = V(controlPlus) − V(controlMinus).
+ * vcvs: V(plus) − V(minus) = gain·Vc.  vccs: a current gain·Vc leaves the source at `plus`
+ * (flows into node plus) and returns at `minus` — the same direction as a voltage source's
+ * reported current.
+ */
+export interface VoltageControlled extends ComponentBase {
+  readonly kind: "vcvs" | "vccs";
+  readonly pins: {
+    readonly plus: string;
+    readonly minus: string;
+    readonly controlPlus: string;
+    readonly controlMinus: string;
+  };
+  readonly gain: number;
+}
+
+/**
+ * Current-controlled sources. The controlling current is the current delivered out of the
+ * `plus` pin of the voltage source named by `control`. cccs output current as for vccs.
+ */
+export interface CurrentControlled extends ComponentBase {
+  readonly kind: "cccs" | "ccvs";
+  readonly pins: { readonly plus: string; readonly minus: string };
+  readonly control: string;
+  readonly gain: number;
+}
+
+export type Component =
+  | Resistor
+  | Capacitor
+  | Inductor
+  | VoltageSource
+  | CurrentSource
+  | Diode
+  | Bjt
+  | Mosfet
+  | VoltageControlled
+  | CurrentControlled;
+
+export type ComponentKind = Component["kind"];
+
+interface ModelBase {
+  readonly id: string;
+  readonly pos: SourcePos;
+  /** Maximum dissipation in W, if the model gives one. */
+  readonly powerRating?: number;
+}
+
+export interface DiodeModel extends ModelBase {
+  readonly kind: "diode";
+  readonly saturationCurrent: Spread;
+  readonly ideality: Spread; // default 1
+  readonly seriesResistance: number; // ohm, default 0
+  readonly energyGap: number; // eV, default 1.11 (silicon)
+  readonly saturationCurrentExponent: number; // XTI-like exponent of (T/T0), default 3
+}
+
+export interface BjtModel extends ModelBase {
+  readonly kind: "npn" | "pnp";
+  readonly beta: Spread;
+  readonly reverseBeta: Spread; // default 1
+  readonly saturationCurrent: Spread;
+  /** Early voltage magnitude in V; Infinity = no Early effect. */
+  readonly earlyVoltage: Spread;
+  /** Polarity-normalised VCE at the edge of saturation, default 0.3 V. */
+  readonly saturationEdge: number;
+  readonly energyGap: number; // eV, default 1.11
+  readonly saturationCurrentExponent: number; // default 3
+  /** beta(T) = beta(T0)·(T/T0)^betaExponent; default 1.5 (common practice). */
+  readonly betaExponent: number;
+}
+
+export interface MosfetModel extends ModelBase {
+  readonly kind: "nmos" | "pmos";
+  /** Signed as textbooks write it: positive for NMOS, negative for PMOS. */
+  readonly threshold: Spread;
+  readonly kPrime: Spread; // A/V², µn·Cox
+  readonly width: number; // m
+  readonly length: number; // m
+  readonly lambda: Spread; // 1/V, default 0
+  readonly bodyEffect: number; // γ in √V, default 0
+  readonly surfacePotential: number; // 2φF in V, default 0.6
+  /** d|Vt|/dT in V/K (polarity-normalised), default −2 mV/K (common practice). */
+  readonly thresholdTempco: number;
+  /** k'(T) = k'(T0)·(T/T0)^kPrimeExponent; default −1.5 (mobility, common practice). */
+  readonly kPrimeExponent: number;
+}
+
+export type Model = DiodeModel | BjtModel | MosfetModel;
+
+export interface GainSpec {
+  readonly name: string;
+  /** Id of the independent source that drives the small-signal input. */
+  readonly input: string;
+  /** Output voltage V(plus) − V(minus); `minus` is the ground node for a single-ended output. */
+  readonly output: { readonly plus: string; readonly minus: string };
+  readonly target: number;
+  /** Acceptance window for the gain, in V/V (from tolerance % or explicit min/max). */
+  readonly window: { readonly min: number; readonly max: number };
+  /** Evaluate at this frequency (Hz) instead of midband. */
+  readonly frequency?: number;
+  readonly pos: SourcePos;
+}
+
+export interface SupplySpec {
+  readonly source: string;
+  readonly maxCurrent?: number;
+  readonly maxPower?: number;
+  readonly pos: SourcePos;
+}
+
+export interface DeviceSpec {
+  readonly device: string;
+  readonly region?: string;
+  readonly minCurrent?: number;
+  readonly maxCurrent?: number;
+  readonly pos: SourcePos;
+}
+
+export interface Specs {
+  readonly gains: readonly GainSpec[];
+  readonly band?: { readonly low: number; readonly high: number; readonly pos: SourcePos };
+  readonly supplies: readonly SupplySpec[];
+  readonly devices: readonly DeviceSpec[];
+}
+
+/** Per-circuit rule option overrides, allowed only where a rule declares them overridable. */
+export interface CircuitRuleOverride {
+  readonly rule: string;
+  readonly options: Readonly<Record<string, unknown>>;
+  readonly reason: string;
+  readonly pos: SourcePos;
+}
+
+export interface Circuit {
+  readonly file: string;
+  readonly name: string;
+  readonly description?: string;
+  /** Ambient temperature in kelvin. */
+  readonly temperature: number;
+  readonly ground: string;
+  readonly parameters: ReadonlyMap<string, number>;
+  readonly models: ReadonlyMap<string, Model>;
+  /** In file order. */
+  readonly components: readonly Component[];
+  /** Every node name except ground, sorted. */
+  readonly nodes: readonly string[];
+  readonly specs: Specs;
+  readonly overrides: readonly CircuitRuleOverride[];
+  /** Non-fatal remarks from resolution (e.g. a PMOS with a positive threshold). */
+  readonly warnings: readonly InputError[];
+  readonly pos: SourcePos;
+}
+
+export type LoadResult =
+  | { readonly ok: true; readonly circuit: Circuit }
+  | { readonly ok: false; readonly errors: readonly InputError[] };

@@ -1,0 +1,23 @@
+// The streams and environment a command sees; tests pass their own to run the CLI in-process.
+
+export interface CliIo {
+  readonly cwd: string;
+  readonly env: Readonly<Record<string, string | undefined>>;
+  readonly isTTY: boolean;
+  stdout(text: string): void;
+  stderr(text: string): void;
+}
+
+/** Thrown by a command to end with an exit code and a message, never a stack trace. */
+export class CliExit extends Error {
+  constructor(
+    readonly code: number,
+    message: string,
+  ) {
+    super(message);
+  }
+}
+
+export const EXIT_CLEAN = 0;
+export const EXIT_FINDINGS = 1;
+export const EXIT_INPUT = 2;

@@ -1,0 +1,68 @@
+// opgate command line: parses arguments with yargs and dispatches to one file per command.
+import yargs from "yargs";
+import { CliExit, EXIT_INPUT, type CliIo } from "./io.js";
+import { checkCommand } from "./check.js";
+import { schemaCommand } from "./schema.js";
+
+export type CommandHandler = (args: Record<string, unknown>, io: CliIo) => Promise<number>;
+
+export interface CommandSpec {
+  readonly command: string;
+  readonly describe: string;
+  builder(y: ReturnType<typeof yargs>): ReturnType<typeof yargs>;
+  readonly handler: CommandHandler;
+}
+
+const COMMANDS: readonly CommandSpec[] = [checkCommand, schemaCommand];
+
+/** Runs the CLI with `argv` (without node and script) and returns the exit code. */
+export async function run(argv: readonly string[], io: CliIo): Promise<number> {
+  let exitCode: number | undefined;
+  let usageError: string | undefined;
+  const parser = yargs([...argv])
+    .scriptName("opgate")
+    .usage("$0 <command> [options]\n\nDesign-review gate for analog circuit files.")
+    .strict()
+    .demandCommand(1, "Name a command: opgate check, opgate inspect, opgate rules …")
+    .recommendCommands()
+    .help()
+    .alias("h", "help")
+    .version(false)
+    .wrap(Math.min(100, process.stdout.columns ?? 100))
+    .exitProcess(false)
+    .fail((msg, err) => {
+      if (err instanceof CliExit) throw err;
+      usageError = msg ?? err?.message ?? "bad arguments";
+    })
+    .epilogue("Exit codes: 0 clean, 1 findings at or above failOn, 2 usage, config or input error.");
+  for (const spec of COMMANDS) {
+    parser.command(spec.command, spec.describe, spec.builder as never, async (args) => {
+      exitCode = await spec.handler(args as Record<string, unknown>, io);
+    });
+  }
+  let helpText = "";
+  try {
+    await parser.parseAsync([...argv], {}, (_err, _argv, output) => {
+      helpText = output;
+    });
+  } catch (err) {
+    if (err instanceof CliExit) {
+      io.stderr(`opgate: ${err.message}\n`);
+      return err.code;
+    }
+    const message = err instanceof Error ? err.message : String(err);
+    io.stderr(`opgate: internal error: ${message}\nPlease report this with the command and file that caused it.\n`);
+    return EXIT_INPUT;
+  }
+  if (usageError !== undefined) {
+    if (helpText) io.stderr(`${helpText}\n`);
+    else io.stderr(`opgate: ${usageError}\nRun 'opgate --help' for usage.\n`);
+    return EXIT_INPUT;
+  }
+  if (exitCode === undefined) {
+    // --help or --version printed something and no command ran.
+    if (helpText) io.stdout(`${helpText}\n`);
+    return 0;
+  }
+  return exitCode;
+}

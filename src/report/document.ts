@@ -1,0 +1,122 @@
+// The results document: the one value every reporter, baseline and shard merge reads.
+// Its JSON Schema is schemas/results.schema.json; keep the two in step.
+
+export type Severity = "error" | "warning" | "note";
+export type CircuitStatus = "pass" | "fail" | "error";
+
+export interface Finding {
+  readonly rule: string;
+  readonly severity: Severity;
+  /** Component id, node name or spec (gain) name; the circuit name for whole-circuit findings. */
+  readonly subject: string;
+  readonly message: string;
+  readonly measured: number | null;
+  readonly limit: number | null;
+  readonly unit: string | null;
+  /** Signed relative margin to the limit: negative = violated. null when not numeric. */
+  readonly margin: number | null;
+  /** Id of the worst scenario for this rule and subject. */
+  readonly scenario: string;
+  readonly file: string;
+  readonly line: number;
+  readonly column: number;
+  /** How to fix it, from the rule. */
+  readonly hint?: string;
+}
+
+/** A rule × subject that was checked and passed (JUnit keeps passing cases). */
+export interface PassedCheck {
+  readonly rule: string;
+  readonly subject: string;
+  readonly measured: number | null;
+  readonly limit: number | null;
+  readonly unit: string | null;
+  readonly margin: number | null;
+  /** Worst scenario. */
+  readonly scenario: string;
+}
+
+export interface DeviceEntry {
+  readonly kind: string;
+  readonly [field: string]: number | string;
+}
+
+export interface OperatingPointEntry {
+  readonly nodes: Readonly<Record<string, number>>;
+  readonly sources: Readonly<Record<string, { current: number; power: number; voltage: number }>>;
+  readonly devices: Readonly<Record<string, DeviceEntry>>;
+  readonly solve: { readonly iterations: number; readonly residual: number; readonly aid: string };
+}
+
+export interface GainEntry {
+  readonly name: string;
+  readonly midband: number;
+  readonly magnitude: number;
+  readonly db: number;
+  readonly target: number;
+  readonly window: { readonly min: number; readonly max: number };
+  readonly points: readonly {
+    frequency: number;
+    re: number;
+    im: number;
+    magnitude: number;
+    db: number;
+    phaseDeg: number;
+  }[];
+  readonly inputImpedance: number | null;
+  readonly outputImpedance: number | null;
+}
+
+export interface ScenarioEntry {
+  readonly id: string;
+  readonly label: string;
+  readonly converged: boolean;
+}
+
+export interface CircuitResult {
+  /** Repository-relative, forward slashes. */
+  readonly file: string;
+  /** null when the file could not be read far enough to know it. */
+  readonly name: string | null;
+  readonly status: CircuitStatus;
+  /** Nominal scenario; null when the circuit could not be loaded or solved. */
+  readonly operatingPoint: OperatingPointEntry | null;
+  readonly gains: readonly GainEntry[];
+  readonly scenarios: readonly ScenarioEntry[];
+  readonly findings: readonly Finding[];
+  readonly passed: readonly PassedCheck[];
+}
+
+export interface RuleEntry {
+  readonly id: string;
+  readonly description: string;
+  readonly severity: Severity | "off";
+  readonly docs: string;
+  /** "builtin" or the plugin path. */
+  readonly source: string;
+}
+
+export interface Summary {
+  readonly circuits: number;
+  readonly passed: number;
+  readonly failed: number;
+  readonly errors: number;
+  readonly findings: { readonly error: number; readonly warning: number; readonly note: number };
+  /** Lowest severity that fails the run. */
+  readonly failOn: Severity;
+  readonly verdict: "pass" | "fail" | "error";
+}
+
+export interface ResultsDocument {
+  readonly format: "opgate-results/1";
+  readonly tool: { readonly name: "opgate"; readonly version: string };
+  /** Present when this document covers one shard of a sharded run. */
+  readonly shard?: { readonly index: number; readonly count: number; readonly files: readonly string[] };
+  readonly variation: { readonly mode: string; readonly samples: number; readonly seed: number };
+  readonly rules: readonly RuleEntry[];
+  /** Sorted by file. */
+  readonly circuits: readonly CircuitResult[];
+  readonly summary: Summary;
+  /** Only when asked for (--timestamp); never by default, so output is reproducible. */
+  readonly generatedAt?: string;
+}

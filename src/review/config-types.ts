@@ -1,0 +1,30 @@
+// Repository policy after loading and validating opgate.config.(yaml|json) and applying flags.
+import type { SourcePos } from "../circuit/types.js";
+import type { Severity } from "../report/document.js";
+import type { VariationSettings } from "../variation/types.js";
+
+export interface RuleSetting {
+  readonly severity?: Severity | "off";
+  readonly options?: Readonly<Record<string, unknown>>;
+  readonly pos?: SourcePos;
+}
+
+export interface ResolvedConfig {
+  /** The config file, or null when none was found (defaults apply). */
+  readonly file: string | null;
+  /** Folder paths and globs are relative to (the config file's folder, else the working directory). */
+  readonly root: string;
+  readonly include: readonly string[];
+  readonly exclude: readonly string[];
+  readonly rules: Readonly<Record<string, RuleSetting>>;
+  /** Absolute paths of team rule modules, globs expanded, sorted. */
+  readonly plugins: readonly string[];
+  readonly failOn: Severity;
+  readonly variation: VariationSettings;
+  readonly outputs: {
+    readonly json?: string;
+    readonly junit?: string;
+    readonly markdown?: string;
+    readonly sarif?: string;
+  };
+}
