@@ -1,0 +1,30 @@
+// The built-in rules: an explicit registry, sorted by id (a meta-test keeps it in step with the
+// files in this folder). No filesystem scanning.
+import type { Rule } from "../src/review/rule.js";
+import capacitorVoltage from "./capacitor-voltage.js";
+import couplingAdequacy from "./coupling-adequacy.js";
+import deviceCurrent from "./device-current.js";
+import devicePower from "./device-power.js";
+import gainWindow from "./gain-window.js";
+import headroom from "./headroom.js";
+import region from "./region.js";
+import resistorPower from "./resistor-power.js";
+import solve from "./solve.js";
+import supplyBudget from "./supply-budget.js";
+
+export const BUILTIN_RULES: ReadonlyMap<string, Rule> = new Map<string, Rule>([
+  ["capacitor-voltage", capacitorVoltage],
+  ["coupling-adequacy", couplingAdequacy],
+  ["device-current", deviceCurrent],
+  ["device-power", devicePower],
+  ["gain-window", gainWindow],
+  ["headroom", headroom],
+  ["region", region],
+  ["resistor-power", resistorPower],
+  ["solve", solve],
+  ["supply-budget", supplyBudget],
+]);
+
+export function builtinRules(): readonly Rule[] {
+  return [...BUILTIN_RULES.values()];
+}

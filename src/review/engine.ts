@@ -1,0 +1,303 @@
+// The rule engine: runs every enabled rule over every scenario of one circuit, keeps per rule
+// and subject the worst scenario, and isolates rules from each other (a throw or a runaway
+// rule becomes an `error` finding; the other rules still run).
+import type { Circuit, SourcePos } from "../circuit/types.js";
+import type { ScenarioAnalysis } from "../pipeline/types.js";
+import type { Finding, PassedCheck, Severity } from "../report/document.js";
+import { didYouMean } from "./did-you-mean.js";
+import { ConfigError, type ConfigProblem } from "./errors.js";
+import { optionProblems, resolveOptions, type OptionsOrigin } from "./options.js";
+import type { Bound, FailReport, PassReport, Reporter, Rule, RuleSeverity } from "./rule.js";
+
+/**
+ * How long one rule may take on one scenario. A rule does arithmetic over a solved circuit
+ * (microseconds to milliseconds); two seconds is far beyond any honest rule on a loaded CI
+ * runner, yet short enough that a rule waiting forever does not stall the job.
+ */
+export const RULE_TIME_LIMIT_MS = 2000;
+
+/** The rule id of findings about a circuit file's own `review:` block (input errors). */
+export const OVERRIDE_RULE = "input";
+
+/** A rule with the severity and options the repository config gave it. */
+export interface ConfiguredRule {
+  readonly rule: Rule;
+  readonly severity: RuleSeverity;
+  /** Options as configured (validated and defaulted by the engine before anything runs). */
+  readonly options?: Readonly<Record<string, unknown>>;
+  readonly origin?: OptionsOrigin;
+  /** "builtin" or the plugin's path. */
+  readonly source: string;
+}
+
+export interface RunRulesInput {
+  readonly circuit: Circuit;
+  /** One per scenario, nominal first. */
+  readonly analyses: readonly ScenarioAnalysis[];
+  readonly rules: readonly ConfiguredRule[];
+  /** Per rule and scenario; defaults to RULE_TIME_LIMIT_MS. */
+  readonly timeLimitMs?: number;
+}
+
+export interface RuleResults {
+  readonly findings: Finding[];
+  readonly passed: PassedCheck[];
+}
+
+/** Throws one ConfigError listing every bad option of every rule (nothing has run yet). */
+export function validateRuleOptions(rules: readonly ConfiguredRule[]): ConfiguredRule[] {
+  const problems: ConfigProblem[] = [];
+  for (const c of rules) problems.push(...optionProblems(c.rule, c.options ?? {}, c.origin ?? { file: null }));
+  if (problems.length > 0) throw new ConfigError(problems);
+  return rules.map((c) => ({ ...c, options: resolveOptions(c.rule, c.options ?? {}, c.origin ?? { file: null }) }));
+}
+
+/** Signed relative margin: negative when violated; relative to |limit| (absolute when the limit is 0). */
+export function marginOf(measured: number | undefined, limit: number | undefined, bound: Bound | undefined): number | null {
+  if (measured === undefined || limit === undefined || bound === undefined) return null;
+  if (Number.isNaN(measured) || Number.isNaN(limit)) return null;
+  if (!Number.isFinite(limit)) return measured === limit ? 0 : (bound === "max") === (limit > 0) ? Infinity : -Infinity;
+  const scale = limit === 0 ? 1 : Math.abs(limit);
+  return (bound === "max" ? limit - measured : measured - limit) / scale;
+}
+
+export function subjectPos(circuit: Circuit, subject: string): SourcePos {
+  return (
+    circuit.components.find((c) => c.id === subject)?.pos ??
+    circuit.specs.gains.find((g) => g.name === subject)?.pos ??
+    circuit.models.get(subject)?.pos ??
+    circuit.pos
+  );
+}
+
+interface Outcome {
+  readonly kind: "fail" | "pass";
+  readonly subject: string;
+  readonly message: string;
+  readonly measured: number | null;
+  readonly limit: number | null;
+  readonly unit: string | null;
+  readonly margin: number | null;
+  readonly scenario: string;
+  readonly order: number;
+  readonly hint?: string;
+  readonly pos?: SourcePos;
+  /** The rule itself broke (threw, timed out): always severity error. */
+  readonly broken?: boolean;
+}
+
+/** Lower is worse: a failure beats a pass, then the lower margin, then the earlier scenario. */
+function worseThan(a: Outcome, b: Outcome): boolean {
+  if (a.kind !== b.kind) return a.kind === "fail";
+  const ma = a.margin ?? (a.kind === "fail" ? -Infinity : Infinity);
+  const mb = b.margin ?? (b.kind === "fail" ? -Infinity : Infinity);
+  if (ma !== mb) return ma < mb;
+  return a.order < b.order;
+}
+
+function num(v: number | undefined): number | null {
+  return v === undefined || Number.isNaN(v) ? null : v;
+}
+
+class TimeoutError extends Error {}
+
+async function withTimeLimit(work: () => void | Promise<void>, ms: number): Promise<void> {
+  let timer: NodeJS.Timeout | undefined;
+  const limit = new Promise<never>((_, reject) => {
+    timer = setTimeout(() => reject(new TimeoutError(`it ran longer than ${ms / 1000} s`)), ms);
+  });
+  try {
+    await Promise.race([Promise.resolve().then(work), limit]);
+  } finally {
+    clearTimeout(timer);
+  }
+}
+
+function reasonOf(err: unknown): string {
+  if (err instanceof TimeoutError) return err.message;
+  if (err instanceof Error) return `it threw ${err.name}: ${err.message}`;
+  return `it threw ${String(err)}`;
+}
+
+/** Applies the circuit file's `review:` overrides; bad ones become input-error findings. */
+function applyOverrides(
+  circuit: Circuit,
+  rules: readonly ConfiguredRule[],
+): { rules: ConfiguredRule[]; errors: Finding[] } {
+  const errors: Finding[] = [];
+  const out = [...rules];
+  const at = (pos: SourcePos, subject: string, message: string, hint?: string): Finding => ({
+    rule: OVERRIDE_RULE,
+    severity: "error",
+    subject,
+    message,
+    measured: null,
+    limit: null,
+    unit: null,
+    margin: null,
+    scenario: "nominal",
+    file: pos.file,
+    line: pos.line,
+    column: pos.column,
+    ...(hint ? { hint } : {}),
+  });
+  for (const o of circuit.overrides) {
+    const index = out.findIndex((c) => c.rule.id === o.rule);
+    const configured = out[index];
+    if (!configured) {
+      errors.push(at(o.pos, o.rule, `the review block names rule \`${o.rule}\`, which is not loaded`, didYouMean(o.rule, rules.map((c) => c.rule.id)) ?? "run `opgate rules` for the list"));
+      continue;
+    }
+    const allowed = configured.rule.circuitOptions;
+    const refused = Object.keys(o.options).filter((k) => !allowed.includes(k));
+    if (refused.length > 0) {
+      const list = refused.map((k) => `\`${k}\``).join(", ");
+      errors.push(
+        at(
+          o.pos,
+          o.rule,
+          `rule \`${o.rule}\` does not allow a circuit file to override ${list}`,
+          allowed.length ? `a circuit may override only: ${allowed.join(", ")}; change the rest in the repository config` : `\`${o.rule}\` allows no per-circuit overrides; change it in the repository config`,
+        ),
+      );
+      continue;
+    }
+    const merged = { ...(configured.options ?? {}), ...o.options };
+    const problems = optionProblems(configured.rule, merged, { file: o.pos.file, pos: o.pos });
+    if (problems.length > 0) {
+      for (const p of problems) errors.push(at(o.pos, o.rule, p.message, p.hint));
+      continue;
+    }
+    out[index] = { ...configured, options: resolveOptions(configured.rule, merged, { file: o.pos.file, pos: o.pos }) };
+  }
+  return { rules: out, errors };
+}
+
+async function runOne(
+  configured: ConfiguredRule,
+  circuit: Circuit,
+  analyses: readonly ScenarioAnalysis[],
+  timeLimitMs: number,
+): Promise<Map<string, Outcome>> {
+  const { rule } = configured;
+  const options = configured.options ?? {};
+  const worst = new Map<string, Outcome>();
+  let order = 0;
+  const keep = (o: Outcome): void => {
+    const prev = worst.get(o.subject);
+    if (!prev || worseThan(o, prev)) worst.set(o.subject, o);
+  };
+  for (const analysis of analyses) {
+    const scenario = analysis.scenario;
+    const view = { circuit: scenario.circuit, specs: scenario.circuit.specs, options, scenario };
+    let open = true;
+    const reporter: Reporter = {
+      fail(f: FailReport) {
+        if (!open) return;
+        keep({
+          kind: "fail",
+          subject: String(f.subject),
+          message: String(f.message),
+          measured: num(f.measured),
+          limit: num(f.limit),
+          unit: f.unit ?? null,
+          margin: marginOf(f.measured, f.limit, f.bound),
+          scenario: scenario.id,
+          order: order++,
+          ...(f.hint ? { hint: f.hint } : {}),
+          ...(f.pos ? { pos: f.pos } : {}),
+        });
+      },
+      pass(subject: string, p: PassReport = {}) {
+        if (!open) return;
+        keep({
+          kind: "pass",
+          subject: String(subject),
+          message: "",
+          measured: num(p.measured),
+          limit: num(p.limit),
+          unit: p.unit ?? null,
+          margin: marginOf(p.measured, p.limit, p.bound),
+          scenario: scenario.id,
+          order: order++,
+        });
+      },
+    };
+    const solve = analysis.solve;
+    const work = solve.ok
+      ? () => rule.check({ ...view, op: solve, smallSignal: analysis.smallSignal }, reporter)
+      : rule.checkFailedSolve
+        ? () => rule.checkFailedSolve!({ ...view, failure: solve }, reporter)
+        : undefined;
+    if (!work) continue;
+    try {
+      await withTimeLimit(work, timeLimitMs);
+    } catch (err) {
+      keep({
+        kind: "fail",
+        subject: circuit.name,
+        message: `rule \`${rule.id}\` could not check circuit \`${circuit.name}\` in scenario ${scenario.id}: ${reasonOf(err)}`,
+        measured: null,
+        limit: null,
+        unit: null,
+        margin: null,
+        scenario: scenario.id,
+        order: order++,
+        hint: configured.source === "builtin" ? "this is a bug in opgate; please report it with the circuit file" : `fix the rule in ${configured.source}, or turn it off in the config`,
+        broken: true,
+      });
+    } finally {
+      open = false;
+    }
+  }
+  return worst;
+}
+
+export function compareFindings(a: Finding, b: Finding): number {
+  return (
+    cmp(a.file, b.file) || a.line - b.line || a.column - b.column || cmp(a.rule, b.rule) || cmp(a.subject, b.subject) || cmp(a.scenario, b.scenario) || cmp(a.message, b.message)
+  );
+}
+
+function cmp(a: string, b: string): number {
+  return a < b ? -1 : a > b ? 1 : 0;
+}
+
+/** Runs the rules over one circuit's scenarios. Throws ConfigError (before running anything) on bad options. */
+export async function runRules(input: RunRulesInput): Promise<RuleResults> {
+  const { circuit, analyses } = input;
+  const validated = validateRuleOptions(input.rules);
+  const { rules, errors } = applyOverrides(circuit, validated);
+  const findings: Finding[] = [...errors];
+  const passed: PassedCheck[] = [];
+  for (const configured of rules) {
+    if (configured.severity === "off") continue;
+    const severity: Severity = configured.severity;
+    const outcomes = await runOne(configured, circuit, analyses, input.timeLimitMs ?? RULE_TIME_LIMIT_MS);
+    for (const o of outcomes.values()) {
+      if (o.kind === "pass") {
+        passed.push({ rule: configured.rule.id, subject: o.subject, measured: o.measured, limit: o.limit, unit: o.unit, margin: o.margin, scenario: o.scenario });
+        continue;
+      }
+      const pos = o.pos ?? subjectPos(circuit, o.subject);
+      findings.push({
+        rule: configured.rule.id,
+        severity: o.broken ? "error" : severity,
+        subject: o.subject,
+        message: o.message,
+        measured: o.measured,
+        limit: o.limit,
+        unit: o.unit,
+        margin: o.margin,
+        scenario: o.scenario,
+        file: pos.file,
+        line: pos.line,
+        column: pos.column,
+        ...(o.hint ? { hint: o.hint } : {}),
+      });
+    }
+  }
+  findings.sort(compareFindings);
+  passed.sort((a, b) => cmp(a.rule, b.rule) || cmp(a.subject, b.subject));
+  return { findings, passed };
+}

@@ -1,0 +1,62 @@
+// Small helpers rules share: numbers for people (SI prefixes), temperatures, intended regions.
+import type { Circuit, ComponentKind } from "../circuit/types.js";
+
+const PREFIXES: readonly [number, string][] = [
+  [1e12, "T"],
+  [1e9, "G"],
+  [1e6, "M"],
+  [1e3, "k"],
+  [1, ""],
+  [1e-3, "m"],
+  [1e-6, "µ"],
+  [1e-9, "n"],
+  [1e-12, "p"],
+  [1e-15, "f"],
+];
+
+/** Kelvin of 0 °C (SI definition). */
+export const ZERO_CELSIUS_K = 273.15;
+
+/** `0.0041, "A"` → "4.1 mA"; three significant digits, units the trade writes. */
+export function formatQuantity(value: number, unit: string): string {
+  if (!Number.isFinite(value)) return `${value} ${unit}`.trim();
+  if (unit === "dB" || unit === "%" || unit === "V/V" || unit === "°C") return `${trim(value.toPrecision(3))} ${unit}`;
+  const mag = Math.abs(value);
+  const [scale, prefix] = mag === 0 ? [1, ""] : (PREFIXES.find(([s]) => mag >= s * 0.9995) ?? [1e-15, "f"]);
+  return `${trim((value / scale).toPrecision(3))} ${prefix}${unit}`.trim();
+}
+
+function trim(s: string): string {
+  return s.includes("e") ? s : s.includes(".") ? s.replace(/\.?0+$/, "") : s;
+}
+
+export function toCelsius(kelvin: number): number {
+  return kelvin - ZERO_CELSIUS_K;
+}
+
+/** Regions a transistor kind can be in, the amplifying one first. */
+export const REGIONS: Readonly<Record<"npn" | "pnp" | "nmos" | "pmos", readonly string[]>> = {
+  npn: ["active", "saturation", "cutoff", "reverse"],
+  pnp: ["active", "saturation", "cutoff", "reverse"],
+  nmos: ["saturation", "triode", "cutoff"],
+  pmos: ["saturation", "triode", "cutoff"],
+};
+
+export function isTransistorKind(kind: ComponentKind): kind is "npn" | "pnp" | "nmos" | "pmos" {
+  return kind === "npn" || kind === "pnp" || kind === "nmos" || kind === "pmos";
+}
+
+/** The region the specs name for a device, else the amplifying region of its kind. */
+export function intendedRegion(circuit: Circuit, id: string, kind: "npn" | "pnp" | "nmos" | "pmos"): string {
+  return circuit.specs.devices.find((d) => d.device === id)?.region ?? REGIONS[kind][0]!;
+}
+
+/**
+ * Allowed fraction of a rating at an ambient temperature, for a linear derating curve: full
+ * up to `fullUntil`, falling linearly to zero at `zeroAt` (both °C).
+ */
+export function deratingFactor(ambientC: number, fullUntil: number, zeroAt: number): number {
+  if (ambientC <= fullUntil) return 1;
+  if (ambientC >= zeroAt) return 0;
+  return (zeroAt - ambientC) / (zeroAt - fullUntil);
+}
