@@ -42,4 +42,14 @@ export interface SweepResult {
   /** Lower and upper −3 dB frequencies relative to midband; null when not inside the sweep. */
   readonly lowCorner: number | null;
   readonly highCorner: number | null;
+  /** Signed midband gain, V/V; null when the midband view is singular. (Added by the small-signal stage.) */
+  readonly midband: number | null;
+  /**
+   * The magnitude the corners are relative to: |midband|, or the sweep's largest magnitude when
+   * that is larger (a small capacitor that sets the band edge is shorted at midband); null when
+   * the sweep could not run. (Added by the small-signal stage.)
+   */
+  readonly reference: number | null;
+  /** Why the sweep could not run (bad range, unknown gain, singular network); points are then empty. */
+  readonly error?: string;
 }

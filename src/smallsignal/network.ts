@@ -1,0 +1,441 @@
+// The small-signal network of a circuit at its operating point, as complex modified nodal
+// analysis. Unknowns: every non-ground node voltage, then one branch current per voltage
+// source, controlled voltage source, capacitor and inductor. Every capacitor and inductor
+// keeps its branch in both views, so one matrix size (and one preallocated factoriser) serves
+// the midband solve and every frequency of a sweep:
+//   midband:      capacitor  V(a) − V(b) = 0      (short, exact and non-singular)
+//                 inductor   I = 0                (open; its series resistance is irrelevant)
+//   frequency f:  capacitor  jωC·(V(a) − V(b)) − I = 0
+//                 inductor   V(a) − V(b) − (R + jωL)·I = 0
+// Independent sources are zeroed (voltage sources stay as 0 V branches, current sources are
+// open); the drive of a gain's input source goes in the right-hand side only, so one
+// factorisation serves every gain and the output-impedance test current.
+// Nonlinear devices are stamped from their `linear` admittance matrix, whatever their kind.
+
+import type { Circuit, Component } from "../circuit/types.js";
+import type { OperatingPoint } from "../solve/types.js";
+import { ComplexLu } from "./complex-lu.js";
+
+export type View = { readonly kind: "midband" } | { readonly kind: "frequency"; readonly frequency: number };
+
+export const MIDBAND: View = { kind: "midband" };
+
+/** Index of the ground node in stamp tables: rows and columns of ground are dropped. */
+const GROUND = -1;
+
+interface Conductance {
+  readonly a: number;
+  readonly b: number;
+  readonly g: number;
+}
+
+interface VoltageBranch {
+  readonly plus: number;
+  readonly minus: number;
+  readonly branch: number;
+}
+
+interface Reactive {
+  readonly a: number;
+  readonly b: number;
+  readonly branch: number;
+  readonly value: number;
+  /** Inductor winding resistance; 0 for capacitors. */
+  readonly resistance: number;
+  /** Midband: this capacitor's short lies in a loop of voltage-defined branches (see below). */
+  readonly redundantShort: boolean;
+}
+
+interface VoltageControlledStamp {
+  readonly plus: number;
+  readonly minus: number;
+  readonly controlPlus: number;
+  readonly controlMinus: number;
+  readonly gain: number;
+  /** Branch of a vcvs; -1 for a vccs. */
+  readonly branch: number;
+}
+
+interface CurrentControlledStamp {
+  readonly plus: number;
+  readonly minus: number;
+  readonly control: number;
+  readonly gain: number;
+  /** Branch of a ccvs; -1 for a cccs. */
+  readonly branch: number;
+}
+
+interface DeviceStamp {
+  readonly id: string;
+  readonly pins: Int32Array;
+  readonly y: Float64Array;
+}
+
+export interface SmallSignalNetwork {
+  readonly circuit: Circuit;
+  readonly size: number;
+  readonly nodeIndex: ReadonlyMap<string, number>;
+  readonly branchIndex: ReadonlyMap<string, number>;
+  /** What each unknown is, for messages: "node `out`" or "the branch current of C1". */
+  readonly unknownLabels: readonly string[];
+  readonly lu: ComplexLu;
+  readonly rhsRe: Float64Array;
+  readonly rhsIm: Float64Array;
+  readonly xRe: Float64Array;
+  readonly xIm: Float64Array;
+  readonly conductances: readonly Conductance[];
+  readonly voltageSources: readonly VoltageBranch[];
+  readonly capacitors: readonly Reactive[];
+  readonly inductors: readonly Reactive[];
+  readonly voltageControlled: readonly VoltageControlledStamp[];
+  readonly currentControlled: readonly CurrentControlledStamp[];
+  readonly devices: readonly DeviceStamp[];
+}
+
+export type BuildResult =
+  | { readonly ok: true; readonly network: SmallSignalNetwork }
+  | { readonly ok: false; readonly message: string };
+
+/** Components whose small-signal behaviour comes from the operating point's `linear` record. */
+function isNonlinear(c: Component): boolean {
+  return c.kind === "diode" || c.kind === "npn" || c.kind === "pnp" || c.kind === "nmos" || c.kind === "pmos";
+}
+
+function hasBranch(c: Component): boolean {
+  return (
+    c.kind === "voltage-source" ||
+    c.kind === "vcvs" ||
+    c.kind === "ccvs" ||
+    c.kind === "capacitor" ||
+    c.kind === "inductor"
+  );
+}
+
+/** Union–find over node indices (ground is the extra slot `nodeCount`). */
+class Islands {
+  private readonly parent: Int32Array;
+  constructor(private readonly nodeCount: number) {
+    this.parent = new Int32Array(nodeCount + 1);
+    for (let i = 0; i <= nodeCount; i++) this.parent[i] = i;
+  }
+  private slot(node: number): number {
+    return node === GROUND ? this.nodeCount : node;
+  }
+  find(node: number): number {
+    let x = this.slot(node);
+    while ((this.parent[x] as number) !== x) {
+      const p = this.parent[x] as number;
+      this.parent[x] = this.parent[p] as number;
+      x = p;
+    }
+    return x;
+  }
+  union(a: number, b: number): boolean {
+    const ra = this.find(a);
+    const rb = this.find(b);
+    if (ra === rb) return false;
+    this.parent[ra] = rb;
+    return true;
+  }
+  grounded(node: number): boolean {
+    return this.find(node) === this.find(GROUND);
+  }
+}
+
+/** Lays out the unknowns and compiles the stamps of every component; nothing is assembled yet. */
+export function buildNetwork(circuit: Circuit, op: OperatingPoint): BuildResult {
+  const nodeIndex = new Map<string, number>();
+  const unknownLabels: string[] = [];
+  for (const name of circuit.nodes) {
+    if (name === circuit.ground || nodeIndex.has(name)) continue;
+    nodeIndex.set(name, unknownLabels.length);
+    unknownLabels.push(`node \`${name}\``);
+  }
+  const nodeCount = unknownLabels.length;
+  const branchIndex = new Map<string, number>();
+  for (const c of circuit.components) {
+    if (!hasBranch(c)) continue;
+    branchIndex.set(c.id, unknownLabels.length);
+    unknownLabels.push(`the branch current of ${c.id}`);
+  }
+
+  let problem: string | undefined;
+  const node = (name: string, part: string): number => {
+    if (name === circuit.ground) return GROUND;
+    const k = nodeIndex.get(name);
+    if (k === undefined) {
+      problem ??= `${part} names node \`${name}\`, which is not in the circuit`;
+      return GROUND;
+    }
+    return k;
+  };
+  const branchOf = (id: string): number => branchIndex.get(id) ?? GROUND;
+
+  const conductances: Conductance[] = [];
+  const voltageSources: VoltageBranch[] = [];
+  const capacitorsRaw: Omit<Reactive, "redundantShort">[] = [];
+  const inductors: Reactive[] = [];
+  const voltageControlled: VoltageControlledStamp[] = [];
+  const currentControlled: CurrentControlledStamp[] = [];
+  const devices: DeviceStamp[] = [];
+
+  for (const c of circuit.components) {
+    switch (c.kind) {
+      case "resistor": {
+        const r = c.value.nominal;
+        if (!(r > 0) || !Number.isFinite(r)) {
+          problem ??= `resistor ${c.id} has resistance ${r} Ω; the small-signal network needs a positive, finite value`;
+          break;
+        }
+        conductances.push({ a: node(c.pins.a, c.id), b: node(c.pins.b, c.id), g: 1 / r });
+        break;
+      }
+      case "capacitor":
+        capacitorsRaw.push({
+          a: node(c.pins.a, c.id),
+          b: node(c.pins.b, c.id),
+          branch: branchOf(c.id),
+          value: c.value.nominal,
+          resistance: 0,
+        });
+        break;
+      case "inductor":
+        inductors.push({
+          a: node(c.pins.a, c.id),
+          b: node(c.pins.b, c.id),
+          branch: branchOf(c.id),
+          value: c.value.nominal,
+          resistance: c.seriesResistance,
+          redundantShort: false,
+        });
+        break;
+      case "voltage-source":
+        voltageSources.push({ plus: node(c.pins.plus, c.id), minus: node(c.pins.minus, c.id), branch: branchOf(c.id) });
+        break;
+      case "current-source":
+        break; // open when zeroed; a driving input enters the right-hand side only
+      case "vcvs":
+      case "vccs":
+        voltageControlled.push({
+          plus: node(c.pins.plus, c.id),
+          minus: node(c.pins.minus, c.id),
+          controlPlus: node(c.pins.controlPlus, c.id),
+          controlMinus: node(c.pins.controlMinus, c.id),
+          gain: c.gain,
+          branch: c.kind === "vcvs" ? branchOf(c.id) : GROUND,
+        });
+        break;
+      case "cccs":
+      case "ccvs": {
+        const control = branchIndex.get(c.control);
+        if (control === undefined) {
+          problem ??= `${c.id} is controlled by the current of \`${c.control}\`, which is not a voltage source`;
+          break;
+        }
+        currentControlled.push({
+          plus: node(c.pins.plus, c.id),
+          minus: node(c.pins.minus, c.id),
+          control,
+          gain: c.gain,
+          branch: c.kind === "ccvs" ? branchOf(c.id) : GROUND,
+        });
+        break;
+      }
+      default: {
+        if (!isNonlinear(c)) break;
+        const point = op.devices[c.id];
+        const linear = point && "linear" in point ? point.linear : undefined;
+        if (!linear) {
+          problem ??= `the operating point has no linearised model for ${c.id}`;
+          break;
+        }
+        const n = linear.pins.length;
+        if (linear.y.length !== n * n) {
+          problem ??= `the linearised model of ${c.id} has ${linear.y.length} entries for ${n} pins`;
+          break;
+        }
+        devices.push({
+          id: c.id,
+          pins: Int32Array.from(linear.pins, (p) => node(p, c.id)),
+          y: Float64Array.from(linear.y),
+        });
+      }
+    }
+  }
+  if (problem !== undefined) return { ok: false, message: problem };
+
+  // A capacitor's midband short in parallel with an ideal voltage source (or closing a loop of
+  // other shorts) would make two branches fix the same voltage: singular, though the node
+  // voltages are perfectly defined. The source wins, as it does at every frequency: such a
+  // capacitor's short is dropped (its branch current is set to 0) and nothing else changes.
+  const loops = new Islands(nodeCount);
+  for (const v of voltageSources) loops.union(v.plus, v.minus);
+  for (const v of voltageControlled) if (v.branch !== GROUND) loops.union(v.plus, v.minus);
+  for (const v of currentControlled) if (v.branch !== GROUND) loops.union(v.plus, v.minus);
+  const capacitors: Reactive[] = capacitorsRaw.map((c) => ({ ...c, redundantShort: !loops.union(c.a, c.b) }));
+
+  const size = unknownLabels.length;
+  return {
+    ok: true,
+    network: {
+      circuit,
+      size,
+      nodeIndex,
+      branchIndex,
+      unknownLabels,
+      lu: new ComplexLu(size),
+      rhsRe: new Float64Array(size),
+      rhsIm: new Float64Array(size),
+      xRe: new Float64Array(size),
+      xIm: new Float64Array(size),
+      conductances,
+      voltageSources,
+      capacitors,
+      inductors,
+      voltageControlled,
+      currentControlled,
+      devices,
+    },
+  };
+}
+
+/** Fills the factoriser's matrix for one view; allocates nothing. */
+export function assemble(net: SmallSignalNetwork, view: View): void {
+  const lu = net.lu;
+  lu.clear();
+  const add = (row: number, col: number, re: number, im = 0): void => {
+    if (row !== GROUND && col !== GROUND) lu.add(row, col, re, im);
+  };
+  const stampBranchKcl = (a: number, b: number, k: number): void => {
+    // Branch current k flows from a through the element to b: it leaves node a.
+    add(a, k, 1);
+    add(b, k, -1);
+  };
+  const stampBranchVoltage = (k: number, a: number, b: number, scale = 1): void => {
+    add(k, a, scale);
+    add(k, b, -scale);
+  };
+
+  for (const r of net.conductances) {
+    add(r.a, r.a, r.g);
+    add(r.b, r.b, r.g);
+    add(r.a, r.b, -r.g);
+    add(r.b, r.a, -r.g);
+  }
+  for (const v of net.voltageSources) {
+    stampBranchKcl(v.plus, v.minus, v.branch);
+    stampBranchVoltage(v.branch, v.plus, v.minus);
+  }
+  const omega = view.kind === "frequency" ? 2 * Math.PI * view.frequency : 0;
+  for (const c of net.capacitors) {
+    stampBranchKcl(c.a, c.b, c.branch);
+    if (view.kind === "midband") {
+      if (c.redundantShort) add(c.branch, c.branch, 1);
+      else stampBranchVoltage(c.branch, c.a, c.b);
+    } else {
+      add(c.branch, c.a, 0, omega * c.value);
+      add(c.branch, c.b, 0, -omega * c.value);
+      add(c.branch, c.branch, -1);
+    }
+  }
+  for (const l of net.inductors) {
+    stampBranchKcl(l.a, l.b, l.branch);
+    if (view.kind === "midband") {
+      add(l.branch, l.branch, 1);
+    } else {
+      stampBranchVoltage(l.branch, l.a, l.b);
+      add(l.branch, l.branch, -l.resistance, -omega * l.value);
+    }
+  }
+  for (const e of net.voltageControlled) {
+    if (e.branch !== GROUND) {
+      // vcvs: V(plus) − V(minus) − gain·Vc = 0.
+      stampBranchKcl(e.plus, e.minus, e.branch);
+      stampBranchVoltage(e.branch, e.plus, e.minus);
+      stampBranchVoltage(e.branch, e.controlPlus, e.controlMinus, -e.gain);
+    } else {
+      // vccs: gain·Vc flows into node plus, so it is a current leaving plus of −gain·Vc.
+      add(e.plus, e.controlPlus, -e.gain);
+      add(e.plus, e.controlMinus, e.gain);
+      add(e.minus, e.controlPlus, e.gain);
+      add(e.minus, e.controlMinus, -e.gain);
+    }
+  }
+  for (const f of net.currentControlled) {
+    // The controlling current is the one delivered out of the control source's plus pin,
+    // which is minus its branch current (the branch current flows into plus).
+    if (f.branch !== GROUND) {
+      // ccvs: V(plus) − V(minus) − gain·(−I_control) = 0.
+      stampBranchKcl(f.plus, f.minus, f.branch);
+      stampBranchVoltage(f.branch, f.plus, f.minus);
+      add(f.branch, f.control, f.gain);
+    } else {
+      // cccs: gain·(−I_control) flows into node plus.
+      add(f.plus, f.control, f.gain);
+      add(f.minus, f.control, -f.gain);
+    }
+  }
+  for (const d of net.devices) {
+    const n = d.pins.length;
+    for (let i = 0; i < n; i++) {
+      const row = d.pins[i] as number;
+      if (row === GROUND) continue;
+      for (let j = 0; j < n; j++) {
+        const v = d.y[i * n + j] as number;
+        if (v !== 0) add(row, d.pins[j] as number, v);
+      }
+    }
+  }
+}
+
+function describeView(view: View): string {
+  return view.kind === "midband"
+    ? "at midband (capacitors short, inductors open)"
+    : `at ${formatHz(view.frequency)}`;
+}
+
+function formatHz(f: number): string {
+  return `${Number(f.toPrecision(4))} Hz`;
+}
+
+/**
+ * Names what makes a view singular: first a group of nodes with no conducting path to ground
+ * in this view (the usual cause, and the one an engineer can act on), else the unknown whose
+ * pivot vanished.
+ */
+function explainSingular(net: SmallSignalNetwork, view: View, failedColumn: number): string {
+  const nodeCount = net.nodeIndex.size;
+  const islands = new Islands(nodeCount);
+  for (const r of net.conductances) islands.union(r.a, r.b);
+  for (const v of net.voltageSources) islands.union(v.plus, v.minus);
+  for (const c of net.capacitors) if (view.kind === "midband" || view.frequency > 0) islands.union(c.a, c.b);
+  if (view.kind === "frequency") for (const l of net.inductors) islands.union(l.a, l.b);
+  for (const e of net.voltageControlled) if (e.branch !== GROUND) islands.union(e.plus, e.minus);
+  for (const f of net.currentControlled) if (f.branch !== GROUND) islands.union(f.plus, f.minus);
+  for (const d of net.devices) {
+    const n = d.pins.length;
+    for (let i = 0; i < n; i++) {
+      for (let j = 0; j < n; j++) {
+        if (i !== j && (d.y[i * n + j] as number) !== 0) islands.union(d.pins[i] as number, d.pins[j] as number);
+      }
+    }
+  }
+  const floating = [...net.nodeIndex.entries()].filter(([, k]) => !islands.grounded(k)).map(([name]) => name);
+  const where = describeView(view);
+  if (floating.length > 0) {
+    const [first, ...rest] = floating;
+    const others = rest.length > 0 ? ` (with ${rest.slice(0, 5).map((n) => `\`${n}\``).join(", ")}${rest.length > 5 ? ", …" : ""})` : "";
+    return `the small-signal network is singular ${where}: node \`${first}\`${others} has no path to ground; connect a bias resistor or check the wiring`;
+  }
+  const label = net.unknownLabels[failedColumn] ?? `unknown ${failedColumn}`;
+  return `the small-signal network is singular ${where} at ${label}; look for a loop of voltage sources or a node driven only by current sources`;
+}
+
+/** Assembles and factors one view; returns null on success, else a message naming the node at fault. */
+export function factorView(net: SmallSignalNetwork, view: View): string | null {
+  assemble(net, view);
+  const failed = net.lu.factor();
+  return failed < 0 ? null : explainSingular(net, view, failed);
+}
+
+export { GROUND };
