@@ -36,9 +36,10 @@ export interface PassedCheck {
   readonly scenario: string;
 }
 
+/** A device's operating point; a null number means unbounded (e.g. ro with no Early effect). */
 export interface DeviceEntry {
   readonly kind: string;
-  readonly [field: string]: number | string;
+  readonly [field: string]: number | string | null;
 }
 
 export interface OperatingPointEntry {

@@ -1,0 +1,92 @@
+// Number and text formatting shared by the human-facing reporters (markdown, console, JUnit, SARIF):
+// SI prefixes with units ("6.8 mA"), margins as percentages, one-line finding details.
+import type { Finding, PassedCheck } from "./document.js";
+
+/** Three significant digits: enough to compare against a spec, short enough for a table cell. */
+const SIGNIFICANT_DIGITS = 3;
+
+/** Units that take SI prefixes; anything else (V/V, dB, %, °C) is printed as a plain number. */
+const PREFIXED_UNITS = new Set(["A", "V", "W", "Ω", "ohm", "F", "H", "Hz", "s", "S"]);
+
+const PREFIXES: readonly (readonly [number, string])[] = [
+  [1e12, "T"],
+  [1e9, "G"],
+  [1e6, "M"],
+  [1e3, "k"],
+  [1, ""],
+  [1e-3, "m"],
+  [1e-6, "µ"],
+  [1e-9, "n"],
+  [1e-12, "p"],
+  [1e-15, "f"],
+];
+
+/** A number to SIGNIFICANT_DIGITS significant digits, without trailing zeros or exponent noise. */
+export function formatNumber(value: number): string {
+  if (!Number.isFinite(value)) return Number.isNaN(value) ? "NaN" : value > 0 ? "∞" : "-∞";
+  if (value === 0) return "0";
+  const abs = Math.abs(value);
+  if (abs >= 1e6 || abs < 1e-3) {
+    const [mantissa, exponent] = value.toExponential(SIGNIFICANT_DIGITS - 1).split("e");
+    return `${trimZeros(mantissa ?? "0")}e${Number(exponent)}`;
+  }
+  return String(Number(value.toPrecision(SIGNIFICANT_DIGITS)));
+}
+
+function trimZeros(text: string): string {
+  if (!text.includes(".")) return text;
+  return text.replace(/0+$/, "").replace(/\.$/, "");
+}
+
+/** "6.8 mA", "4.7 kΩ", "0.98 V/V"; a null value prints as "—". */
+export function formatQuantity(value: number | null, unit: string | null): string {
+  if (value === null) return "—";
+  const u = unit ?? "";
+  if (!PREFIXED_UNITS.has(u) || !Number.isFinite(value) || value === 0) {
+    return u ? `${formatNumber(value)} ${u}` : formatNumber(value);
+  }
+  const abs = Math.abs(value);
+  // Pick the largest prefix not above the value; rounding may carry to 1000 (999.96 → "1000"),
+  // in which case the next prefix up reads better.
+  for (let i = 0; i < PREFIXES.length; i++) {
+    const [scale, prefix] = PREFIXES[i]!;
+    if (abs >= scale * (1 - 5e-4) || i === PREFIXES.length - 1) {
+      let scaled = Number((value / scale).toPrecision(SIGNIFICANT_DIGITS));
+      let p = prefix;
+      if (Math.abs(scaled) >= 1000 && i > 0) {
+        const [upScale, upPrefix] = PREFIXES[i - 1]!;
+        scaled = Number((value / upScale).toPrecision(SIGNIFICANT_DIGITS));
+        p = upPrefix;
+      }
+      return `${trimZeros(String(scaled))} ${p}${u}`;
+    }
+  }
+  return `${formatNumber(value)} ${u}`;
+}
+
+/** Signed relative margin as a percentage: -0.133 → "-13.3%"; null → "—". */
+export function formatMargin(margin: number | null): string {
+  if (margin === null || !Number.isFinite(margin)) return "—";
+  const pct = margin * 100;
+  const text = Math.abs(pct) >= 100 ? pct.toFixed(0) : trimZeros(pct.toPrecision(SIGNIFICANT_DIGITS));
+  return `${pct > 0 ? "+" : ""}${text === "-0" ? "0" : text}%`;
+}
+
+/** "measured 6.8 mA vs limit 6 mA, margin -13.3%", or "" when the check is not numeric. */
+export function measuredVsLimit(item: Finding | PassedCheck): string {
+  if (item.measured === null && item.limit === null) return "";
+  const parts = [`measured ${formatQuantity(item.measured, item.unit)}`];
+  if (item.limit !== null) parts[0] += ` vs limit ${formatQuantity(item.limit, item.unit)}`;
+  if (item.margin !== null) parts.push(`margin ${formatMargin(item.margin)}`);
+  return parts.join(", ");
+}
+
+/** `file:line:col` of a finding. */
+export function findingLocation(f: Finding): string {
+  return `${f.file}:${f.line}:${f.column}`;
+}
+
+/** Plural helper: "1 circuit", "3 circuits". */
+export function count(n: number, noun: string): string {
+  return `${n} ${noun}${n === 1 ? "" : "s"}`;
+}

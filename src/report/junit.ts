@@ -1,0 +1,75 @@
+// JUnit XML for CI test-report viewers: a suite per circuit file, a case per rule × subject.
+// Severity mapping (faithful to the gate): a finding at or above failOn is a <failure> (type =
+// its severity); below failOn it is a passing case whose system-out carries the warning or note;
+// input and internal findings (the circuit could not be checked) are <error>s. Checks that
+// passed are passing cases. A report never has zero cases.
+import junitReportBuilder, { type Builder } from "junit-report-builder";
+import { ERROR_RULES, reaches } from "./build.js";
+import type { CircuitResult, Finding, PassedCheck, ResultsDocument } from "./document.js";
+import { findingLocation, measuredVsLimit } from "./format.js";
+
+// The package is CommonJS: at run time the default import is the builder itself, while its
+// declarations (read under nodenext) describe a namespace around it.
+const builder = junitReportBuilder as unknown as Builder;
+
+/** CDATA cannot contain its own terminator. */
+function cdataSafe(text: string): string {
+  return text.replace(/]]>/g, "]] >");
+}
+
+function findingText(c: CircuitResult, f: Finding): string {
+  const numbers = measuredVsLimit(f);
+  const scenario = c.scenarios.find((s) => s.id === f.scenario);
+  const where = scenario && scenario.label && scenario.label !== f.scenario ? `${f.scenario} (${scenario.label})` : f.scenario;
+  return `${findingLocation(f)}: ${f.severity}: ${f.message}${numbers ? ` — ${numbers}${f.unit ? ` [${f.unit}]` : ""}` : ""}; worst scenario ${where}`;
+}
+
+function passedText(p: PassedCheck): string {
+  const numbers = measuredVsLimit(p);
+  return `${numbers || "passed"}; worst scenario ${p.scenario}`;
+}
+
+/** Case names must be unique within a suite (some viewers drop duplicates). */
+function uniqueNamer(): (name: string) => string {
+  const used = new Map<string, number>();
+  return (name) => {
+    const n = (used.get(name) ?? 0) + 1;
+    used.set(name, n);
+    return n === 1 ? name : `${name} (${n})`;
+  };
+}
+
+export function renderJunit(doc: ResultsDocument): string {
+  const report = builder.newBuilder().name("opgate");
+  const failOn = doc.summary.failOn;
+  for (const c of doc.circuits) {
+    const suite = report.testSuite().name(c.file);
+    const classname = c.name ?? c.file;
+    const unique = uniqueNamer();
+    let cases = 0;
+    for (const f of c.findings) {
+      const tc = suite.testCase().className(classname).name(unique(`${f.rule}: ${f.subject}`)).file(c.file);
+      const text = findingText(c, f);
+      if (ERROR_RULES.has(f.rule)) tc.error(text, f.rule, cdataSafe(f.hint ?? text));
+      else if (reaches(f.severity, failOn)) {
+        tc.failure(text, f.severity);
+        if (f.hint) tc.stacktrace(cdataSafe(`How to fix: ${f.hint}`));
+      } else tc.standardOutput(cdataSafe(`${text}${f.hint ? `\nHow to fix: ${f.hint}` : ""}`));
+      cases++;
+    }
+    for (const p of c.passed) {
+      suite.testCase().className(classname).name(unique(`${p.rule}: ${p.subject}`)).file(c.file).standardOutput(cdataSafe(passedText(p)));
+      cases++;
+    }
+    if (cases === 0) {
+      // A circuit in error without findings, or one with no applicable checks: still one case.
+      const tc = suite.testCase().className(classname).name(unique("opgate: circuit")).file(c.file);
+      if (c.status === "error") tc.error(`${c.file}: the circuit could not be checked`, "internal");
+      else tc.standardOutput("no rule applied to this circuit");
+    }
+  }
+  if (doc.circuits.length === 0) {
+    report.testSuite().name("opgate").testCase().className("opgate").name("opgate: no circuit files").standardOutput("no circuit files were checked");
+  }
+  return `${report.build()}\n`;
+}
