@@ -86,12 +86,21 @@ interface Outcome {
   readonly broken?: boolean;
 }
 
-/** Lower is worse: a failure beats a pass, then the lower margin, then the earlier scenario. */
+/** Nominal sorts first, so a tie goes to the scenario a reader checks first. */
+function scenarioRank(id: string): string {
+  return id === "nominal" ? "" : id;
+}
+
+/**
+ * A failure beats a pass, then the lower margin wins, then nominal and the lower scenario id
+ * (so the answer does not depend on the order scenarios come in), then the earlier report.
+ */
 function worseThan(a: Outcome, b: Outcome): boolean {
   if (a.kind !== b.kind) return a.kind === "fail";
   const ma = a.margin ?? (a.kind === "fail" ? -Infinity : Infinity);
   const mb = b.margin ?? (b.kind === "fail" ? -Infinity : Infinity);
   if (ma !== mb) return ma < mb;
+  if (a.scenario !== b.scenario) return scenarioRank(a.scenario) < scenarioRank(b.scenario);
   return a.order < b.order;
 }
 
