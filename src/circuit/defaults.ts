@@ -1,0 +1,37 @@
+// Defaults of circuit format v1 (DESIGN.md section 3), one named constant each with its source.
+
+/** Nominal ambient when the file gives none: 27 °C = 300.15 K (common practice: model parameters are quoted at 27 °C). */
+export const DEFAULT_TEMPERATURE_K = 300.15;
+/** Name of the reference node when the file gives none. */
+export const DEFAULT_GROUND = "gnd";
+
+/** Reverse beta βR: 1 (common practice: small-signal BJTs are rarely used inverted; 1 keeps the model well-posed). */
+export const DEFAULT_REVERSE_BETA = 1;
+/** Diode ideality n: 1, the ideal Shockley junction (textbook form). */
+export const DEFAULT_IDEALITY = 1;
+/** Diode series resistance: 0 Ω (ideal junction). */
+export const DEFAULT_DIODE_SERIES_RESISTANCE = 0;
+/** Early voltage: none (Infinity), as DESIGN.md section 3 asks when the file omits it. */
+export const DEFAULT_EARLY_VOLTAGE = Infinity;
+/** |VCE| at the edge of saturation: 0.3 V (common practice: VCE(sat) of a small-signal silicon BJT is 0.1–0.3 V). */
+export const DEFAULT_SATURATION_EDGE_V = 0.3;
+/** Silicon band gap for IS(T): 1.11 eV (common practice value used in device models; from memory). */
+export const DEFAULT_ENERGY_GAP_EV = 1.11;
+/** Exponent of (T/T0) in IS(T): 3 (common practice for silicon junctions). */
+export const DEFAULT_SATURATION_CURRENT_EXPONENT = 3;
+/** beta(T) ∝ (T/T0)^1.5 (common practice for small-signal silicon BJTs). */
+export const DEFAULT_BETA_EXPONENT = 1.5;
+
+/** Channel-length modulation λ: 0 (no output-conductance term unless given). */
+export const DEFAULT_LAMBDA = 0;
+/** Body-effect coefficient γ: 0 (body effect off unless given). */
+export const DEFAULT_BODY_EFFECT = 0;
+/** 2φF: 0.6 V (common practice for a lightly doped silicon substrate). */
+export const DEFAULT_SURFACE_POTENTIAL_V = 0.6;
+/** d|Vt|/dT: −2 mV/K (common practice for silicon MOSFETs). */
+export const DEFAULT_THRESHOLD_TEMPCO_V_PER_K = -0.002;
+/** k'(T) ∝ (T/T0)^−1.5 (mobility falls with temperature; common practice). */
+export const DEFAULT_KPRIME_EXPONENT = -1.5;
+
+/** Bare temperature numbers below this are probably meant as °C: 27 is far colder than any board. */
+export const SUSPICIOUS_KELVIN_BELOW = 150;

@@ -1,0 +1,131 @@
+// Parsing untrusted YAML/JSON text into a plain value while keeping source positions.
+// Guards: size cap, duplicate keys, prototype keys, alias expansion cap, one document only.
+import { isAlias, isPair, isScalar, LineCounter, parseDocument, visit } from "yaml";
+import { positionAtOffset, type PositionedDocument } from "./positions.js";
+import type { InputError } from "./types.js";
+
+/** Largest accepted file: a hand-written circuit of thousands of parts is far below this. */
+export const MAX_FILE_BYTES = 1024 * 1024;
+
+/** Alias expansions allowed in toJS; a few anchors are normal, a "billion laughs" bomb is not. */
+export const MAX_ALIAS_COUNT = 100;
+
+/** Keys that could reach an object's prototype in naive consumers; rejected outright. */
+export const FORBIDDEN_KEYS: ReadonlySet<string> = new Set(["__proto__", "constructor", "prototype"]);
+
+export type ParseResult =
+  | { readonly ok: true; readonly value: unknown; readonly positioned: PositionedDocument }
+  | { readonly ok: false; readonly errors: readonly InputError[] };
+
+function firstLine(message: string): string {
+  return (message.split("\n")[0] ?? message).replace(/ at line \d+, column \d+:?$/, "").trim();
+}
+
+/** Strict JSON syntax check for .json files (YAML would accept a trailing comma or comments). */
+function jsonSyntaxError(text: string, file: string, lineCounter: LineCounter): InputError | undefined {
+  try {
+    JSON.parse(text);
+    return undefined;
+  } catch (err) {
+    const message = err instanceof Error ? err.message : String(err);
+    const at = /position (\d+)/.exec(message);
+    const pos = at ? positionAtOffset(lineCounter, file, Number(at[1])) : undefined;
+    const offset = at ? Number(at[1]) : -1;
+    const trailing = offset >= 0 && text.slice(0, offset).trimEnd().endsWith(",") && /^\s*[}\]]/.test(text.slice(offset));
+    return {
+      file,
+      ...(pos ? { line: pos.line, column: pos.column } : {}),
+      message: `invalid JSON: ${message.replace(/\s*\(line \d+ column \d+\)/, "").replace(/ in JSON at position \d+/, "")}`,
+      hint: trailing
+        ? "JSON allows no comma after the last item; remove it"
+        : "check the brackets, quotes and commas around this point (or write the file as YAML)",
+    };
+  }
+}
+
+/**
+ * Parses `text` as YAML (JSON is YAML) with positions. `json: true` additionally enforces strict
+ * JSON syntax. Returns the plain value or InputErrors with line and column.
+ */
+export function parseDocumentWithPositions(text: string, file: string, options: { json?: boolean } = {}): ParseResult {
+  const bytes = Buffer.byteLength(text, "utf8");
+  if (bytes > MAX_FILE_BYTES) {
+    return {
+      ok: false,
+      errors: [
+        {
+          file,
+          message: `file is too large (${bytes} bytes; the limit is ${MAX_FILE_BYTES} bytes)`,
+          hint: "split the design into several circuit files",
+        },
+      ],
+    };
+  }
+  if (text.trim() === "") {
+    return { ok: false, errors: [{ file, line: 1, column: 1, message: "file is empty", hint: "start with `format: opgate-circuit/1`" }] };
+  }
+  const lineCounter = new LineCounter();
+  if (options.json) {
+    const err = jsonSyntaxError(text, file, new LineCounterFor(text));
+    if (err) return { ok: false, errors: [err] };
+  }
+  const doc = parseDocument(text, { lineCounter, prettyErrors: false, uniqueKeys: true, merge: false });
+  const errors: InputError[] = [];
+  for (const e of [...doc.errors, ...doc.warnings]) {
+    const at = e.linePos?.[0];
+    errors.push({
+      file,
+      ...(at ? { line: at.line, column: at.col } : {}),
+      message: e.code === "DUPLICATE_KEY" ? "duplicate key: each key may appear once in a mapping" : `invalid ${options.json ? "JSON" : "YAML"}: ${firstLine(e.message)}`,
+      hint: e.code === "DUPLICATE_KEY" ? "remove or rename one of the two entries" : "fix the syntax at this point",
+    });
+  }
+  if (errors.length) return { ok: false, errors };
+  const positioned: PositionedDocument = { file, doc, lineCounter };
+  visit(doc, {
+    Pair(_, pair) {
+      if (isPair(pair) && isScalar(pair.key) && FORBIDDEN_KEYS.has(String(pair.key.value))) {
+        const pos = pair.key.range ? positionAtOffset(lineCounter, file, pair.key.range[0]) : undefined;
+        errors.push({
+          file,
+          ...(pos ? { line: pos.line, column: pos.column } : {}),
+          message: `key \`${String(pair.key.value)}\` is not allowed`,
+          hint: "rename it; prototype-related keys are rejected in untrusted files",
+        });
+      }
+      if (isPair(pair) && pair.key !== null && !isScalar(pair.key) && !isAlias(pair.key)) {
+        const node = pair.key as { range?: [number, number, number] };
+        const pos = node.range ? positionAtOffset(lineCounter, file, node.range[0]) : undefined;
+        errors.push({ file, ...(pos ? { line: pos.line, column: pos.column } : {}), message: "a mapping key must be a plain name", hint: "use a string key" });
+      }
+    },
+  });
+  if (errors.length) return { ok: false, errors };
+  let value: unknown;
+  try {
+    value = doc.toJS({ maxAliasCount: MAX_ALIAS_COUNT });
+  } catch (err) {
+    const message = err instanceof Error ? err.message : String(err);
+    const alias = /alias/i.test(message);
+    return {
+      ok: false,
+      errors: [
+        {
+          file,
+          message: alias ? `too many YAML alias expansions (more than ${MAX_ALIAS_COUNT})` : `cannot read the document: ${firstLine(message)}`,
+          hint: alias ? "write the values out instead of nesting anchors and aliases" : "check the file's syntax",
+        },
+      ],
+    };
+  }
+  return { ok: true, value, positioned };
+}
+
+/** A LineCounter filled for the whole text, for offsets reported outside the YAML parser. */
+class LineCounterFor extends LineCounter {
+  constructor(text: string) {
+    super();
+    this.addNewLine(0);
+    for (let i = 0; i < text.length; i++) if (text[i] === "\n") this.addNewLine(i + 1);
+  }
+}

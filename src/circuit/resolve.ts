@@ -1,0 +1,289 @@
+// Resolution: the schema-valid plain tree → the typed, immutable Circuit (SI units, defaults
+// applied, tolerances and spreads as ranges, every item with its source position).
+import * as D from "./defaults.js";
+import { readNumberOr, readOptional, readSpread, readSpreadOr, readToleranced, readValue, ResolveContext } from "./fields.js";
+import { resolveParameters } from "./parameters.js";
+import type { PathSegment } from "./positions.js";
+import type {
+  Circuit,
+  CircuitRuleOverride,
+  Component,
+  DeviceSpec,
+  GainSpec,
+  Model,
+  SourcePos,
+  Specs,
+  SupplySpec,
+  Toleranced,
+} from "./types.js";
+import type { Quantity } from "./values.js";
+
+type Obj = Record<string, unknown>;
+const asObj = (v: unknown): Obj => (v !== null && typeof v === "object" && !Array.isArray(v) ? (v as Obj) : {});
+
+function deepFreeze<T>(value: T): T {
+  if (value !== null && typeof value === "object" && !Object.isFrozen(value)) {
+    if (!(value instanceof Map)) for (const v of Object.values(value as object)) deepFreeze(v);
+    else for (const v of value.values()) deepFreeze(v);
+    Object.freeze(value);
+  }
+  return value;
+}
+
+function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model | undefined {
+  const path: PathSegment[] = ["models", id];
+  const what = `model ${id}`;
+  const pos = ctx.pos(path, true);
+  const powerRating = readOptional(ctx, raw, "powerRating", path, "power", what);
+  const base = { id, pos, ...(powerRating !== undefined ? { powerRating } : {}) };
+  const n = (key: string, q: Quantity, fallback: number) => readNumberOr(ctx, raw, key, path, q, what, fallback);
+  const s = (key: string, q: Quantity, fallback: number) => readSpreadOr(ctx, raw, key, path, q, what, fallback);
+  const req = (key: string, q: Quantity) => readSpread(ctx, raw[key], [...path, key], q, `${what} \`${key}\``);
+  const kind = raw["kind"];
+  if (kind === "diode") {
+    const saturationCurrent = req("saturationCurrent", "current");
+    const ideality = s("ideality", "dimensionless", D.DEFAULT_IDEALITY);
+    const seriesResistance = n("seriesResistance", "resistance", D.DEFAULT_DIODE_SERIES_RESISTANCE);
+    const energyGap = n("energyGap", "energy-ev", D.DEFAULT_ENERGY_GAP_EV);
+    const saturationCurrentExponent = n("saturationCurrentExponent", "dimensionless", D.DEFAULT_SATURATION_CURRENT_EXPONENT);
+    if (!saturationCurrent || !ideality || seriesResistance === undefined || energyGap === undefined || saturationCurrentExponent === undefined) return undefined;
+    return { ...base, kind, saturationCurrent, ideality, seriesResistance, energyGap, saturationCurrentExponent };
+  }
+  if (kind === "npn" || kind === "pnp") {
+    const beta = req("beta", "dimensionless");
+    const reverseBeta = s("reverseBeta", "dimensionless", D.DEFAULT_REVERSE_BETA);
+    const saturationCurrent = req("saturationCurrent", "current");
+    const earlyVoltage = s("earlyVoltage", "voltage", D.DEFAULT_EARLY_VOLTAGE);
+    const saturationEdge = n("saturationEdge", "voltage", D.DEFAULT_SATURATION_EDGE_V);
+    const energyGap = n("energyGap", "energy-ev", D.DEFAULT_ENERGY_GAP_EV);
+    const saturationCurrentExponent = n("saturationCurrentExponent", "dimensionless", D.DEFAULT_SATURATION_CURRENT_EXPONENT);
+    const betaExponent = n("betaExponent", "dimensionless", D.DEFAULT_BETA_EXPONENT);
+    if (!beta || !reverseBeta || !saturationCurrent || !earlyVoltage) return undefined;
+    if (saturationEdge === undefined || energyGap === undefined || saturationCurrentExponent === undefined || betaExponent === undefined) return undefined;
+    if (earlyVoltage.min <= 0) ctx.error([...path, "earlyVoltage"], `${what}: earlyVoltage must be a positive magnitude`, "write it without a sign, e.g. 90 V; omit it for no Early effect");
+    if (beta.min <= 0) ctx.error([...path, "beta"], `${what}: beta must be positive`);
+    if (saturationCurrent.min <= 0) ctx.error([...path, "saturationCurrent"], `${what}: saturationCurrent must be positive`);
+    return { ...base, kind, beta, reverseBeta, saturationCurrent, earlyVoltage, saturationEdge, energyGap, saturationCurrentExponent, betaExponent };
+  }
+  if (kind === "nmos" || kind === "pmos") {
+    const threshold = req("threshold", "voltage");
+    const kPrime = req("kPrime", "transconductance-parameter");
+    const width = n("width", "length", NaN);
+    const length = n("length", "length", NaN);
+    const lambda = s("lambda", "per-volt", D.DEFAULT_LAMBDA);
+    const bodyEffect = n("bodyEffect", "sqrt-volt", D.DEFAULT_BODY_EFFECT);
+    const surfacePotential = n("surfacePotential", "voltage", D.DEFAULT_SURFACE_POTENTIAL_V);
+    const thresholdTempco = n("thresholdTempco", "volt-per-kelvin", D.DEFAULT_THRESHOLD_TEMPCO_V_PER_K);
+    const kPrimeExponent = n("kPrimeExponent", "dimensionless", D.DEFAULT_KPRIME_EXPONENT);
+    if (!threshold || !kPrime || !lambda || width === undefined || length === undefined) return undefined;
+    if (bodyEffect === undefined || surfacePotential === undefined || thresholdTempco === undefined || kPrimeExponent === undefined) return undefined;
+    if (!(width > 0)) ctx.error([...path, "width"], `${what}: width must be positive`);
+    if (!(length > 0)) ctx.error([...path, "length"], `${what}: length must be positive`);
+    if (kPrime.min <= 0) ctx.error([...path, "kPrime"], `${what}: kPrime must be positive`);
+    const wrongSign = kind === "nmos" ? threshold.typ < 0 : threshold.typ > 0;
+    if (wrongSign) {
+      const other = kind === "nmos" ? "a depletion-mode NMOS" : "a depletion-mode PMOS";
+      ctx.warn(
+        [...path, "threshold"],
+        `${what}: a ${kind.toUpperCase()} threshold of ${threshold.typ} V is ${kind === "nmos" ? "negative" : "positive"}; read as ${other}, or perhaps the sign is wrong (an enhancement ${kind.toUpperCase()} has Vt ${kind === "nmos" ? "> 0" : "< 0"})`,
+        `write ${-threshold.typ} V for an enhancement device; keep ${threshold.typ} V only if a depletion device is meant`,
+      );
+    }
+    return { ...base, kind, threshold, kPrime, width, length, lambda, bodyEffect, surfacePotential, thresholdTempco, kPrimeExponent };
+  }
+  return undefined;
+}
+
+function resolveComponent(ctx: ResolveContext, raw: Obj, index: number): Component | undefined {
+  const path: PathSegment[] = ["components", index];
+  const id = String(raw["id"]);
+  const what = `component ${id}`;
+  const pos: SourcePos = ctx.pos(path);
+  const pinsRaw = raw["pins"];
+  const pins = asObj(pinsRaw) as Record<string, string>;
+  const two = Array.isArray(pinsRaw) ? { a: String(pinsRaw[0]), b: String(pinsRaw[1]) } : { a: "", b: "" };
+  const tol = (key: string, q: Quantity): Toleranced | undefined => readToleranced(ctx, raw, key, path, q, what);
+  const opt = (key: string, q: Quantity) => readOptional(ctx, raw, key, path, q, what);
+  const base = { id, pos };
+  switch (raw["kind"]) {
+    case "resistor": {
+      const value = tol("value", "resistance");
+      const powerRating = opt("powerRating", "power");
+      if (!value) return undefined;
+      if (value.min <= 0) ctx.error([...path, "value"], `${what}: resistance must be positive`, "use a voltage source of 0 V for a short");
+      return { ...base, kind: "resistor", pins: two, value, ...(powerRating !== undefined ? { powerRating } : {}), ...(raw["package"] !== undefined ? { package: String(raw["package"]) } : {}) };
+    }
+    case "capacitor": {
+      const value = tol("value", "capacitance");
+      const voltageRating = opt("voltageRating", "voltage");
+      if (!value) return undefined;
+      if (value.min <= 0) ctx.error([...path, "value"], `${what}: capacitance must be positive`);
+      return { ...base, kind: "capacitor", pins: two, value, ...(voltageRating !== undefined ? { voltageRating } : {}) };
+    }
+    case "inductor": {
+      const value = tol("value", "inductance");
+      const seriesResistance = opt("seriesResistance", "resistance") ?? 0;
+      if (!value) return undefined;
+      if (value.min <= 0) ctx.error([...path, "value"], `${what}: inductance must be positive`);
+      return { ...base, kind: "inductor", pins: two, value, seriesResistance };
+    }
+    case "voltage-source":
+    case "current-source": {
+      const isV = raw["kind"] === "voltage-source";
+      const dc = tol("dc", isV ? "voltage" : "current");
+      const ac = opt("ac", isV ? "voltage" : "current");
+      if (!dc) return undefined;
+      const acPart = ac !== undefined ? { ac } : {};
+      return isV
+        ? { ...base, kind: "voltage-source", pins: { plus: pins["plus"]!, minus: pins["minus"]! }, dc, ...acPart }
+        : { ...base, kind: "current-source", pins: { from: pins["from"]!, to: pins["to"]! }, dc, ...acPart };
+    }
+    case "diode":
+      return { ...base, kind: "diode", pins: { anode: pins["anode"]!, cathode: pins["cathode"]! }, model: String(raw["model"]) };
+    case "npn":
+    case "pnp":
+      return { ...base, kind: raw["kind"], pins: { collector: pins["collector"]!, base: pins["base"]!, emitter: pins["emitter"]! }, model: String(raw["model"]) };
+    case "nmos":
+    case "pmos":
+      return {
+        ...base,
+        kind: raw["kind"],
+        pins: { drain: pins["drain"]!, gate: pins["gate"]!, source: pins["source"]!, body: pins["body"] ?? pins["source"]! },
+        model: String(raw["model"]),
+      };
+    case "vcvs":
+    case "vccs": {
+      const gain = readValue(ctx, raw["gain"], [...path, "gain"], raw["kind"] === "vcvs" ? "gain" : "transconductance", `${what} \`gain\``);
+      if (gain === undefined) return undefined;
+      return { ...base, kind: raw["kind"], pins: { plus: pins["plus"]!, minus: pins["minus"]!, controlPlus: pins["controlPlus"]!, controlMinus: pins["controlMinus"]! }, gain };
+    }
+    case "cccs":
+    case "ccvs": {
+      const gain = readValue(ctx, raw["gain"], [...path, "gain"], raw["kind"] === "cccs" ? "gain" : "resistance", `${what} \`gain\``);
+      if (gain === undefined) return undefined;
+      return { ...base, kind: raw["kind"], pins: { plus: pins["plus"]!, minus: pins["minus"]! }, control: String(raw["control"]), gain };
+    }
+    default:
+      return undefined;
+  }
+}
+
+function resolveSpecs(ctx: ResolveContext, raw: Obj, ground: string): Specs {
+  const gains: GainSpec[] = [];
+  const rawGains = Array.isArray(raw["gains"]) ? (raw["gains"] as Obj[]) : [];
+  rawGains.forEach((g, i) => {
+    const path: PathSegment[] = ["specs", "gains", i];
+    const what = `gain spec \`${String(g["name"])}\``;
+    const target = readValue(ctx, g["target"], [...path, "target"], "gain", `${what} \`target\``);
+    const frequency = readOptional(ctx, g, "frequency", path, "frequency", what);
+    const out = g["output"];
+    const output = typeof out === "string" ? { plus: out, minus: ground } : { plus: String(asObj(out)["plus"]), minus: String(asObj(out)["minus"]) };
+    if (target === undefined) return;
+    let window: { min: number; max: number } | undefined;
+    const tol = g["tolerance"];
+    if (tol === undefined) window = { min: target, max: target };
+    else if (tol !== null && typeof tol === "object") {
+      const t = tol as Obj;
+      const lo = readValue(ctx, t["min"], [...path, "tolerance", "min"], "gain", `${what} tolerance \`min\``);
+      const hi = readValue(ctx, t["max"], [...path, "tolerance", "max"], "gain", `${what} tolerance \`max\``);
+      if (lo === undefined || hi === undefined) return;
+      if (!(lo <= target && target <= hi)) {
+        ctx.error([...path, "tolerance"], `${what}: the window {min: ${lo}, max: ${hi}} does not contain the target ${target}`, "give the acceptable gain limits in V/V, min ≤ target ≤ max");
+        return;
+      }
+      window = { min: lo, max: hi };
+    } else {
+      const fake = { v: target, tolerance: tol };
+      const t = readToleranced(ctx, fake, "v", path, "gain", what);
+      if (!t) return;
+      window = { min: t.min, max: t.max };
+    }
+    if (frequency !== undefined && !(frequency > 0)) ctx.error([...path, "frequency"], `${what}: frequency must be positive`);
+    gains.push({ name: String(g["name"]), input: String(g["input"]), output, target, window, ...(frequency !== undefined ? { frequency } : {}), pos: ctx.pos(path) });
+  });
+  const names = new Set<string>();
+  gains.forEach((g) => {
+    if (names.has(g.name)) ctx.error(["specs", "gains", gains.indexOf(g), "name"], `two gain specs are named \`${g.name}\``, "give each gain a unique name; findings use it as their subject");
+    names.add(g.name);
+  });
+  let band: Specs["band"];
+  if (raw["band"] !== undefined) {
+    const b = asObj(raw["band"]);
+    const low = readValue(ctx, b["low"], ["specs", "band", "low"], "frequency", "band `low`");
+    const high = readValue(ctx, b["high"], ["specs", "band", "high"], "frequency", "band `high`");
+    if (low !== undefined && high !== undefined) {
+      if (!(low > 0 && low < high)) ctx.error(["specs", "band"], `band {low: ${low} Hz, high: ${high} Hz} must have 0 < low < high`);
+      else band = { low, high, pos: ctx.pos(["specs", "band"]) };
+    }
+  }
+  const supplies: SupplySpec[] = [];
+  (Array.isArray(raw["supplies"]) ? (raw["supplies"] as Obj[]) : []).forEach((s, i) => {
+    const path: PathSegment[] = ["specs", "supplies", i];
+    const what = `supply spec \`${String(s["source"])}\``;
+    const maxCurrent = readOptional(ctx, s, "maxCurrent", path, "current", what);
+    const maxPower = readOptional(ctx, s, "maxPower", path, "power", what);
+    supplies.push({ source: String(s["source"]), ...(maxCurrent !== undefined ? { maxCurrent } : {}), ...(maxPower !== undefined ? { maxPower } : {}), pos: ctx.pos(path) });
+  });
+  const devices: DeviceSpec[] = [];
+  for (const [device, d] of Object.entries(asObj(raw["devices"]))) {
+    const path: PathSegment[] = ["specs", "devices", device];
+    const o = asObj(d);
+    const what = `device spec \`${device}\``;
+    const minCurrent = readOptional(ctx, o, "minCurrent", path, "current", what);
+    const maxCurrent = readOptional(ctx, o, "maxCurrent", path, "current", what);
+    if (minCurrent !== undefined && maxCurrent !== undefined && minCurrent > maxCurrent) ctx.error(path, `${what}: minCurrent is above maxCurrent`);
+    devices.push({ device, ...(o["region"] !== undefined ? { region: String(o["region"]) } : {}), ...(minCurrent !== undefined ? { minCurrent } : {}), ...(maxCurrent !== undefined ? { maxCurrent } : {}), pos: ctx.pos(path, true) });
+  }
+  return { gains, ...(band ? { band } : {}), supplies, devices };
+}
+
+/** Resolves a schema-valid tree. Returns the circuit (possibly with errors in ctx) — callers check ctx.errors. */
+export function resolveCircuit(ctx: ResolveContext, root: Obj): Circuit {
+  ctx.parameters = resolveParameters(ctx, root["parameters"] as Obj | undefined);
+  let temperature: number = D.DEFAULT_TEMPERATURE_K;
+  if (root["temperature"] !== undefined) {
+    const t = readValue(ctx, root["temperature"], ["temperature"], "temperature", "`temperature`");
+    if (t !== undefined) {
+      temperature = t;
+      if (t <= 0) ctx.error(["temperature"], `\`temperature\` ${t} K is at or below absolute zero`, "write e.g. 27 °C");
+      else if (typeof root["temperature"] === "number" && t < D.SUSPICIOUS_KELVIN_BELOW)
+        ctx.warn(["temperature"], `\`temperature: ${t}\` is read as ${t} K (a bare number is kelvin)`, `write "${t} °C" if Celsius was meant`);
+    }
+  }
+  const ground = typeof root["ground"] === "string" ? root["ground"] : D.DEFAULT_GROUND;
+  const models = new Map<string, Model>();
+  for (const [id, m] of Object.entries(asObj(root["models"]))) {
+    const model = resolveModel(ctx, id, asObj(m));
+    if (model) models.set(id, model);
+  }
+  const components: Component[] = [];
+  (root["components"] as Obj[]).forEach((c, i) => {
+    const comp = resolveComponent(ctx, c, i);
+    if (comp) components.push(comp);
+  });
+  const nodeSet = new Set<string>();
+  for (const c of components) for (const n of Object.values(c.pins)) nodeSet.add(n);
+  nodeSet.delete(ground);
+  const specs = resolveSpecs(ctx, asObj(root["specs"]), ground);
+  const overrides: CircuitRuleOverride[] = Object.entries(asObj(root["review"])).map(([rule, o]) => ({
+    rule,
+    options: asObj(asObj(o)["options"]),
+    reason: String(asObj(o)["reason"]),
+    pos: ctx.pos(["review", rule], true),
+  }));
+  return deepFreeze({
+    file: ctx.file,
+    name: String(root["name"]),
+    ...(typeof root["description"] === "string" ? { description: root["description"] } : {}),
+    temperature,
+    ground,
+    parameters: ctx.parameters,
+    models,
+    components,
+    nodes: [...nodeSet].sort(),
+    specs,
+    overrides,
+    warnings: [...ctx.warnings],
+    pos: ctx.pos(["name"]),
+  });
+}
