@@ -1,0 +1,141 @@
+// The one interface every device kind implements for the bias solve: what unknowns it needs,
+// how it stamps the MNA matrix from a trial solution (companion-model Newton form), how it keeps
+// its junction-limiting state, and what operating-point record it reports.
+import type { Circuit, Component, Model } from "../circuit/types.js";
+import type { DevicePoint, SourcePoint } from "../solve/types.js";
+
+/** Index of the ground node in stamps: rows and columns of ground are dropped (eliminated). */
+export const GROUND = -1;
+
+/** Handed to a device once, while the plan is compiled: it asks for the unknowns it needs. */
+export interface SetupContext {
+  readonly circuit: Circuit;
+  /** Absolute temperature of the solve, K. */
+  readonly temperature: number;
+  /** Unknown index of a circuit node (GROUND for the ground node). */
+  node(name: string): number;
+  /** A new internal node unknown (e.g. behind a diode's series resistance). */
+  internalNode(label: string, owner: string): number;
+  /** A new branch-current unknown owned by this device. */
+  branch(owner: string): number;
+  model(id: string): Model | undefined;
+}
+
+/** Second phase of setup: references between devices (a current-controlled source's control). */
+export interface BindContext {
+  /** Branch unknown of the voltage source `id`, or undefined when `id` is not a voltage source. */
+  voltageSourceBranch(id: string): number | undefined;
+}
+
+/**
+ * The system being stamped: `a` is the n×n Jacobian (row-major), `b` the right-hand side, so
+ * that the Newton update solves a·x_new = b. Rows are KCL (sum of currents leaving a node into
+ * devices = 0) for node unknowns and the branch equation for branch unknowns.
+ */
+export interface StampTarget {
+  readonly a: Float64Array;
+  readonly b: Float64Array;
+  readonly n: number;
+}
+
+/** Per-iteration flags shared by all devices during one stamping pass. */
+export interface IterationState {
+  /** First evaluation of a stage: junction devices use their initial-guess voltages, not x. */
+  init: boolean;
+  /** Set by a device when it limited one of its controlling voltages on this pass. */
+  limited: boolean;
+}
+
+/** One terminal of a device: the pin name, the node it is wired to, and that node's unknown. */
+export interface Terminal {
+  readonly pin: string;
+  readonly node: string;
+  readonly index: number;
+}
+
+export interface DeviceInstance {
+  readonly id: string;
+  readonly kind: Component["kind"];
+  readonly terminals: readonly Terminal[];
+  /** True when the device's stamp depends on the trial solution. */
+  readonly nonlinear: boolean;
+  /** How the device joins nodes for the DC topology check (pairs of node names). */
+  readonly dcLinks: readonly (readonly [string, string])[];
+  /** Pairs joined by a branch that fixes their voltage difference (for source-loop diagnosis). */
+  readonly voltageLinks: readonly (readonly [string, string])[];
+  /** Resolves references to other devices; returns an error sentence, or undefined. */
+  bind?(ctx: BindContext): string | undefined;
+  /** Constant matrix entries (linear devices), stamped once per plan. */
+  stampStatic?(m: StampTarget): void;
+  /** Right-hand side of independent sources at full value (the solver scales it). */
+  stampSource?(b: Float64Array): void;
+  /** Newton companion stamp of a nonlinear device at trial solution x (adds to a and b). */
+  stampNonlinear?(x: Float64Array, m: StampTarget, st: IterationState): void;
+  /** Forget limiting state (start of a new continuation from the initial guess). */
+  reset?(): void;
+  /** The operating-point record at the solved x (sourceScale is 1 at the end of a solve). */
+  point(x: Float64Array): DevicePoint | SourcePoint;
+}
+
+/** Adds v at (row, col), skipping the eliminated ground row/column. */
+export function addA(m: StampTarget, row: number, col: number, v: number): void {
+  if (row >= 0 && col >= 0) m.a[row * m.n + col]! += v;
+}
+
+/** Adds v to the right-hand side of row, skipping ground. */
+export function addB(b: Float64Array, row: number, v: number): void {
+  if (row >= 0) b[row]! += v;
+}
+
+/** Stamps a conductance g between unknowns i and j. */
+export function stampConductance(m: StampTarget, i: number, j: number, g: number): void {
+  addA(m, i, i, g);
+  addA(m, j, j, g);
+  addA(m, i, j, -g);
+  addA(m, j, i, -g);
+}
+
+/** Value of unknown i in x (0 for ground). */
+export function volt(x: Float64Array, i: number): number {
+  return i >= 0 ? x[i]! : 0;
+}
+
+/**
+ * Stamps a nonlinear device given, over its k pins (unknown indices idx), the pin Jacobian
+ * g[i·k+j] = ∂I(pin i, into the device)/∂V(pin j) and the companion current ieq[i]
+ * (the current into pin i at the linearisation point minus g·v there).
+ */
+export function stampPins(m: StampTarget, idx: Int32Array, g: Float64Array, ieq: Float64Array): void {
+  const k = idx.length;
+  for (let i = 0; i < k; i++) {
+    const r = idx[i]!;
+    if (r < 0) continue;
+    const row = r * m.n;
+    for (let j = 0; j < k; j++) {
+      const c = idx[j]!;
+      if (c >= 0) m.a[row + c]! += g[i * k + j]!;
+    }
+    m.b[r]! -= ieq[i]!;
+  }
+}
+
+export function terminal(ctx: SetupContext, pin: string, node: string): Terminal {
+  return { pin, node, index: ctx.node(node) };
+}
+
+/** Power delivered into a device: Σ V(pin)·I(into pin). */
+export function powerIn(x: Float64Array, terminals: readonly Terminal[], currentsIn: readonly number[]): number {
+  let p = 0;
+  for (let i = 0; i < terminals.length; i++) p += volt(x, terminals[i]!.index) * currentsIn[i]!;
+  return p;
+}
+
+/** Thrown during setup for a device the solver cannot represent; becomes a SolveFailure. */
+export class DeviceSetupError extends Error {
+  constructor(
+    message: string,
+    readonly parts: readonly string[],
+  ) {
+    super(message);
+  }
+}

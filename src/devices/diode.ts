@@ -1,0 +1,96 @@
+// Diode: Shockley junction I = IS(exp(V/(n·VT)) − 1) with ideality n and series resistance.
+// A non-zero series resistance gets an internal node between the anode pin and the junction
+// (an exact resistor stamp, no nested solve); the reported `linear` folds it back into one
+// conductance between anode and cathode, which is the exact two-pin Jacobian.
+import type { Diode, DiodeModel } from "../circuit/types.js";
+import type { DiodePoint } from "../solve/types.js";
+import { criticalVoltage, limitJunction } from "../solve/limiting.js";
+import {
+  DeviceSetupError,
+  stampConductance,
+  stampPins,
+  terminal,
+  volt,
+  type DeviceInstance,
+  type IterationState,
+  type SetupContext,
+  type StampTarget,
+} from "./device.js";
+import { JUNCTION_LEAK_CONDUCTANCE, junction, junctionOut } from "./junction.js";
+import { saturationCurrentAt, thermalVoltage } from "./thermal.js";
+
+export function diodeModelFor(c: { id: string; model: string }, ctx: SetupContext): DiodeModel {
+  const m = ctx.model(c.model);
+  if (!m || m.kind !== "diode") throw new DeviceSetupError(`diode ${c.id} names model \`${c.model}\`, which is not a diode model`, [c.id]);
+  return m;
+}
+
+export function diode(c: Diode, ctx: SetupContext): DeviceInstance {
+  const model = diodeModelFor(c, ctx);
+  const anode = terminal(ctx, "anode", c.pins.anode);
+  const cathode = terminal(ctx, "cathode", c.pins.cathode);
+  const rs = model.seriesResistance;
+  const inner = rs > 0 ? ctx.internalNode(`${c.id}#junction`, c.id) : anode.index;
+  const nvt = model.ideality.typ * thermalVoltage(ctx.temperature);
+  const is = saturationCurrentAt(model.saturationCurrent.typ, ctx.temperature, model.energyGap, model.saturationCurrentExponent);
+  const vcrit = criticalVoltage(nvt, is);
+  const idx = Int32Array.of(inner, cathode.index);
+  const g = new Float64Array(4);
+  const ieq = new Float64Array(2);
+  let vLast = vcrit;
+
+  const evaluate = (v: number): void => {
+    junction(v, is, nvt);
+    junctionOut[0] = junctionOut[0]! + JUNCTION_LEAK_CONDUCTANCE * v;
+    junctionOut[1] = junctionOut[1]! + JUNCTION_LEAK_CONDUCTANCE;
+  };
+
+  return {
+    id: c.id,
+    kind: c.kind,
+    terminals: [anode, cathode],
+    nonlinear: true,
+    dcLinks: [[anode.node, cathode.node]],
+    voltageLinks: [],
+    stampStatic(m: StampTarget) {
+      if (rs > 0) stampConductance(m, anode.index, inner, 1 / rs);
+    },
+    reset() {
+      vLast = vcrit;
+    },
+    stampNonlinear(x: Float64Array, m: StampTarget, st: IterationState) {
+      let v = st.init ? vcrit : volt(x, inner) - volt(x, cathode.index);
+      const vl = limitJunction(v, vLast, nvt, vcrit);
+      if (vl !== v) st.limited = true;
+      v = vl;
+      vLast = v;
+      evaluate(v);
+      const i = junctionOut[0]!;
+      const gd = junctionOut[1]!;
+      g[0] = gd;
+      g[1] = -gd;
+      g[2] = -gd;
+      g[3] = gd;
+      ieq[0] = i - gd * v;
+      ieq[1] = -ieq[0]!;
+      stampPins(m, idx, g, ieq);
+    },
+    point(x): DiodePoint {
+      const vj = volt(x, inner) - volt(x, cathode.index);
+      evaluate(vj);
+      const id = junctionOut[0]!;
+      const gd = junctionOut[1]!;
+      const vd = volt(x, anode.index) - volt(x, cathode.index);
+      const rd = 1 / gd + rs;
+      const gEff = 1 / rd;
+      return {
+        kind: "diode",
+        id,
+        vd,
+        power: vd * id,
+        rd,
+        linear: { pins: [anode.node, cathode.node], y: [gEff, -gEff, -gEff, gEff] },
+      };
+    },
+  };
+}

@@ -1,0 +1,116 @@
+// Why a DC system is singular, in words an engineer can act on: nodes without a DC path to
+// ground, and loops of branches that each fix a voltage (sources, zero-resistance inductors,
+// voltage-output controlled sources). Run on the compiled plan before Newton, and used to
+// explain a singular factorisation.
+import type { DeviceInstance } from "../devices/device.js";
+import type { Plan } from "./plan.js";
+
+export interface Diagnosis {
+  readonly reason: string;
+  readonly parts: readonly string[];
+  readonly nodes: readonly string[];
+}
+
+class UnionFind {
+  private readonly parent = new Map<string, string>();
+  find(a: string): string {
+    let p = this.parent.get(a) ?? a;
+    if (p === a) return a;
+    p = this.find(p);
+    this.parent.set(a, p);
+    return p;
+  }
+  union(a: string, b: string): boolean {
+    const ra = this.find(a);
+    const rb = this.find(b);
+    if (ra === rb) return false;
+    // Deterministic: the lexically smaller root wins.
+    if (ra < rb) this.parent.set(rb, ra);
+    else this.parent.set(ra, rb);
+    return true;
+  }
+}
+
+function listWords(items: readonly string[]): string {
+  if (items.length <= 1) return items.join("");
+  return `${items.slice(0, -1).join(", ")} and ${items[items.length - 1]}`;
+}
+
+/** Nodes with no DC path to ground (through resistors, junctions, channels, sources, inductors). */
+export function findFloatingNodes(plan: Plan): Diagnosis | undefined {
+  const ground = plan.circuit.ground;
+  const uf = new UnionFind();
+  for (const d of plan.devices) for (const [p, q] of d.dcLinks) uf.union(p, q);
+  const groundRoot = uf.find(ground);
+  const floating = [...plan.nodeIndex.keys()].filter((nd) => uf.find(nd) !== groundRoot).sort();
+  if (floating.length === 0) return undefined;
+  const set = new Set(floating);
+  const parts = plan.devices.filter((d) => d.terminals.some((t) => set.has(t.node))).map((d) => d.id);
+  const what = floating.length === 1 ? `node \`${floating[0]}\` has` : `nodes ${listWords(floating.map((f) => `\`${f}\``))} have`;
+  const via = parts.length ? ` (it meets only ${listWords(parts)}, which carry no DC current to fix its voltage)` : "";
+  return {
+    reason: `${what} no DC path to ground${via}; add a DC path (e.g. a bias resistor) to ${floating.length === 1 ? "it" : "them"}`,
+    parts,
+    nodes: floating,
+  };
+}
+
+/** A loop made only of voltage-fixing branches (two sources in parallel, a source shorted by an inductor…). */
+export function findVoltageLoop(plan: Plan): Diagnosis | undefined {
+  const uf = new UnionFind();
+  const edges: { d: DeviceInstance; p: string; q: string }[] = [];
+  for (const d of plan.devices) {
+    for (const [p, q] of d.voltageLinks) {
+      if (p === q || !uf.union(p, q)) {
+        const path = p === q ? [] : pathBetween(edges, p, q);
+        const members = [...path.map((e) => e.d), d];
+        const ids = members.map((m) => m.id);
+        const nodes = [...new Set(members.flatMap((m) => m.voltageLinks.flat()))].sort();
+        const allSources = members.every((m) => m.kind === "voltage-source");
+        const noun = allSources ? "voltage sources" : "voltage-fixing branches (sources, zero-resistance inductors, controlled voltage sources)";
+        const reason =
+          p === q
+            ? `${d.id} has both pins on node \`${p}\`, so its voltage equation cannot hold; connect it across two different nodes`
+            : `${noun} ${listWords(ids)} form a loop through ${listWords(nodes.map((nd) => `\`${nd}\``))}, so their voltages cannot all hold; remove one or put a resistance in the loop`;
+        return { reason, parts: ids, nodes };
+      }
+      edges.push({ d, p, q });
+    }
+  }
+  return undefined;
+}
+
+/** Path of edges between two nodes in a forest (breadth-first). */
+function pathBetween(edges: readonly { d: DeviceInstance; p: string; q: string }[], from: string, to: string) {
+  type Edge = (typeof edges)[number];
+  const adj = new Map<string, { next: string; e: Edge }[]>();
+  for (const e of edges) {
+    (adj.get(e.p) ?? adj.set(e.p, []).get(e.p)!).push({ next: e.q, e });
+    (adj.get(e.q) ?? adj.set(e.q, []).get(e.q)!).push({ next: e.p, e });
+  }
+  const back = new Map<string, { prev: string; e: Edge }>();
+  const queue = [from];
+  const seen = new Set([from]);
+  while (queue.length) {
+    const cur = queue.shift()!;
+    if (cur === to) break;
+    for (const { next, e } of adj.get(cur) ?? []) {
+      if (seen.has(next)) continue;
+      seen.add(next);
+      back.set(next, { prev: cur, e });
+      queue.push(next);
+    }
+  }
+  const path: Edge[] = [];
+  for (let cur = to; cur !== from; ) {
+    const step = back.get(cur);
+    if (!step) break;
+    path.unshift(step.e);
+    cur = step.prev;
+  }
+  return path;
+}
+
+export function diagnoseTopology(plan: Plan): Diagnosis | undefined {
+  return findVoltageLoop(plan) ?? findFloatingNodes(plan);
+}

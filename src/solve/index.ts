@@ -1,0 +1,93 @@
+// Public entry of the bias solve: the DC operating point of a resolved Circuit by Newton–Raphson
+// on modified nodal analysis, with gmin stepping and then source stepping when plain Newton
+// fails. Pure and deterministic: the same circuit gives bit-identical results.
+import type { Circuit } from "../circuit/types.js";
+import { diagnoseTopology } from "./diagnose.js";
+import { PLAIN_ITERATION_CAP } from "./convergence.js";
+import { gminStepping } from "./gmin-stepping.js";
+import { denseLu, type LinearSolverFactory } from "./linear-solver.js";
+import { newRecord, newton, type NewtonRecord } from "./newton.js";
+import { compilePlan, describeUnknown, type Plan } from "./plan.js";
+import { readOperatingPoint } from "./point.js";
+import { sourceStepping } from "./source-stepping.js";
+import type { ConvergenceAid, SolveFailure, SolveResult } from "./types.js";
+
+export type * from "./types.js";
+export { renderOperatingPoint } from "./table.js";
+
+export interface SolveOptions {
+  /** Linear solver of the Newton step (default: our dense LU). The benchmark swaps it. */
+  readonly linearSolver?: LinearSolverFactory;
+  /** Skip the stages before this aid (tests use it to exercise each aid on its own). */
+  readonly startWith?: ConvergenceAid;
+}
+
+const AIDS: readonly ConvergenceAid[] = ["none", "gmin-stepping", "source-stepping"];
+
+export function solveOperatingPoint(circuit: Circuit, options: SolveOptions = {}): SolveResult {
+  const compiled = compilePlan(circuit);
+  if (!compiled.ok) return failure(compiled.reason, compiled.parts, [], "none", 0, Infinity);
+  const plan = compiled.plan;
+  const topo = diagnoseTopology(plan);
+  if (topo) return failure(topo.reason, topo.parts, topo.nodes, "none", 0, Infinity);
+
+  const solver = (options.linearSolver ?? denseLu)(plan.n);
+  const rec = newRecord();
+  const total = { iterations: 0 };
+  const first = AIDS.indexOf(options.startWith ?? "none");
+  let lastStatus: NewtonRecord["status"] = "not-converged";
+  let singular = -1;
+  for (let k = first; k < AIDS.length; k++) {
+    const aid = AIDS[k]!;
+    let ok: boolean;
+    if (aid === "none") {
+      plan.x.fill(0);
+      for (const d of plan.nonlinear) d.reset?.();
+      newton(plan, solver, { gmin: 0, sourceScale: 1, init: true, maxIterations: PLAIN_ITERATION_CAP }, rec);
+      total.iterations += rec.iterations;
+      ok = rec.status === "converged";
+    } else if (aid === "gmin-stepping") {
+      ok = gminStepping(plan, solver, rec, total);
+    } else {
+      ok = sourceStepping(plan, solver, rec, total);
+    }
+    lastStatus = rec.status;
+    if (rec.status === "singular" && singular < 0) singular = rec.singularColumn;
+    if (ok) {
+      const op = readOperatingPoint(plan, { iterations: total.iterations, residual: rec.residual, aid });
+      if ("bad" in op) return failure(`the solve produced a non-finite value at ${op.bad}`, [], [], aid, total.iterations, rec.residual);
+      return op;
+    }
+  }
+  return nonConvergence(plan, rec, lastStatus, singular, total.iterations);
+}
+
+function failure(
+  reason: string,
+  parts: readonly string[],
+  nodes: readonly string[],
+  aid: ConvergenceAid,
+  iterations: number,
+  residual: number,
+): SolveFailure {
+  return { ok: false, reason, parts, nodes, stats: { iterations, residual, aid } };
+}
+
+/** Names the unknowns where the solve struggled most and the parts attached to them. */
+function nonConvergence(plan: Plan, rec: NewtonRecord, status: NewtonRecord["status"], singular: number, iterations: number): SolveFailure {
+  const worst = [singular, rec.worstUpdate, rec.worstResidual].filter((i) => i >= 0);
+  const unknowns = [...new Set(worst)].map((i) => plan.unknowns[i]!);
+  const nodes = [...new Set(unknowns.filter((u) => u.kind === "node").map((u) => u.name))];
+  const owners = new Set(unknowns.filter((u) => u.owner).map((u) => u.owner!));
+  const touching = plan.devices.filter((d) => owners.has(d.id) || d.terminals.some((t) => nodes.includes(t.node)));
+  const nonlinear = touching.filter((d) => d.nonlinear);
+  const parts = (nonlinear.length ? nonlinear : touching).map((d) => d.id);
+  const where = unknowns.map(describeUnknown).join(" and ");
+  const why =
+    singular >= 0 && status === "singular"
+      ? `the DC equations are singular at ${describeUnknown(plan.unknowns[singular]!)}`
+      : `the operating point did not converge (plain Newton, gmin stepping and source stepping all failed)`;
+  const at = where ? `; the largest changes and residuals were at ${where}` : "";
+  const near = parts.length ? ` near ${parts.join(", ")}` : "";
+  return failure(`${why}${at}${near}; check the bias network there`, parts, nodes, "source-stepping", iterations, rec.residual);
+}

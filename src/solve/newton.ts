@@ -1,0 +1,146 @@
+// One Newton–Raphson run on a compiled plan: stamp the companion models at the trial point,
+// test convergence on both the last update and the KCL residual, factor, solve, repeat.
+// Nothing in the loop allocates; the convergence aids call this with a shunt conductance
+// (gmin stepping) or a source scale (source stepping).
+import type { IterationState } from "../devices/device.js";
+import {
+  BRANCH_RESIDUAL_ABSTOL,
+  CURRENT_ABSTOL,
+  RESIDUAL_ABSTOL,
+  RESIDUAL_RELTOL,
+  UPDATE_RELTOL,
+  VOLTAGE_ABSTOL,
+} from "./convergence.js";
+import type { LinearSolver } from "./linear-solver.js";
+import type { Plan } from "./plan.js";
+
+export interface NewtonSettings {
+  /** Shunt conductance from every node to ground, S (0 = the real circuit). */
+  readonly gmin: number;
+  /** Factor on every independent source (1 = the real circuit). */
+  readonly sourceScale: number;
+  /** Start from the devices' initial-guess junction voltages instead of the present x. */
+  readonly init: boolean;
+  readonly maxIterations: number;
+}
+
+export type NewtonStatus = "converged" | "singular" | "not-converged" | "non-finite";
+
+/** Mutable record of one run, reused across runs to keep the loop allocation-free. */
+export interface NewtonRecord {
+  status: NewtonStatus;
+  iterations: number;
+  /** Largest KCL residual (node rows) at the last residual evaluation, A. */
+  residual: number;
+  /** Unknown with the largest residual relative to its tolerance at the last evaluation. */
+  worstResidual: number;
+  /** Unknown with the largest last update relative to its tolerance. */
+  worstUpdate: number;
+  /** Column without a pivot when status is "singular". */
+  singularColumn: number;
+}
+
+export function newRecord(): NewtonRecord {
+  return { status: "not-converged", iterations: 0, residual: Infinity, worstResidual: -1, worstUpdate: -1, singularColumn: -1 };
+}
+
+/** Runs Newton from plan.x; on "converged" plan.x is the answer at these settings. */
+export function newton(plan: Plan, solver: LinearSolver, s: NewtonSettings, rec: NewtonRecord): NewtonRecord {
+  const { n, a, b, x, xNew, aStatic, bSource, isNodeRow, nonlinear, target } = plan;
+  const st: IterationState = { init: false, limited: false };
+  // A linear network needs no update test: one exact solve is the answer.
+  let updateOk = nonlinear.length === 0;
+  rec.status = "not-converged";
+  rec.iterations = 0;
+  rec.worstUpdate = -1;
+  rec.worstResidual = -1;
+  rec.singularColumn = -1;
+  for (let iter = 0; iter < s.maxIterations; iter++) {
+    a.set(aStatic);
+    const scale = s.sourceScale;
+    for (let i = 0; i < n; i++) b[i] = scale * bSource[i]!;
+    if (s.gmin > 0) for (let i = 0; i < n; i++) if (isNodeRow[i]) a[i * n + i]! += s.gmin;
+    st.init = s.init && iter === 0;
+    st.limited = false;
+    for (let d = 0; d < nonlinear.length; d++) nonlinear[d]!.stampNonlinear!(x, target, st);
+
+    if (!st.init && !st.limited && updateOk && residualOk(plan, rec)) {
+      rec.status = "converged";
+      return rec;
+    }
+
+    rec.iterations++;
+    const col = solver.factor(a);
+    if (col >= 0) {
+      rec.status = "singular";
+      rec.singularColumn = col;
+      return rec;
+    }
+    xNew.set(b);
+    solver.solve(xNew);
+
+    updateOk = true;
+    let worst = 0;
+    for (let i = 0; i < n; i++) {
+      const xn = xNew[i]!;
+      if (!Number.isFinite(xn)) {
+        rec.status = "non-finite";
+        rec.worstUpdate = i;
+        return rec;
+      }
+      const xo = x[i]!;
+      const tol = (isNodeRow[i] ? VOLTAGE_ABSTOL : CURRENT_ABSTOL) + UPDATE_RELTOL * Math.max(Math.abs(xn), Math.abs(xo));
+      const ratio = Math.abs(xn - xo) / tol;
+      if (ratio > 1) updateOk = false;
+      if (ratio > worst) {
+        worst = ratio;
+        rec.worstUpdate = i;
+      }
+    }
+    x.set(xNew);
+  }
+  // One last look: the final update may have landed on the answer.
+  a.set(aStatic);
+  for (let i = 0; i < n; i++) b[i] = s.sourceScale * bSource[i]!;
+  if (s.gmin > 0) for (let i = 0; i < n; i++) if (isNodeRow[i]) a[i * n + i]! += s.gmin;
+  st.init = false;
+  st.limited = false;
+  for (let d = 0; d < nonlinear.length; d++) nonlinear[d]!.stampNonlinear!(x, target, st);
+  if (!st.limited && updateOk && residualOk(plan, rec)) rec.status = "converged";
+  return rec;
+}
+
+/**
+ * KCL residual r = a·x − b of the system stamped at x itself (no limiting active), which is the
+ * sum of device currents leaving each node. Records the largest node-row residual.
+ */
+function residualOk(plan: Plan, rec: NewtonRecord): boolean {
+  const { n, a, b, x, isNodeRow } = plan;
+  let ok = true;
+  let maxNode = 0;
+  let worst = 0;
+  for (let i = 0; i < n; i++) {
+    const row = i * n;
+    let r = -b[i]!;
+    let scale = Math.abs(b[i]!);
+    for (let j = 0; j < n; j++) {
+      const aij = a[row + j]!;
+      if (aij === 0) continue;
+      const t = aij * x[j]!;
+      r += t;
+      const at = Math.abs(t);
+      if (at > scale) scale = at;
+    }
+    const ar = Math.abs(r);
+    const tol = (isNodeRow[i] ? RESIDUAL_ABSTOL : BRANCH_RESIDUAL_ABSTOL) + RESIDUAL_RELTOL * scale;
+    if (!(ar <= tol)) ok = false;
+    if (isNodeRow[i] && ar > maxNode) maxNode = ar;
+    const ratio = ar / tol;
+    if (ratio > worst || Number.isNaN(ratio)) {
+      worst = ratio;
+      rec.worstResidual = i;
+    }
+  }
+  rec.residual = maxNode;
+  return ok;
+}

@@ -1,0 +1,165 @@
+// The compiled plan of one circuit: node names mapped to unknown indices once, one device
+// instance per component, and every array the Newton loop needs, preallocated.
+import type { Circuit, Component } from "../circuit/types.js";
+import { bjt } from "../devices/bjt.js";
+import { capacitor } from "../devices/capacitor.js";
+import { currentControlled, voltageControlled } from "../devices/controlled.js";
+import { currentSource } from "../devices/current-source.js";
+import { DeviceSetupError, type DeviceInstance, type SetupContext, type StampTarget } from "../devices/device.js";
+import { diode } from "../devices/diode.js";
+import { inductor } from "../devices/inductor.js";
+import { mosfet } from "../devices/mosfet.js";
+import { resistor } from "../devices/resistor.js";
+import { voltageSource, type VoltageSourceInstance } from "../devices/voltage-source.js";
+
+export type UnknownKind = "node" | "internal" | "branch";
+
+export interface Unknown {
+  readonly kind: UnknownKind;
+  /** Node name, internal node label, or the id of the device owning the branch. */
+  readonly name: string;
+  /** Device that owns an internal node or branch. */
+  readonly owner?: string;
+}
+
+export interface Plan {
+  readonly circuit: Circuit;
+  readonly n: number;
+  readonly unknowns: readonly Unknown[];
+  readonly nodeIndex: ReadonlyMap<string, number>;
+  readonly devices: readonly DeviceInstance[];
+  readonly nonlinear: readonly DeviceInstance[];
+  /** Linear part of the Jacobian, stamped once. */
+  readonly aStatic: Float64Array;
+  /** Independent sources at full value. */
+  readonly bSource: Float64Array;
+  /** Working arrays of the Newton loop. */
+  readonly a: Float64Array;
+  readonly b: Float64Array;
+  readonly x: Float64Array;
+  readonly xNew: Float64Array;
+  /** 1 for a KCL row, 0 for a branch-equation row. */
+  readonly isNodeRow: Uint8Array;
+  readonly target: StampTarget;
+}
+
+export type CompileResult =
+  | { readonly ok: true; readonly plan: Plan }
+  | { readonly ok: false; readonly reason: string; readonly parts: readonly string[] };
+
+function instantiate(c: Component, ctx: SetupContext): DeviceInstance {
+  switch (c.kind) {
+    case "resistor":
+      return resistor(c, ctx);
+    case "capacitor":
+      return capacitor(c, ctx);
+    case "inductor":
+      return inductor(c, ctx);
+    case "voltage-source":
+      return voltageSource(c, ctx);
+    case "current-source":
+      return currentSource(c, ctx);
+    case "diode":
+      return diode(c, ctx);
+    case "npn":
+    case "pnp":
+      return bjt(c, ctx);
+    case "nmos":
+    case "pmos":
+      return mosfet(c, ctx);
+    case "vcvs":
+    case "vccs":
+      return voltageControlled(c, ctx);
+    case "cccs":
+    case "ccvs":
+      return currentControlled(c, ctx);
+  }
+}
+
+export function compilePlan(circuit: Circuit): CompileResult {
+  const unknowns: Unknown[] = [];
+  const nodeIndex = new Map<string, number>();
+  for (const name of circuit.nodes) {
+    if (name === circuit.ground || nodeIndex.has(name)) continue;
+    nodeIndex.set(name, unknowns.length);
+    unknowns.push({ kind: "node", name });
+  }
+  const ctx: SetupContext = {
+    circuit,
+    temperature: circuit.temperature,
+    node(name) {
+      if (name === circuit.ground) return -1;
+      let i = nodeIndex.get(name);
+      if (i === undefined) {
+        // A pin on a node the loader did not list: still solvable, so give it an unknown.
+        i = unknowns.length;
+        nodeIndex.set(name, i);
+        unknowns.push({ kind: "node", name });
+      }
+      return i;
+    },
+    internalNode(label, owner) {
+      unknowns.push({ kind: "internal", name: label, owner });
+      return unknowns.length - 1;
+    },
+    branch(owner) {
+      unknowns.push({ kind: "branch", name: owner, owner });
+      return unknowns.length - 1;
+    },
+    model: (id) => circuit.models.get(id),
+  };
+  const devices: DeviceInstance[] = [];
+  const vsources = new Map<string, VoltageSourceInstance>();
+  try {
+    for (const c of circuit.components) {
+      const d = instantiate(c, ctx);
+      devices.push(d);
+      if (c.kind === "voltage-source") vsources.set(c.id, d as VoltageSourceInstance);
+    }
+  } catch (err) {
+    if (err instanceof DeviceSetupError) return { ok: false, reason: err.message, parts: err.parts };
+    throw err;
+  }
+  for (const d of devices) {
+    const msg = d.bind?.({ voltageSourceBranch: (id) => vsources.get(id)?.branchIndex });
+    if (msg !== undefined) return { ok: false, reason: msg, parts: [d.id] };
+  }
+  const n = unknowns.length;
+  const aStatic = new Float64Array(n * n);
+  const bSource = new Float64Array(n);
+  const staticTarget: StampTarget = { a: aStatic, b: bSource, n };
+  for (const d of devices) {
+    d.stampStatic?.(staticTarget);
+    d.stampSource?.(bSource);
+  }
+  const isNodeRow = new Uint8Array(n);
+  unknowns.forEach((u, i) => (isNodeRow[i] = u.kind === "branch" ? 0 : 1));
+  const a = new Float64Array(n * n);
+  const b = new Float64Array(n);
+  return {
+    ok: true,
+    plan: {
+      circuit,
+      n,
+      unknowns,
+      nodeIndex,
+      devices,
+      nonlinear: devices.filter((d) => d.nonlinear),
+      aStatic,
+      bSource,
+      a,
+      b,
+      x: new Float64Array(n),
+      xNew: new Float64Array(n),
+      isNodeRow,
+      target: { a, b, n },
+    },
+  };
+}
+
+/** Human name of an unknown for messages: "node `b`", "the branch of VCC", "node `D1#junction`". */
+export function describeUnknown(u: Unknown): string {
+  if (u.kind === "node") return `node \`${u.name}\``;
+  if (u.kind === "internal") return `the internal node of ${u.owner}`;
+  return `the branch current of ${u.name}`;
+}

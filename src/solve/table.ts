@@ -1,0 +1,126 @@
+// A readable text rendering of an operating point: node voltages, sources and one table per
+// device family, SI-prefixed values with units in aligned columns (for `opgate inspect`).
+import type { OperatingPoint, SolveResult } from "./types.js";
+
+const PREFIXES: readonly [number, string][] = [
+  [1e12, "T"],
+  [1e9, "G"],
+  [1e6, "M"],
+  [1e3, "k"],
+  [1, ""],
+  [1e-3, "m"],
+  [1e-6, "µ"],
+  [1e-9, "n"],
+  [1e-12, "p"],
+  [1e-15, "f"],
+];
+
+/** Formats an SI value with a prefix and three significant digits: 0.00123 A → "1.23 mA". */
+export function formatSi(value: number, unit: string): string {
+  if (Number.isNaN(value)) return "—";
+  if (!Number.isFinite(value)) return `${value > 0 ? "" : "−"}∞ ${unit}`.trim();
+  if (value === 0) return `0 ${unit}`.trim();
+  const mag = Math.abs(value);
+  // Below a femto-unit the value is numerical noise or leakage; show it plainly.
+  if (mag < 1e-15) return `${value.toExponential(1)} ${unit}`.trim();
+  let [scale, prefix] = PREFIXES[PREFIXES.length - 1]!;
+  for (const [s, p] of PREFIXES) {
+    if (mag >= s * 0.9995) {
+      scale = s;
+      prefix = p;
+      break;
+    }
+  }
+  if (mag >= 1e15) return `${value.toExponential(2)} ${unit}`.trim();
+  const scaled = value / scale;
+  const digits = Math.abs(scaled) >= 99.95 ? 0 : Math.abs(scaled) >= 9.995 ? 1 : 2;
+  return `${scaled.toFixed(digits).replace("-", "−")} ${prefix}${unit}`.trim();
+}
+
+/** Left-aligns the first column and right-aligns the rest. */
+export function alignTable(rows: readonly (readonly string[])[]): string {
+  const widths: number[] = [];
+  for (const r of rows) r.forEach((c, i) => (widths[i] = Math.max(widths[i] ?? 0, [...c].length)));
+  return rows
+    .map((r) =>
+      r
+        .map((c, i) => {
+          const pad = " ".repeat(widths[i]! - [...c].length);
+          return i === 0 ? c + pad : pad + c;
+        })
+        .join("  ")
+        .trimEnd(),
+    )
+    .join("\n");
+}
+
+function section(title: string, header: readonly string[], rows: string[][]): string {
+  if (rows.length === 0) return "";
+  return `${title}\n${alignTable([header, ...rows])
+    .split("\n")
+    .map((l) => `  ${l}`)
+    .join("\n")}\n`;
+}
+
+export function renderOperatingPoint(op: OperatingPoint): string {
+  const out: string[] = [];
+  out.push(
+    section(
+      "Node voltages",
+      ["node", "voltage"],
+      Object.keys(op.nodes)
+        .sort()
+        .map((n) => [n, formatSi(op.nodes[n]!, "V")]),
+    ),
+  );
+  out.push(
+    section(
+      "Sources",
+      ["source", "voltage", "current", "power"],
+      Object.entries(op.sources).map(([id, s]) => [id, formatSi(s.voltage, "V"), formatSi(s.current, "A"), formatSi(s.power, "W")]),
+    ),
+  );
+  const bjts: string[][] = [];
+  const mos: string[][] = [];
+  const diodes: string[][] = [];
+  const passive: string[][] = [];
+  for (const [id, d] of Object.entries(op.devices)) {
+    switch (d.kind) {
+      case "npn":
+      case "pnp":
+        bjts.push([id, d.kind, d.region, formatSi(d.ic, "A"), formatSi(d.ib, "A"), formatSi(d.vbe, "V"), formatSi(d.vce, "V"), formatSi(d.headroom, "V"), formatSi(d.power, "W"), formatSi(d.gm, "S"), formatSi(d.rpi, "Ω"), formatSi(d.ro, "Ω")]);
+        break;
+      case "nmos":
+      case "pmos":
+        mos.push([id, d.kind, d.region, formatSi(d.id, "A"), formatSi(d.vgs, "V"), formatSi(d.vds, "V"), formatSi(d.vov, "V"), formatSi(d.vth, "V"), formatSi(d.headroom, "V"), formatSi(d.power, "W"), formatSi(d.gm, "S"), formatSi(d.ro, "Ω")]);
+        break;
+      case "diode":
+        diodes.push([id, formatSi(d.id, "A"), formatSi(d.vd, "V"), formatSi(d.rd, "Ω"), formatSi(d.power, "W")]);
+        break;
+      case "resistor":
+      case "inductor":
+        passive.push([id, d.kind, formatSi(d.voltage, "V"), formatSi(d.current, "A"), formatSi(d.power, "W")]);
+        break;
+      case "capacitor":
+        passive.push([id, d.kind, formatSi(d.voltage, "V"), "", ""]);
+        break;
+      default:
+        passive.push([id, d.kind, formatSi(d.voltage, "V"), formatSi(d.current, "A"), formatSi(d.power, "W")]);
+    }
+  }
+  out.push(section("Bipolar transistors", ["part", "kind", "region", "ic", "ib", "vbe", "vce", "headroom", "power", "gm", "rpi", "ro"], bjts));
+  out.push(section("MOSFETs", ["part", "kind", "region", "id", "vgs", "vds", "vov", "vth", "headroom", "power", "gm", "ro"], mos));
+  out.push(section("Diodes", ["part", "id", "vd", "rd", "power"], diodes));
+  out.push(section("Other components", ["part", "kind", "voltage", "current", "power"], passive));
+  const s = op.stats;
+  out.push(`Solved in ${s.iterations} Newton iterations (aid: ${s.aid}), largest KCL residual ${formatSi(s.residual, "A")}.\n`);
+  return out.filter(Boolean).join("\n");
+}
+
+/** The table for a solved circuit, or the reason and the parts for one that could not be solved. */
+export function renderSolveResult(result: SolveResult): string {
+  if (result.ok) return renderOperatingPoint(result);
+  const parts = result.parts.length ? `\n  parts: ${result.parts.join(", ")}` : "";
+  const nodes = result.nodes.length ? `\n  nodes: ${result.nodes.join(", ")}` : "";
+  return `No operating point: ${result.reason}${parts}${nodes}\n`;
+}
