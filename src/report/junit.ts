@@ -21,7 +21,7 @@ function findingText(c: CircuitResult, f: Finding): string {
   const numbers = measuredVsLimit(f);
   const scenario = c.scenarios.find((s) => s.id === f.scenario);
   const where = scenario && scenario.label && scenario.label !== f.scenario ? `${f.scenario} (${scenario.label})` : f.scenario;
-  return `${findingLocation(f)}: ${f.severity}: ${f.message}${numbers ? ` — ${numbers}${f.unit ? ` [${f.unit}]` : ""}` : ""}; worst scenario ${where}`;
+  return `${findingLocation(f)}: ${f.severity}: ${f.message}${numbers ? ` — ${numbers}` : ""}; worst scenario ${where}`;
 }
 
 function passedText(p: PassedCheck): string {

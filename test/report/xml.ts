@@ -19,6 +19,16 @@ function decode(text: string): string {
   });
 }
 
+/** The `>` that ends the tag at `lt`: `>` is legal inside quoted attribute values. */
+function tagEnd(source: string, lt: number): number {
+  let quoted = false;
+  for (let j = lt + 1; j < source.length; j++) {
+    if (source[j] === '"') quoted = !quoted;
+    else if (source[j] === ">" && !quoted) return j;
+  }
+  throw new Error("unterminated tag");
+}
+
 export function parseXml(source: string): XmlElement {
   let i = 0;
   const root: XmlElement = { name: "#document", attributes: {}, children: [], text: "" };
@@ -47,8 +57,7 @@ export function parseXml(source: string): XmlElement {
       stack.pop();
       i = end + 1;
     } else {
-      const end = source.indexOf(">", lt);
-      if (end < 0) throw new Error("unterminated tag");
+      const end = tagEnd(source, lt);
       const selfClosing = source[end - 1] === "/";
       const body = source.slice(lt + 1, selfClosing ? end - 1 : end);
       const nameMatch = /^[\w:.-]+/.exec(body);
