@@ -3,6 +3,7 @@ import yargs from "yargs";
 import { CliExit, EXIT_INPUT, type CliIo } from "./io.js";
 import { checkCommand } from "./check.js";
 import { schemaCommand } from "./schema.js";
+import { inspectCommand } from "./inspect.js";
 
 export type CommandHandler = (args: Record<string, unknown>, io: CliIo) => Promise<number>;
 
@@ -13,7 +14,7 @@ export interface CommandSpec {
   readonly handler: CommandHandler;
 }
 
-const COMMANDS: readonly CommandSpec[] = [checkCommand, schemaCommand];
+const COMMANDS: readonly CommandSpec[] = [checkCommand, inspectCommand, schemaCommand];
 
 /** Runs the CLI with `argv` (without node and script) and returns the exit code. */
 export async function run(argv: readonly string[], io: CliIo): Promise<number> {
