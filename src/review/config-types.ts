@@ -7,6 +7,8 @@ export interface RuleSetting {
   readonly severity?: Severity | "off";
   readonly options?: Readonly<Record<string, unknown>>;
   readonly pos?: SourcePos;
+  /** Position of each key under `options`, for option errors (added by the review stage). */
+  readonly optionsPos?: Readonly<Record<string, SourcePos>>;
 }
 
 export interface ResolvedConfig {

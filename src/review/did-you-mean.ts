@@ -16,11 +16,15 @@ export function editDistance(a: string, b: string): number {
   return prev[t.length]!;
 }
 
-/** The closest candidate within a third of the word's length (at least 2 edits), or undefined. */
+/** A candidate the word is the start of, else the closest candidate within a third of the word's length (at least 2 edits), or undefined. */
 export function closest(word: string, candidates: Iterable<string>): string | undefined {
+  const list = [...candidates];
+  // A clipped word ("warn" for "warning") is a likelier slip than any edit distance suggests.
+  const extended = list.filter((c) => word.length >= 3 && c.toLowerCase().startsWith(word.toLowerCase())).sort();
+  if (extended.length === 1) return extended[0];
   let best: string | undefined;
   let bestDistance = Infinity;
-  for (const c of candidates) {
+  for (const c of list) {
     const d = editDistance(word, c);
     if (d < bestDistance || (d === bestDistance && best !== undefined && c < best)) {
       best = c;
