@@ -3,6 +3,8 @@ import yargs from "yargs";
 import { CliExit, EXIT_INPUT, type CliIo } from "./io.js";
 import { checkCommand } from "./check.js";
 import { schemaCommand } from "./schema.js";
+import { initCommand } from "./init.js";
+import { rulesCommand } from "./rules.js";
 import { inspectCommand } from "./inspect.js";
 
 export type CommandHandler = (args: Record<string, unknown>, io: CliIo) => Promise<number>;
@@ -14,7 +16,7 @@ export interface CommandSpec {
   readonly handler: CommandHandler;
 }
 
-const COMMANDS: readonly CommandSpec[] = [checkCommand, inspectCommand, schemaCommand];
+const COMMANDS: readonly CommandSpec[] = [checkCommand, initCommand, inspectCommand, rulesCommand, schemaCommand];
 
 /** Runs the CLI with `argv` (without node and script) and returns the exit code. */
 export async function run(argv: readonly string[], io: CliIo): Promise<number> {
