@@ -1,15 +1,24 @@
 // One circuit file through every stage: load → scenarios → bias solve → small-signal → rules,
 // gathered into the file's entry of the results document. Never throws for a bad file.
-import type { CircuitResult, RuleEntry } from "../report/document.js";
+import type { CircuitResult, Finding, RuleEntry, Severity } from "../report/document.js";
 import type { ResolvedConfig } from "../review/config-types.js";
+import type { ConfiguredRule } from "../review/engine.js";
+import { runRules } from "../review/engine.js";
 import { loadCircuitFile } from "../circuit/index.js";
-import type { InputError } from "../circuit/types.js";
+import type { Circuit, InputError } from "../circuit/types.js";
+import { solveOperatingPoint } from "../solve/index.js";
+import { analyseSmallSignal } from "../smallsignal/index.js";
+import { buildScenarios } from "../variation/index.js";
+import type { ScenarioAnalysis } from "./types.js";
+import { gainEntries, operatingPointEntry } from "./entries.js";
 
 /** Everything a check needs besides the file; built once per process (or worker). */
 export interface CheckContext {
   readonly config: ResolvedConfig;
   /** Metadata of every rule in play (built-in and plugins), for the results document. */
   readonly rules: readonly RuleEntry[];
+  /** The rules with their configured severity and validated options. */
+  readonly configured: readonly ConfiguredRule[];
   /** Paths in results are relative to this folder (forward slashes). */
   readonly root: string;
 }
@@ -20,9 +29,17 @@ export interface CheckContextOptions {
   readonly configPath?: string;
   /** `--rule id=severity` flags. */
   readonly ruleFlags?: readonly string[];
+  /** `--fail-on` flag. */
+  readonly failOn?: Severity;
 }
 
-export function inputErrorFindings(errors: readonly InputError[], file: string): CircuitResult["findings"] {
+const SEVERITY_RANK: Readonly<Record<Severity, number>> = { note: 0, warning: 1, error: 2 };
+
+export function reachesFailOn(severity: Severity, failOn: Severity): boolean {
+  return SEVERITY_RANK[severity] >= SEVERITY_RANK[failOn];
+}
+
+export function inputErrorFindings(errors: readonly InputError[], file: string): Finding[] {
   return errors.map((e) => ({
     rule: "input",
     severity: "error" as const,
@@ -40,29 +57,59 @@ export function inputErrorFindings(errors: readonly InputError[], file: string):
   }));
 }
 
-export async function checkFile(absPath: string, ctx: CheckContext, displayPath: string): Promise<CircuitResult> {
-  const loaded = await loadCircuitFile(absPath, { displayPath });
-  if (!loaded.ok) {
+function errorResult(file: string, name: string | null, findings: Finding[]): CircuitResult {
+  return { file, name, status: "error", operatingPoint: null, gains: [], scenarios: [], findings, passed: [] };
+}
+
+/** Solves and linearises one scenario; a throw inside a stage becomes a solve failure, not a crash. */
+function analyse(scenario: ScenarioAnalysis["scenario"]): ScenarioAnalysis {
+  try {
+    const solve = solveOperatingPoint(scenario.circuit);
+    const smallSignal = solve.ok ? analyseSmallSignal(scenario.circuit, solve) : null;
+    return { scenario, solve, smallSignal };
+  } catch (err) {
+    const reason = `internal error while solving: ${err instanceof Error ? err.message : String(err)}`;
     return {
-      file: displayPath,
-      name: null,
-      status: "error",
-      operatingPoint: null,
-      gains: [],
-      scenarios: [],
-      findings: inputErrorFindings(loaded.errors, displayPath),
-      passed: [],
+      scenario,
+      solve: { ok: false, reason, parts: [], nodes: [], stats: { iterations: 0, residual: NaN, aid: "none" } },
+      smallSignal: null,
     };
   }
-  void ctx;
+}
+
+/** Checks an already loaded circuit (also used by tests and the rule tester). */
+export async function checkCircuit(circuit: Circuit, ctx: CheckContext, displayPath: string): Promise<CircuitResult> {
+  const scenarios = buildScenarios(circuit, ctx.config.variation);
+  const analyses = scenarios.map(analyse);
+  const { findings, passed } = await runRules({ circuit, analyses, rules: ctx.configured });
+  const located = findings.map((f) => ({ ...f, file: displayPath }));
+  const nominal = analyses[0]!;
+  const failOn = ctx.config.failOn;
+  const status = !nominal.solve.ok
+    ? "error"
+    : located.some((f) => reachesFailOn(f.severity, failOn))
+      ? "fail"
+      : "pass";
   return {
     file: displayPath,
-    name: loaded.circuit.name,
-    status: "pass",
-    operatingPoint: null,
-    gains: [],
-    scenarios: [],
-    findings: [],
-    passed: [],
+    name: circuit.name,
+    status,
+    operatingPoint: nominal.solve.ok ? operatingPointEntry(nominal.solve) : null,
+    gains: nominal.smallSignal ? gainEntries(circuit, nominal.smallSignal) : [],
+    scenarios: analyses.map((a) => ({ id: a.scenario.id, label: a.scenario.label, converged: a.solve.ok })),
+    findings: located,
+    passed,
   };
+}
+
+export async function checkFile(absPath: string, ctx: CheckContext, displayPath: string): Promise<CircuitResult> {
+  const loaded = await loadCircuitFile(absPath, { displayPath });
+  if (!loaded.ok) return errorResult(displayPath, null, inputErrorFindings(loaded.errors, displayPath));
+  try {
+    return await checkCircuit(loaded.circuit, ctx, displayPath);
+  } catch (err) {
+    // The engine isolates rules; anything reaching here is a defect of ours. Keep the run going.
+    const message = `internal error: ${err instanceof Error ? err.message : String(err)}; please report it with this file`;
+    return errorResult(displayPath, loaded.circuit.name, inputErrorFindings([{ file: displayPath, message }], displayPath));
+  }
 }
