@@ -1,70 +1,232 @@
-// `opgate check`: the gate. Finds circuit files, checks each one, prints a line per file.
-// (Foundation version: load, validate and resolve. Later stages plug in through src/pipeline.)
-import fg from "fast-glob";
-import { statSync } from "node:fs";
-import { relative, resolve } from "node:path";
-import { loadCircuitFile } from "../circuit/index.js";
+// `opgate check`: the gate. Finds circuit files, checks them (on worker threads with --jobs,
+// one slice with --shard), prints a line per file and its findings, writes the requested
+// reports, annotates the pull request under GitHub Actions, and exits 0 / 1 / 2.
+import { appendFileSync, existsSync, mkdirSync, readFileSync, statSync, writeFileSync } from "node:fs";
+import { availableParallelism } from "node:os";
+import { dirname, resolve } from "node:path";
 import type { InputError } from "../circuit/types.js";
-import { EXIT_CLEAN, EXIT_INPUT, type CliIo } from "./io.js";
+import type { CheckContext, CheckContextOptions } from "../pipeline/check-file.js";
+import { renderAnnotations } from "../report/annotations.js";
+import { diffDocuments, type BaselineDiff } from "../report/baseline.js";
+import { exitCodeFor } from "../report/build.js";
+import { colourEnabled, progressFrame, renderConsole } from "../report/console.js";
+import type { ResultsDocument, Severity } from "../report/document.js";
+import { renderJson } from "../report/json.js";
+import { renderJunit } from "../report/junit.js";
+import { renderMarkdown, truncateMarkdown } from "../report/markdown.js";
+import { renderSarif } from "../report/sarif.js";
+import { DocumentError, readDocument } from "../report/validate.js";
+import { makeCheckContext } from "../run/context.js";
+import { discoverCircuitFiles } from "../run/discover.js";
+import { runCheck } from "../run/run-check.js";
+import { parseShard, type Shard } from "../run/shard.js";
+import { CliExit, EXIT_INPUT, type CliIo } from "./io.js";
 import type { CommandSpec } from "./main.js";
 
-const CIRCUIT_GLOB = "**/*.{json,yaml,yml}";
+/** Below this many files a progress bar only flickers. */
+const PROGRESS_MIN_FILES = 20;
 
-/** Expands paths, folders and globs into a sorted, de-duplicated list of absolute file paths. */
-export async function findCircuitFiles(patterns: readonly string[], cwd: string): Promise<string[]> {
-  const found = new Set<string>();
-  for (const pattern of patterns) {
-    const abs = resolve(cwd, pattern);
-    let isDir = false;
-    let isFile = false;
-    try {
-      const st = statSync(abs);
-      isDir = st.isDirectory();
-      isFile = st.isFile();
-    } catch {
-      // not a path: treat as a glob below
-    }
-    if (isFile) found.add(abs);
-    else if (isDir) {
-      for (const f of await fg(CIRCUIT_GLOB, { cwd: abs, absolute: true, ignore: ["**/node_modules/**"] })) found.add(f);
-    } else {
-      for (const f of await fg(pattern, { cwd, absolute: true, ignore: ["**/node_modules/**"] })) found.add(f);
-    }
-  }
-  return [...found].sort();
+/** GitHub drops a step summary over 1 MiB entirely. */
+export const STEP_SUMMARY_MAX_BYTES = 1024 * 1024;
+
+const FORMATS = ["json", "junit", "markdown", "sarif"] as const;
+type Format = (typeof FORMATS)[number];
+
+export interface ReportOptions {
+  readonly baseline?: BaselineDiff;
 }
 
+export function renderFormat(format: Format, doc: ResultsDocument, options: ReportOptions): string {
+  switch (format) {
+    case "json":
+      return renderJson(doc);
+    case "junit":
+      return renderJunit(doc);
+    case "markdown":
+      return renderMarkdown(doc, options.baseline ? { baseline: options.baseline } : {});
+    case "sarif":
+      return renderSarif(doc);
+  }
+}
+
+/**
+ * Writes the reports asked for (`-` = standard output) and, under GitHub Actions, the annotations
+ * and step summary. Returns true when a report went to standard output (the console text then
+ * goes to stderr so the report stays parseable).
+ */
+export function writeReports(doc: ResultsDocument, targets: Partial<Record<Format, string>>, io: CliIo, options: ReportOptions): boolean {
+  let toStdout = false;
+  for (const format of FORMATS) {
+    const target = targets[format];
+    if (!target) continue;
+    const text = renderFormat(format, doc, options);
+    if (target === "-") {
+      io.stdout(text);
+      toStdout = true;
+      continue;
+    }
+    const path = resolve(io.cwd, target);
+    try {
+      mkdirSync(dirname(path), { recursive: true });
+      writeFileSync(path, text);
+    } catch (err) {
+      throw new CliExit(EXIT_INPUT, `cannot write the ${format} report to ${target}: ${err instanceof Error ? err.message : String(err)}`);
+    }
+  }
+  return toStdout;
+}
+
+/** Under GitHub Actions: annotations on stdout, markdown appended to the step summary (size-capped). */
+export function writeCiOutputs(doc: ResultsDocument, io: CliIo, options: ReportOptions): void {
+  if (io.env.GITHUB_ACTIONS !== "true") return;
+  io.stdout(renderAnnotations(doc));
+  const summaryFile = io.env.GITHUB_STEP_SUMMARY;
+  if (!summaryFile) return;
+  const already = existsSync(summaryFile) ? statSync(summaryFile).size : 0;
+  let markdown = renderMarkdown(doc, options.baseline ? { baseline: options.baseline } : {});
+  const room = STEP_SUMMARY_MAX_BYTES - already - 1;
+  if (Buffer.byteLength(markdown) > room) {
+    // Characters are at most 4 bytes in UTF-8: cutting to room/4 characters always fits.
+    markdown = truncateMarkdown(markdown, Math.max(0, Math.floor(room / 4)));
+    if (Buffer.byteLength(markdown) > room) return;
+  }
+  try {
+    appendFileSync(summaryFile, `${markdown}\n`);
+  } catch (err) {
+    io.stderr(`opgate: cannot append to the step summary: ${err instanceof Error ? err.message : String(err)}\n`);
+  }
+}
+
+export function readBaseline(path: string, io: CliIo): ResultsDocument {
+  const abs = resolve(io.cwd, path);
+  let text: string;
+  try {
+    text = readFileSync(abs, "utf8");
+  } catch {
+    throw new CliExit(EXIT_INPUT, `--baseline ${path}: cannot read the file (it should be an earlier --json results document)`);
+  }
+  try {
+    return readDocument(text, path);
+  } catch (err) {
+    if (err instanceof DocumentError) throw new CliExit(EXIT_INPUT, `--baseline ${err.message}`);
+    throw err;
+  }
+}
+
+/** `file:line:col: error: message — hint` for a circuit input error (also used by `opgate inspect`). */
 export function formatInputError(e: InputError): string {
   const where = e.line !== undefined ? `${e.file}:${e.line}:${e.column ?? 1}` : e.file;
   return `${where}: error: ${e.message}${e.hint ? ` — ${e.hint}` : ""}`;
 }
 
+function parseJobs(value: unknown): number {
+  if (value === undefined) return availableParallelism();
+  const n = Number(value);
+  if (!Number.isInteger(n) || n < 1) throw new CliExit(EXIT_INPUT, `--jobs ${String(value)}: expected a whole number of 1 or more`);
+  return n;
+}
+
+function stringList(value: unknown): string[] {
+  if (value === undefined) return [];
+  return (Array.isArray(value) ? value : [value]).map(String);
+}
+
+async function buildContext(options: CheckContextOptions): Promise<CheckContext> {
+  try {
+    return await makeCheckContext(options);
+  } catch (err) {
+    if (err instanceof CliExit) throw err;
+    // ConfigError messages are already `file:line:col: error: … — hint` lines.
+    throw new CliExit(EXIT_INPUT, err instanceof Error ? err.message : String(err));
+  }
+}
+
+function outputTargets(args: Record<string, unknown>, ctx: CheckContext): Partial<Record<Format, string>> {
+  const targets: Partial<Record<Format, string>> = {};
+  for (const format of FORMATS) {
+    const flag = args[format];
+    const fromConfig = ctx.config.outputs[format];
+    if (typeof flag === "string" && flag !== "") targets[format] = flag;
+    else if (fromConfig) targets[format] = fromConfig;
+  }
+  return targets;
+}
+
 export const checkCommand: CommandSpec = {
   command: "check [paths..]",
-  describe: "Check circuit files (paths, folders or globs; default: the current folder)",
+  describe: "Check circuit files (paths, folders or globs; default: the config's include globs)",
   builder: (y) =>
     y
       .positional("paths", { type: "string", array: true, describe: "Circuit files, folders or globs" })
+      .option("json", { type: "string", describe: "Write the results document (JSON) to PATH ('-' for stdout)" })
+      .option("junit", { type: "string", describe: "Write JUnit XML to PATH" })
+      .option("markdown", { type: "string", describe: "Write the markdown report to PATH" })
+      .option("sarif", { type: "string", describe: "Write SARIF 2.1.0 to PATH (code-scanning upload)" })
+      .option("baseline", { type: "string", describe: "Compare with an earlier results document (e.g. from the target branch)" })
+      .option("jobs", { type: "number", describe: "Worker threads (default: the number of cores)" })
+      .option("shard", { type: "string", describe: "Check only slice k of n of the sorted files (k/n, e.g. 2/4)" })
+      .option("quiet", { type: "boolean", alias: "q", default: false, describe: "Print only failures and the verdict line" })
+      .option("config", { type: "string", describe: "Config file (default: opgate.config.yaml found walking up)" })
+      .option("rule", { type: "string", array: true, describe: "Set a rule's severity: id=error|warning|note|off (repeatable)" })
+      .option("fail-on", { choices: ["error", "warning", "note"], describe: "Lowest severity that fails the run (default: config, else error)" })
+      .option("timestamp", { type: "boolean", default: false, describe: "Record the time in the results document (off: reproducible output)" })
       .example("$0 check examples", "Check every circuit file under examples/")
-      .example("$0 check 'boards/**/*.yaml'", "Check the files a glob matches"),
+      .example("$0 check 'boards/**/*.yaml' --fail-on warning", "Fail on warnings too")
+      .example("$0 check --json results.json --markdown report.md --sarif opgate.sarif", "Write the reports")
+      .example("$0 check --shard 2/4 --json results-2.json", "Check the second of four slices (a CI matrix job)")
+      .example("$0 check --baseline main-results.json", "Show what changed against an earlier run")
+      .example("$0 check --rule headroom=off --jobs 4", "Turn a rule off and use four threads"),
   handler: async (args, io: CliIo) => {
-    const patterns = (args.paths as string[] | undefined)?.length ? (args.paths as string[]) : ["."];
-    const files = await findCircuitFiles(patterns, io.cwd);
+    const jobs = parseJobs(args.jobs);
+    let shard: Shard | undefined;
+    if (typeof args.shard === "string") {
+      const parsed = parseShard(args.shard);
+      if (typeof parsed === "string") throw new CliExit(EXIT_INPUT, parsed);
+      shard = parsed;
+    }
+    const contextOptions: CheckContextOptions = {
+      cwd: io.cwd,
+      ...(typeof args.config === "string" ? { configPath: args.config } : {}),
+      ...(args.rule !== undefined ? { ruleFlags: stringList(args.rule) } : {}),
+      ...(typeof args["fail-on"] === "string" ? { failOn: args["fail-on"] as Severity } : {}),
+    };
+    const ctx = await buildContext(contextOptions);
+    const baselineDoc = typeof args.baseline === "string" ? readBaseline(args.baseline, io) : undefined;
+
+    const patterns = stringList(args.paths);
+    const files = await discoverCircuitFiles(patterns, {
+      cwd: io.cwd,
+      root: ctx.root,
+      include: ctx.config.include,
+      exclude: ctx.config.exclude,
+    });
     if (files.length === 0) {
-      io.stderr(`opgate: no circuit files (.json, .yaml, .yml) match ${patterns.join(" ")}\n`);
-      return EXIT_INPUT;
+      throw new CliExit(EXIT_INPUT, `no circuit files (.json, .yaml, .yml) match ${patterns.length ? patterns.join(" ") : ctx.config.include.join(" ")}`);
     }
-    let worst = EXIT_CLEAN;
-    for (const file of files) {
-      const shown = relative(io.cwd, file) || file;
-      const result = await loadCircuitFile(file, { displayPath: shown });
-      if (result.ok) io.stdout(`ok    ${shown}\n`);
-      else {
-        worst = EXIT_INPUT;
-        io.stdout(`error ${shown}\n`);
-        for (const e of result.errors) io.stdout(`  ${formatInputError(e)}\n`);
-      }
-    }
-    return worst;
+
+    const showProgress = io.isTTY && io.env.CI !== "true" && !io.env.GITHUB_ACTIONS && files.length >= PROGRESS_MIN_FILES;
+    const doc = await runCheck(files, {
+      ctx,
+      contextOptions,
+      jobs,
+      ...(shard ? { shard } : {}),
+      ...(args.timestamp === true ? { timestamp: new Date().toISOString() } : {}),
+      ...(showProgress ? { onProgress: (done: number, total: number) => io.stderr(progressFrame(done, total)) } : {}),
+      onNotice: (message) => io.stderr(`opgate: ${message}\n`),
+    });
+    if (showProgress) io.stderr("\n");
+    if (shard && doc.circuits.length === 0) io.stderr(`opgate: shard ${shard.index}/${shard.count} has no files (${files.length} in all)\n`);
+
+    const reportOptions: ReportOptions = baselineDoc ? { baseline: diffDocuments(baselineDoc, doc) } : {};
+    const reportOnStdout = writeReports(doc, outputTargets(args, ctx), io, reportOptions);
+    const consoleText = renderConsole(doc, {
+      color: colourEnabled(io.env, io.isTTY),
+      quiet: args.quiet === true,
+      ...(reportOptions.baseline ? { baseline: reportOptions.baseline } : {}),
+    });
+    if (reportOnStdout) io.stderr(consoleText);
+    else io.stdout(consoleText);
+    writeCiOutputs(doc, io, reportOptions);
+    return exitCodeFor(doc);
   },
 };

@@ -6,6 +6,7 @@ import { schemaCommand } from "./schema.js";
 import { initCommand } from "./init.js";
 import { rulesCommand } from "./rules.js";
 import { inspectCommand } from "./inspect.js";
+import { mergeCommand } from "./merge.js";
 
 export type CommandHandler = (args: Record<string, unknown>, io: CliIo) => Promise<number>;
 
@@ -16,7 +17,7 @@ export interface CommandSpec {
   readonly handler: CommandHandler;
 }
 
-const COMMANDS: readonly CommandSpec[] = [checkCommand, initCommand, inspectCommand, rulesCommand, schemaCommand];
+const COMMANDS: readonly CommandSpec[] = [checkCommand, initCommand, inspectCommand, mergeCommand, rulesCommand, schemaCommand];
 
 /** Runs the CLI with `argv` (without node and script) and returns the exit code. */
 export async function run(argv: readonly string[], io: CliIo): Promise<number> {

@@ -1,0 +1,179 @@
+// Checks files on worker threads (`--jobs N`), or in this thread for one job. Results are placed
+// by file position, so their order never depends on scheduling. A worker that dies takes only
+// the file it was checking with it: that file gets an `internal` error result, the worker is
+// replaced, and the run goes on. If workers cannot start at all, this thread checks the rest.
+import { Worker } from "node:worker_threads";
+import { createRequire } from "node:module";
+import { dirname, join } from "node:path";
+import { fileURLToPath, pathToFileURL } from "node:url";
+import { checkFile, type CheckContext, type CheckContextOptions } from "../pipeline/check-file.js";
+import type { CircuitResult } from "../report/document.js";
+import type { CircuitFile } from "./discover.js";
+import type { FromWorker, ToWorker, WorkerStart } from "./protocol.js";
+
+/** Replacements allowed per job slot before giving up on threads (a crash loop would never end). */
+export const RESPAWNS_PER_JOB = 3;
+
+export interface PoolOptions {
+  readonly jobs: number;
+  /** How each worker builds its context. */
+  readonly context: CheckContextOptions;
+  /** This thread's context: used for one job, and for the rest when workers cannot start. */
+  readonly ctx: CheckContext;
+  readonly onProgress?: (done: number, total: number) => void;
+  /** Something the user should know (a worker died); one sentence. */
+  readonly onNotice?: (message: string) => void;
+  /** Tests only: workers exit abruptly on this display path. */
+  readonly crashOn?: string;
+}
+
+export function internalErrorResult(file: CircuitFile, message: string): CircuitResult {
+  return {
+    file: file.display,
+    name: null,
+    status: "error",
+    operatingPoint: null,
+    gains: [],
+    scenarios: [],
+    findings: [
+      {
+        rule: "internal",
+        severity: "error",
+        subject: "file",
+        message,
+        measured: null,
+        limit: null,
+        unit: null,
+        margin: null,
+        scenario: "nominal",
+        file: file.display,
+        line: 1,
+        column: 1,
+        hint: "re-run the check; if it fails again, report it with this file",
+      },
+    ],
+    passed: [],
+  };
+}
+
+/**
+ * The worker next to this module: worker.js from dist/; worker.ts under the test runner, through a
+ * small bootstrap that registers tsx's loader first (`--import tsx` in a worker's execArgv does
+ * not reach the worker's own entry module on Node 20).
+ */
+function workerEntry(): { entry: URL | string; eval: boolean } {
+  const here = fileURLToPath(import.meta.url);
+  if (!here.endsWith(".ts")) return { entry: new URL("./worker.js", import.meta.url), eval: false };
+  const cjsApi = createRequire(import.meta.url).resolve("tsx/esm/api");
+  const api = pathToFileURL(join(dirname(cjsApi), "index.mjs")).href;
+  const worker = new URL("./worker.ts", import.meta.url).href;
+  return { entry: `import { register } from ${JSON.stringify(api)};\nregister();\nawait import(${JSON.stringify(worker)});\n`, eval: true };
+}
+
+export async function checkFiles(files: readonly CircuitFile[], options: PoolOptions): Promise<CircuitResult[]> {
+  const results: (CircuitResult | undefined)[] = new Array(files.length);
+  const total = files.length;
+  let next = 0;
+  let done = 0;
+  const finish = (i: number, result: CircuitResult): void => {
+    results[i] = result;
+    done++;
+    options.onProgress?.(done, total);
+  };
+
+  const inProcess = async (): Promise<void> => {
+    while (next < total) {
+      const i = next++;
+      const file = files[i]!;
+      try {
+        finish(i, await checkFile(file.abs, options.ctx, file.display));
+      } catch (err) {
+        finish(i, internalErrorResult(file, `the check stopped: ${err instanceof Error ? err.message : String(err)}`));
+      }
+    }
+  };
+
+  const jobs = Math.max(1, Math.min(options.jobs, total));
+  if (jobs <= 1 || total === 0) {
+    await inProcess();
+    return results as CircuitResult[];
+  }
+
+  await new Promise<void>((resolveAll) => {
+    const entry = workerEntry();
+    const start: WorkerStart = { context: options.context, ...(options.crashOn !== undefined ? { crashOn: options.crashOn } : {}) };
+    const live = new Set<Worker>();
+    let respawns = 0;
+    let fellBack = false;
+    const checkDone = (): void => {
+      if (done === total) {
+        for (const w of live) void w.terminate();
+        live.clear();
+        resolveAll();
+      }
+    };
+    const fallBack = (why: string): void => {
+      if (fellBack) return;
+      fellBack = true;
+      options.onNotice?.(`worker threads are unavailable (${why}); checking the remaining files in one thread`);
+      void inProcess().then(checkDone);
+    };
+    const spawn = (): void => {
+      const worker = new Worker(entry.entry, { workerData: start, eval: entry.eval });
+      live.add(worker);
+      let current: number | undefined;
+      let ready = false;
+      let lastError = "";
+      const dispatch = (): void => {
+        if (next < total) {
+          current = next++;
+          const f = files[current]!;
+          const message: ToWorker = { type: "check", id: current, abs: f.abs, display: f.display };
+          worker.postMessage(message);
+        } else {
+          current = undefined;
+          live.delete(worker);
+          void worker.terminate();
+          checkDone();
+        }
+      };
+      worker.on("message", (m: FromWorker) => {
+        if (m.type === "ready") {
+          ready = true;
+          dispatch();
+        } else if (m.type === "fatal") {
+          lastError = m.message;
+          void worker.terminate();
+        } else if (m.id === current) {
+          finish(m.id, m.type === "result" ? m.result : internalErrorResult(files[m.id]!, `the check stopped: ${m.message}`));
+          dispatch();
+        }
+      });
+      worker.on("error", (err) => {
+        lastError = err.message;
+      });
+      worker.on("exit", (code) => {
+        if (!live.has(worker)) return;
+        live.delete(worker);
+        if (current !== undefined) {
+          const idx = current;
+          const f = files[idx]!;
+          current = undefined;
+          finish(idx, internalErrorResult(f, `the check of this file stopped unexpectedly (its worker thread exited with code ${code}${lastError ? `: ${lastError}` : ""})`));
+          options.onNotice?.(`a worker thread died while checking ${f.display}; it was replaced`);
+        }
+        if (!ready) {
+          fallBack(lastError || `exit code ${code}`);
+          return;
+        }
+        if (next < total) {
+          if (respawns++ < RESPAWNS_PER_JOB * jobs) spawn();
+          else fallBack("too many worker crashes");
+        }
+        checkDone();
+      });
+    };
+    for (let k = 0; k < jobs; k++) spawn();
+  });
+  return results as CircuitResult[];
+}

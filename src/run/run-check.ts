@@ -1,0 +1,43 @@
+// One whole run: the files (already discovered), an optional shard slice, checked on the pool,
+// assembled into the results document.
+import type { CheckContext, CheckContextOptions } from "../pipeline/check-file.js";
+import { buildDocument } from "../report/build.js";
+import type { ResultsDocument } from "../report/document.js";
+import type { CircuitFile } from "./discover.js";
+import { checkFiles } from "./pool.js";
+import { selectShard, type Shard } from "./shard.js";
+import { toolVersion } from "./version.js";
+
+export interface RunOptions {
+  readonly ctx: CheckContext;
+  readonly contextOptions: CheckContextOptions;
+  readonly jobs: number;
+  readonly shard?: Shard;
+  /** ISO time to record in the document (only when the user asked for it). */
+  readonly timestamp?: string;
+  readonly onProgress?: (done: number, total: number) => void;
+  readonly onNotice?: (message: string) => void;
+  /** Tests only, see PoolOptions.crashOn. */
+  readonly crashOn?: string;
+}
+
+export async function runCheck(allFiles: readonly CircuitFile[], options: RunOptions): Promise<ResultsDocument> {
+  const files = options.shard ? selectShard(allFiles, options.shard) : [...allFiles];
+  const circuits = await checkFiles(files, {
+    jobs: options.jobs,
+    context: options.contextOptions,
+    ctx: options.ctx,
+    ...(options.onProgress ? { onProgress: options.onProgress } : {}),
+    ...(options.onNotice ? { onNotice: options.onNotice } : {}),
+    ...(options.crashOn !== undefined ? { crashOn: options.crashOn } : {}),
+  });
+  const { config, rules } = options.ctx;
+  return buildDocument(circuits, {
+    rules,
+    failOn: config.failOn,
+    variation: { mode: config.variation.mode, samples: config.variation.samples, seed: config.variation.seed },
+    version: toolVersion(),
+    ...(options.shard ? { shard: { ...options.shard, files: files.map((f) => f.display) } } : {}),
+    ...(options.timestamp ? { timestamp: options.timestamp } : {}),
+  });
+}
