@@ -1,0 +1,123 @@
+// `opgate check` end to end, in-process, on a temporary repository of the example circuits:
+// reports, exit codes, a broken file among good ones, shards and merge, worker threads, CI outputs.
+import { readFileSync, writeFileSync } from "node:fs";
+import { join } from "node:path";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { documentProblems } from "../../src/report/validate.js";
+import { cli, exampleFiles, makeRepo } from "./repo.js";
+
+const BROKEN_YAML = "format: opgate-circuit/1\nname: broken-one\ncomponents: [\n";
+
+let repo: { dir: string; cleanup(): void };
+beforeAll(() => {
+  repo = makeRepo({ "boards/zz-unparseable.yaml": BROKEN_YAML });
+});
+afterAll(() => repo.cleanup());
+
+function read(rel: string): string {
+  return readFileSync(join(repo.dir, rel), "utf8");
+}
+
+describe("opgate check", () => {
+  it("checks every file, keeps going past broken ones, and writes every report", async () => {
+    const r = await cli(["check", "boards", "--jobs", "1", "--json", "out/r.json", "--junit", "out/j.xml", "--markdown", "out/r.md", "--sarif", "out/s.sarif"], repo.dir);
+    expect(r.code).toBe(2);
+    const doc = JSON.parse(read("out/r.json"));
+    expect(documentProblems(doc)).toEqual([]);
+    expect(doc.circuits.map((c: { file: string }) => c.file)).toEqual([...exampleFiles().map((f) => `boards/${f}`), "boards/zz-unparseable.yaml"].sort());
+    const broken = doc.circuits.find((c: { file: string }) => c.file === "boards/zz-unparseable.yaml");
+    expect(broken.status).toBe("error");
+    expect(broken.findings[0].rule).toBe("input");
+    // The good files still have their full results.
+    const preamp = doc.circuits.find((c: { file: string }) => c.file === "boards/tide-gauge-preamp.yaml");
+    expect(preamp.operatingPoint).not.toBeNull();
+    expect(r.stdout).toMatch(/^error boards\/zz-unparseable\.yaml$/m);
+    expect(r.stdout).toMatch(/^\s+boards\/zz-unparseable\.yaml:\d+:\d+  error   input /m);
+    expect(r.stdout.trimEnd().split("\n").at(-1)).toMatch(/^opgate: error — \d+ circuits/);
+    expect(read("out/j.xml")).toContain("<testsuites");
+    expect(read("out/r.md").split("\n")[0]).toContain("**opgate: error**");
+    expect(JSON.parse(read("out/s.sarif")).version).toBe("2.1.0");
+  });
+
+  it("writes byte-identical results with --jobs 2 and --jobs 1", async () => {
+    const one = await cli(["check", "boards", "--jobs", "1", "--json", "out/j1.json"], repo.dir);
+    const two = await cli(["check", "boards", "--jobs", "2", "--json", "out/j2.json"], repo.dir);
+    expect(two.code).toBe(one.code);
+    expect(two.stderr).not.toContain("unavailable");
+    expect(read("out/j2.json")).toBe(read("out/j1.json"));
+    expect(two.stdout).toBe(one.stdout);
+  }, 120_000);
+
+  it("reports a dead worker as an error for its file and finishes the rest", async () => {
+    const { checkFiles } = await import("../../src/run/pool.js");
+    const { makeCheckContext } = await import("../../src/run/context.js");
+    const { discoverCircuitFiles } = await import("../../src/run/discover.js");
+    const ctx = await makeCheckContext({ cwd: repo.dir });
+    const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude });
+    const victim = files[1]!.display;
+    const notices: string[] = [];
+    const results = await checkFiles(files, { jobs: 2, context: { cwd: repo.dir }, ctx, crashOn: victim, onNotice: (m) => notices.push(m) });
+    expect(results.map((r) => r.file)).toEqual(files.map((f) => f.display));
+    const dead = results[1]!;
+    expect(dead.status).toBe("error");
+    expect(dead.findings[0]!.rule).toBe("internal");
+    expect(dead.findings[0]!.message).toMatch(/worker thread exited with code 70/);
+    expect(results.filter((r) => r.findings.some((f) => f.rule === "internal"))).toHaveLength(1);
+    expect(notices.some((m) => m.includes(victim))).toBe(true);
+  }, 120_000);
+
+  it("merges shards into exactly the unsharded results", async () => {
+    const full = await cli(["check", "boards", "--jobs", "1", "--json", "out/full.json"], repo.dir);
+    const shardFiles: string[] = [];
+    for (let k = 1; k <= 3; k++) {
+      const r = await cli(["check", "boards", "--jobs", "1", "--shard", `${k}/3`, "--json", `out/results-${k}.json`], repo.dir);
+      expect([0, 1, 2]).toContain(r.code);
+      shardFiles.push(`out/results-${k}.json`);
+    }
+    const counts = shardFiles.map((f) => JSON.parse(read(f)).circuits.length);
+    expect(counts.reduce((a, b) => a + b, 0)).toBe(JSON.parse(read("out/full.json")).circuits.length);
+    const merged = await cli(["merge", ...shardFiles, "--json", "out/merged.json", "--sarif", "out/merged.sarif"], repo.dir);
+    expect(merged.code).toBe(full.code);
+    expect(read("out/merged.json")).toBe(read("out/full.json"));
+    const missing = await cli(["merge", shardFiles[0]!, shardFiles[2]!], repo.dir);
+    expect(missing.code).toBe(2);
+    expect(missing.stderr).toContain("missing shard 2/3");
+    const twice = await cli(["merge", shardFiles[0]!, shardFiles[0]!, shardFiles[1]!], repo.dir);
+    expect(twice.code).toBe(2);
+    const garbage = await cli(["merge", "boards/tide-gauge-preamp.yaml"], repo.dir);
+    expect(garbage.code).toBe(2);
+    expect(garbage.stderr).toMatch(/not JSON|not an opgate results document/);
+  });
+
+  it("annotates and writes the step summary only under GitHub Actions", async () => {
+    const plain = await cli(["check", "boards", "--jobs", "1"], repo.dir, { CI: "true" });
+    expect(plain.stdout).not.toMatch(/^::error /m);
+    const summary = join(repo.dir, "out", "summary.md");
+    writeFileSync(summary, "");
+    const gh = await cli(["check", "boards", "--jobs", "1"], repo.dir, { CI: "true", GITHUB_ACTIONS: "true", GITHUB_STEP_SUMMARY: summary });
+    expect(gh.stdout).toMatch(/^::error file=boards\/zz-unparseable\.yaml,line=\d+,col=\d+,title=opgate input%3A /m);
+    expect(readFileSync(summary, "utf8")).toContain("**opgate: error**");
+  });
+
+  it("shows baseline changes", async () => {
+    await cli(["check", "boards", "--jobs", "1", "--json", "out/base.json"], repo.dir);
+    const r = await cli(["check", "boards", "--jobs", "1", "--baseline", "out/base.json", "--markdown", "out/b.md"], repo.dir);
+    expect(r.stdout).toContain("Against the baseline: no changes in");
+    expect(read("out/b.md")).toContain("## Changes against the baseline");
+    const bad = await cli(["check", "boards", "--baseline", "nope.json"], repo.dir);
+    expect(bad.code).toBe(2);
+    expect(bad.stderr).toContain("--baseline nope.json: cannot read the file");
+  });
+
+  it("prints only failures with --quiet, and rejects bad flags with exit 2", async () => {
+    const q = await cli(["check", "boards", "--jobs", "1", "--quiet"], repo.dir);
+    expect(q.stdout).not.toMatch(/^ok /m);
+    expect(q.stdout).toMatch(/^error boards\/zz-unparseable\.yaml/m);
+    expect((await cli(["check", "boards", "--shard", "5/4"], repo.dir)).code).toBe(2);
+    expect((await cli(["check", "boards", "--jobs", "0"], repo.dir)).code).toBe(2);
+    expect((await cli(["check", "nothing-here/*.yaml"], repo.dir)).code).toBe(2);
+    const help = await cli(["check", "--help"], repo.dir);
+    expect(help.code).toBe(0);
+    expect(help.stdout).toContain("--shard 2/4 --json results-2.json");
+  });
+});
