@@ -2,8 +2,14 @@
 // a hand-built circuit with its analyses) + options → expected findings. It also checks the
 // rule's shape, that its option defaults validate, and that the rule does not mutate its input.
 // Import it in test files only (it uses vitest).
+import { readFileSync } from "node:fs";
+import { resolve } from "node:path";
 import { describe, expect, it } from "vitest";
+import { loadCircuitText } from "../circuit/index.js";
 import type { Circuit } from "../circuit/types.js";
+import { analyseSmallSignal } from "../smallsignal/index.js";
+import { solveOperatingPoint } from "../solve/index.js";
+import { buildScenarios } from "../variation/index.js";
 import type { ScenarioAnalysis } from "../pipeline/types.js";
 import type { Finding, PassedCheck, Severity } from "../report/document.js";
 import type { VariationSettings } from "../variation/types.js";
@@ -40,13 +46,43 @@ export interface RuleTestResult {
   readonly passed: PassedCheck[];
 }
 
-export type CircuitAnalyser = (text: string, variation: VariationSettings | undefined) => Promise<{ circuit: Circuit; analyses: ScenarioAnalysis[] }>;
+const NOMINAL: VariationSettings = { mode: "nominal", samples: 1, seed: 1 };
+const FILE_REFERENCE = /^[^\n]+\.(ya?ml|json)$/i;
 
-let analyser: CircuitAnalyser | undefined;
+function slug(text: string): string {
+  return text.toLowerCase().replace(/[^a-z0-9]+/g, "-").replace(/^-|-$/g, "").slice(0, 60) || "case";
+}
 
-/** Registers how circuit texts are loaded and analysed (the real pipeline; see tester-pipeline.ts). */
-export function setCircuitAnalyser(a: CircuitAnalyser): void {
-  analyser = a;
+/**
+ * Loads a case's circuit through the real loader: a path to a circuit file (relative to the
+ * working folder), or a snippet. A snippet may leave out `format:` and `name:`; they are added.
+ */
+export function loadCaseCircuit(source: string, caseName: string): Circuit {
+  let text: string;
+  let file: string;
+  if (FILE_REFERENCE.test(source.trim())) {
+    file = source.trim();
+    text = readFileSync(resolve(file), "utf8");
+  } else {
+    file = `${slug(caseName)}.yaml`;
+    text = source;
+    if (!/^name:/m.test(text)) text = `name: ${slug(caseName)}\n${text}`;
+    if (!/^format:/m.test(text)) text = `format: opgate-circuit/1\n${text}`;
+  }
+  const loaded = loadCircuitText(text, file);
+  if (!loaded.ok) {
+    const list = loaded.errors.map((e) => `  ${e.file}:${e.line ?? "?"}:${e.column ?? "?"}: ${e.message}${e.hint ? ` — ${e.hint}` : ""}`).join("\n");
+    throw new Error(`case "${caseName}": the circuit does not load:\n${list}`);
+  }
+  return loaded.circuit;
+}
+
+/** The real pipeline from a loaded circuit: scenarios → bias solve → small-signal, per scenario. */
+export function analyseCircuit(circuit: Circuit, variation: VariationSettings = NOMINAL): ScenarioAnalysis[] {
+  return buildScenarios(circuit, variation).map((scenario) => {
+    const solve = solveOperatingPoint(scenario.circuit);
+    return { scenario, solve, smallSignal: solve.ok ? analyseSmallSignal(scenario.circuit, solve) : null };
+  });
 }
 
 /** A serialisable picture of a value (Maps included) to detect mutation. */
@@ -59,8 +95,8 @@ export async function runRuleCase(rule: Rule, c: RuleTestCase): Promise<RuleTest
   let circuit: Circuit;
   let analyses: readonly ScenarioAnalysis[];
   if (typeof c.circuit === "string") {
-    if (!analyser) throw new Error("no circuit analyser registered: import src/review/tester-pipeline.js, or give a hand-built circuit with analyses");
-    ({ circuit, analyses } = await analyser(c.circuit, c.variation));
+    circuit = loadCaseCircuit(c.circuit, c.name);
+    analyses = c.analyses ?? analyseCircuit(circuit, c.variation);
   } else {
     if (!c.analyses) throw new Error(`case "${c.name}": a hand-built circuit needs its analyses`);
     circuit = c.circuit;

@@ -1,0 +1,43 @@
+// headroom: NPN/PNP/NMOS/PMOS stages through the real pipeline, the boundary on hand-built points.
+import { expect, it } from "vitest";
+import { ruleTester, runRuleCase } from "../src/review/tester.js";
+import { analysis, bjt, bjtPoint, circuit, mos, mosPoint, op } from "../test/review/fixtures.js";
+import { nmosStage, npnStage, pmosStage, pnpStage } from "../test/review/circuits.js";
+import headroom from "./headroom.js";
+
+const q1 = circuit({ components: [bjt("Q1", "npn", 10), bjt("Q2", "pnp", 11), mos("M1", "nmos", 12), mos("M2", "pmos", 13)] });
+const points = (bjtHeadroom: number, mosHeadroom: number) =>
+  op({ Q1: bjtPoint("npn", { headroom: bjtHeadroom }), Q2: bjtPoint("pnp", { headroom: bjtHeadroom, vce: -(bjtHeadroom + 0.3) }), M1: mosPoint("nmos", { headroom: mosHeadroom }), M2: mosPoint("pmos", { headroom: mosHeadroom, vds: -(mosHeadroom + 0.5) }) });
+
+ruleTester(headroom).run([
+  { name: "NPN stage with VCE ≈ 5 V passes", circuit: npnStage(), expect: [], passed: ["Q1"] },
+  { name: "NPN stage with RC 8k7 sits 0.09 V from saturation", circuit: npnStage({ rc: "8k7" }), expect: [{ subject: "Q1", severity: "error", messageIncludes: "saturation edge" }] },
+  { name: "PNP mirror stage passes", circuit: pnpStage(), expect: [], passed: ["Q1"] },
+  { name: "PNP stage with RC 8k7 fails like the NPN one", circuit: pnpStage({ rc: "8k7" }), expect: [{ subject: "Q1", messageIncludes: "(pnp)" }] },
+  { name: "NMOS stage with VDS 6.3 V passes", circuit: nmosStage(), expect: [], passed: ["M1"] },
+  { name: "NMOS stage with RD 9k8 has 0.2 V to the triode edge", circuit: nmosStage({ rd: "9k8" }), expect: [{ subject: "M1", messageIncludes: "triode edge" }] },
+  { name: "PMOS mirror stage passes", circuit: pmosStage(), expect: [], passed: ["M1"] },
+  { name: "PMOS stage with RD 9k8 fails like the NMOS one", circuit: pmosStage({ rd: "9k8" }), expect: [{ subject: "M1", messageIncludes: "(pmos)" }] },
+  { name: "a lower margin in the config passes the tight stage", circuit: npnStage({ rc: "8k7" }), options: { bjt: 0.05 }, expect: [] },
+  {
+    name: "a circuit file may lower the margin for itself",
+    circuit: npnStage({ rc: "8k7", review: "review:\n  headroom: { options: { bjt: 0.05 }, reason: output swings only a few millivolts }" }),
+    expect: [],
+  },
+  { name: "a stage meant to saturate is not judged", circuit: npnStage({ rc: "8k7", specs: "  devices:\n    Q1: { region: saturation }" }), expect: [] },
+  { name: "BJT boundary: 0.5001 V passes, 0.4999 V fails (default 0.5 V)", circuit: q1, analyses: [analysis(q1, points(0.4999, 1))], expect: [{ subject: "Q1" }, { subject: "Q2" }] },
+  { name: "BJT boundary: just above passes", circuit: q1, analyses: [analysis(q1, points(0.5001, 1))], expect: [], passed: ["Q1", "Q2"] },
+  { name: "MOS boundary: 0.2999 V fails (default 0.3 V)", circuit: q1, analyses: [analysis(q1, points(1, 0.2999))], expect: [{ subject: "M1" }, { subject: "M2" }] },
+  { name: "MOS boundary: 0.3001 V passes", circuit: q1, analyses: [analysis(q1, points(1, 0.3001))], expect: [], passed: ["M1", "M2"] },
+]);
+
+it("measures the square-law headroom a hand analysis gives, equal for NMOS and PMOS", async () => {
+  // Square law (textbook closed form): VG = 3 V, k = 2 mA/V², RS = 1 kΩ → ID = 1 mA, Vov = 1 V,
+  // VS = 1 V; RD = 9.8 kΩ → VD = 2.2 V, VDS = 1.2 V, headroom = VDS − Vov = 0.2 V.
+  const n = await runRuleCase(headroom, { name: "nmos", circuit: nmosStage({ rd: "9k8" }), expect: [] });
+  const p = await runRuleCase(headroom, { name: "pmos", circuit: pmosStage({ rd: "9k8" }), expect: [] });
+  expect(n.findings[0]!.measured).toBeCloseTo(0.2, 6);
+  expect(p.findings[0]!.measured).toBeCloseTo(n.findings[0]!.measured!, 9);
+  expect(n.findings[0]!.margin).toBeCloseTo((0.2 - 0.3) / 0.3, 5);
+  expect(n.findings[0]).toMatchObject({ unit: "V", limit: 0.3, scenario: "nominal", line: expect.any(Number) });
+});
