@@ -86,6 +86,7 @@ export const rewriteCircuitError: RewriteError = (e: ErrorObject, path, root) =>
       case "maxItems":
         return { message: need, hint: "give exactly two node names" };
       case "type":
+        if (path.length > 3) return { message: need, hint: `pin \`${String(path[3])}\`: a node name is text or a whole number` };
         return { message: need, hint: PIN_TEXT[kind]!.startsWith("[") ? "write the two node names as a list" : "write a mapping of pin name to node name" };
       default:
         return undefined;

@@ -21,24 +21,42 @@ function firstLine(message: string): string {
   return (message.split("\n")[0] ?? message).replace(/ at line \d+, column \d+:?$/, "").trim();
 }
 
+/** Offset of the first comma that directly precedes `}` or `]` outside strings, or −1. */
+export function findTrailingComma(text: string): number {
+  let inString = false;
+  for (let i = 0; i < text.length; i++) {
+    const ch = text[i];
+    if (inString) {
+      if (ch === "\\") i++;
+      else if (ch === '"') inString = false;
+    } else if (ch === '"') inString = true;
+    else if (ch === ",") {
+      const rest = /^\s*([}\]])/.exec(text.slice(i + 1, i + 200));
+      if (rest) return i;
+    }
+  }
+  return -1;
+}
+
 /** Strict JSON syntax check for .json files (YAML would accept a trailing comma or comments). */
 function jsonSyntaxError(text: string, file: string, lineCounter: LineCounter): InputError | undefined {
   try {
     JSON.parse(text);
     return undefined;
   } catch (err) {
-    const message = err instanceof Error ? err.message : String(err);
+    const trailing = findTrailingComma(text);
+    if (trailing >= 0) {
+      const pos = positionAtOffset(lineCounter, file, trailing);
+      return { file, line: pos.line, column: pos.column, message: "invalid JSON: a comma after the last item", hint: "JSON allows no trailing comma; remove it" };
+    }
+    const message = (err instanceof Error ? err.message : String(err)).split("\n")[0]!;
     const at = /position (\d+)/.exec(message);
     const pos = at ? positionAtOffset(lineCounter, file, Number(at[1])) : undefined;
-    const offset = at ? Number(at[1]) : -1;
-    const trailing = offset >= 0 && text.slice(0, offset).trimEnd().endsWith(",") && /^\s*[}\]]/.test(text.slice(offset));
     return {
       file,
       ...(pos ? { line: pos.line, column: pos.column } : {}),
       message: `invalid JSON: ${message.replace(/\s*\(line \d+ column \d+\)/, "").replace(/ in JSON at position \d+/, "")}`,
-      hint: trailing
-        ? "JSON allows no comma after the last item; remove it"
-        : "check the brackets, quotes and commas around this point (or write the file as YAML)",
+      hint: "check the brackets, quotes and commas around this point (or write the file as YAML)",
     };
   }
 }
@@ -72,7 +90,7 @@ export function parseDocumentWithPositions(text: string, file: string, options: 
   const doc = parseDocument(text, { lineCounter, prettyErrors: false, uniqueKeys: true, merge: false });
   const errors: InputError[] = [];
   for (const e of [...doc.errors, ...doc.warnings]) {
-    const at = e.linePos?.[0];
+    const at = e.linePos?.[0] ?? lineCounter.linePos(e.pos[0]);
     errors.push({
       file,
       ...(at ? { line: at.line, column: at.col } : {}),

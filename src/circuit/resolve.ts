@@ -100,7 +100,8 @@ function resolveComponent(ctx: ResolveContext, raw: Obj, index: number): Compone
   const what = `component ${id}`;
   const pos: SourcePos = ctx.pos(path);
   const pinsRaw = raw["pins"];
-  const pins = asObj(pinsRaw) as Record<string, string>;
+  // Node names may be written as whole numbers (`0`); inside they are always text.
+  const pins = Object.fromEntries(Object.entries(asObj(pinsRaw)).map(([k, v]) => [k, String(v)])) as Record<string, string>;
   const two = Array.isArray(pinsRaw) ? { a: String(pinsRaw[0]), b: String(pinsRaw[1]) } : { a: "", b: "" };
   const tol = (key: string, q: Quantity): Toleranced | undefined => readToleranced(ctx, raw, key, path, q, what);
   const opt = (key: string, q: Quantity) => readOptional(ctx, raw, key, path, q, what);
@@ -177,7 +178,7 @@ function resolveSpecs(ctx: ResolveContext, raw: Obj, ground: string): Specs {
     const target = readValue(ctx, g["target"], [...path, "target"], "gain", `${what} \`target\``);
     const frequency = readOptional(ctx, g, "frequency", path, "frequency", what);
     const out = g["output"];
-    const output = typeof out === "string" ? { plus: out, minus: ground } : { plus: String(asObj(out)["plus"]), minus: String(asObj(out)["minus"]) };
+    const output = typeof out === "string" || typeof out === "number" ? { plus: String(out), minus: ground } : { plus: String(asObj(out)["plus"]), minus: String(asObj(out)["minus"]) };
     if (target === undefined) return;
     let window: { min: number; max: number } | undefined;
     const tol = g["tolerance"];
@@ -250,7 +251,7 @@ export function resolveCircuit(ctx: ResolveContext, root: Obj): Circuit {
         ctx.warn(["temperature"], `\`temperature: ${t}\` is read as ${t} K (a bare number is kelvin)`, `write "${t} °C" if Celsius was meant`);
     }
   }
-  const ground = typeof root["ground"] === "string" ? root["ground"] : D.DEFAULT_GROUND;
+  const ground = root["ground"] !== undefined ? String(root["ground"]) : D.DEFAULT_GROUND;
   const models = new Map<string, Model>();
   for (const [id, m] of Object.entries(asObj(root["models"]))) {
     const model = resolveModel(ctx, id, asObj(m));

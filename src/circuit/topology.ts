@@ -132,7 +132,7 @@ export function checkTopology(circuit: Circuit): TopologyResult {
     uses.get(n)!.push(`${c.id}.${pin}`);
   }
   if (!uses.has(g)) {
-    errors.push({ file: circuit.file, line: circuit.pos.line, column: circuit.pos.column, message: `no component connects to the ground node \`${g}\``, hint: didYouMean(g, uses.keys()) ?? "connect the reference node, or set `ground:` to the name you use", nodes: [g] });
+    errors.push({ file: circuit.file, line: circuit.pos.line, column: circuit.pos.column, message: `no component connects to the ground node \`${g}\``, hint: (uses.has("0") ? "set `ground: 0` if node 0 is your reference" : undefined) ?? didYouMean(g, uses.keys()) ?? "connect the reference node, or set `ground:` to the name you use", nodes: [g] });
     return { errors, warnings };
   }
   for (const [n, list] of uses) {

@@ -158,7 +158,7 @@ export function validateWithSchema(
     if (hint) typoTargets.add(`${e.instancePath}|${hint.slice(hint.indexOf("`") + 1, hint.lastIndexOf("`"))}`);
   }
   const out: InputError[] = [];
-  const seen = new Set<string>();
+  const seen = new Map<string, number>();
   for (const e of errors) {
     if (e.keyword === "required" && typoTargets.has(`${e.instancePath}|${(e.params as { missingProperty: string }).missingProperty}`)) continue;
     const path = typedPath(value, pointerToPath(e.instancePath));
@@ -168,9 +168,14 @@ export function validateWithSchema(
     const g = generic(e, path, where, data);
     const text = custom ?? g;
     const pos = g.keyPath ? positionOf(positioned, g.keyPath, { key: true }) : positionOf(positioned, path);
-    const key = `${pos.line}:${pos.column}:${text.message}`;
-    if (seen.has(key)) continue;
-    seen.add(key);
+    // One sentence per problem: the same message twice (two pin errors of one part) merges its hints.
+    const earlier = seen.get(text.message);
+    if (earlier !== undefined) {
+      const prev = out[earlier]!;
+      if (text.hint && !prev.hint?.includes(text.hint)) out[earlier] = { ...prev, hint: prev.hint ? `${prev.hint}; ${text.hint}` : text.hint };
+      continue;
+    }
+    seen.set(text.message, out.length);
     out.push({ file: positioned.file, line: pos.line, column: pos.column, message: text.message, ...(text.hint ? { hint: text.hint } : {}) });
     if (out.length >= (options.maxErrors ?? DEFAULT_MAX_ERRORS)) break;
   }
