@@ -17,21 +17,25 @@ export class ComplexLu {
   /** Matrix entries, row-major (row i, column j at i·n + j); overwritten by the factors. */
   readonly re: Float64Array;
   readonly im: Float64Array;
-  /** perm[k] = the original row now held in row k. */
-  private readonly perm: Int32Array;
+  /**
+   * Rows are swapped through this table, not in memory: logical row k lives at offset
+   * rowAt[k] (a multiple of n), and rowAt[k]/n is also the original row, i.e. the permutation.
+   */
+  private readonly rowAt: Int32Array;
   private readonly colScale: Float64Array;
   /** Columns of the current pivot row that are non-zero (MNA matrices are sparse). */
   private readonly nonzero: Int32Array;
   private readonly tmpRe: Float64Array;
   private readonly tmpIm: Float64Array;
   private realOnly = false;
+  private anyImag = false;
   private factored = false;
 
   constructor(n: number) {
     this.n = n;
     this.re = new Float64Array(n * n);
     this.im = new Float64Array(n * n);
-    this.perm = new Int32Array(n);
+    this.rowAt = new Int32Array(n);
     this.colScale = new Float64Array(n);
     this.nonzero = new Int32Array(n);
     this.tmpRe = new Float64Array(n);
@@ -40,14 +44,24 @@ export class ComplexLu {
 
   clear(): void {
     this.re.fill(0);
-    this.im.fill(0);
+    if (this.anyImag) this.im.fill(0);
+    this.colScale.fill(0);
+    this.anyImag = false;
     this.factored = false;
   }
 
+  /**
+   * Adds to entry (row, col). Each column's scale for the singularity test is the sum of the
+   * magnitudes added to it: never below its largest entry, and free to keep up to date here.
+   */
   add(row: number, col: number, re: number, im = 0): void {
     const k = row * this.n + col;
     this.re[k] = (this.re[k] as number) + re;
-    if (im !== 0) this.im[k] = (this.im[k] as number) + im;
+    this.colScale[col] = (this.colScale[col] as number) + Math.abs(re) + Math.abs(im);
+    if (im !== 0) {
+      this.im[k] = (this.im[k] as number) + im;
+      this.anyImag = true;
+    }
   }
 
   /**
@@ -55,69 +69,40 @@ export class ComplexLu {
    * vanished: the caller maps it back to the node or branch at fault.
    */
   factor(): number {
-    const { n, re, im } = this;
     this.factored = false;
-    let anyImag = false;
-    for (let k = 0; k < n * n; k++) {
-      if (im[k] !== 0) {
-        anyImag = true;
-        break;
-      }
-    }
-    this.realOnly = !anyImag;
-    const scale = this.colScale;
-    scale.fill(0);
-    for (let i = 0; i < n; i++) {
-      const row = i * n;
-      for (let j = 0; j < n; j++) {
-        const a = Math.abs(re[row + j] as number) + Math.abs(im[row + j] as number);
-        if (a > (scale[j] as number)) scale[j] = a;
-      }
-      this.perm[i] = i;
-    }
+    this.realOnly = !this.anyImag;
+    for (let i = 0; i < this.n; i++) this.rowAt[i] = i * this.n;
     const failed = this.realOnly ? this.factorReal() : this.factorComplex();
     if (failed < 0) this.factored = true;
     return failed;
   }
 
   private swapRows(a: number, b: number): void {
-    if (a === b) return;
-    const { n, re, im, perm } = this;
-    const ra = a * n;
-    const rb = b * n;
-    for (let j = 0; j < n; j++) {
-      const tr = re[ra + j] as number;
-      re[ra + j] = re[rb + j] as number;
-      re[rb + j] = tr;
-      const ti = im[ra + j] as number;
-      im[ra + j] = im[rb + j] as number;
-      im[rb + j] = ti;
-    }
-    const tp = perm[a] as number;
-    perm[a] = perm[b] as number;
-    perm[b] = tp;
+    const t = this.rowAt[a] as number;
+    this.rowAt[a] = this.rowAt[b] as number;
+    this.rowAt[b] = t;
   }
 
   private factorReal(): number {
-    const { n, re, nonzero } = this;
+    const { n, re, nonzero, rowAt } = this;
     for (let k = 0; k < n; k++) {
       let p = k;
-      let best = Math.abs(re[k * n + k] as number);
+      let best = Math.abs(re[(rowAt[k] as number) + k] as number);
       for (let i = k + 1; i < n; i++) {
-        const a = Math.abs(re[i * n + k] as number);
+        const a = Math.abs(re[(rowAt[i] as number) + k] as number);
         if (a > best) {
           best = a;
           p = i;
         }
       }
       if (!(best > PIVOT_RELATIVE_LIMIT * (this.colScale[k] as number)) || best === 0) return k;
-      this.swapRows(k, p);
-      const rowK = k * n;
+      if (p !== k) this.swapRows(k, p);
+      const rowK = rowAt[k] as number;
       const pivot = re[rowK + k] as number;
       let count = 0;
       for (let j = k + 1; j < n; j++) if ((re[rowK + j] as number) !== 0) nonzero[count++] = j;
       for (let i = k + 1; i < n; i++) {
-        const rowI = i * n;
+        const rowI = rowAt[i] as number;
         const a = re[rowI + k] as number;
         if (a === 0) continue;
         const l = a / pivot;
@@ -132,20 +117,21 @@ export class ComplexLu {
   }
 
   private factorComplex(): number {
-    const { n, re, im, nonzero } = this;
+    const { n, re, im, nonzero, rowAt } = this;
     for (let k = 0; k < n; k++) {
       let p = k;
       let best = -1;
       for (let i = k; i < n; i++) {
-        const a = Math.abs(re[i * n + k] as number) + Math.abs(im[i * n + k] as number);
+        const o = (rowAt[i] as number) + k;
+        const a = Math.abs(re[o] as number) + Math.abs(im[o] as number);
         if (a > best) {
           best = a;
           p = i;
         }
       }
       if (!(best > PIVOT_RELATIVE_LIMIT * (this.colScale[k] as number)) || best === 0) return k;
-      this.swapRows(k, p);
-      const rowK = k * n;
+      if (p !== k) this.swapRows(k, p);
+      const rowK = rowAt[k] as number;
       const pr = re[rowK + k] as number;
       const pi = im[rowK + k] as number;
       const d = pr * pr + pi * pi;
@@ -157,7 +143,7 @@ export class ComplexLu {
         if ((re[rowK + j] as number) !== 0 || (im[rowK + j] as number) !== 0) nonzero[count++] = j;
       }
       for (let i = k + 1; i < n; i++) {
-        const rowI = i * n;
+        const rowI = rowAt[i] as number;
         const ar = re[rowI + k] as number;
         const ai = im[rowI + k] as number;
         if (ar === 0 && ai === 0) continue;
@@ -183,9 +169,9 @@ export class ComplexLu {
    */
   solve(bRe: Float64Array, bIm: Float64Array, xRe: Float64Array, xIm: Float64Array): void {
     if (!this.factored) throw new Error("ComplexLu.solve called without a successful factor()");
-    const { n, perm, tmpRe, tmpIm } = this;
+    const { n, rowAt, tmpRe, tmpIm } = this;
     for (let i = 0; i < n; i++) {
-      const p = perm[i] as number;
+      const p = ((rowAt[i] as number) / n) | 0;
       tmpRe[i] = bRe[p] as number;
       tmpIm[i] = bIm[p] as number;
     }
@@ -202,15 +188,15 @@ export class ComplexLu {
   }
 
   private substituteReal(x: Float64Array): void {
-    const { n, re } = this;
+    const { n, re, rowAt } = this;
     for (let i = 1; i < n; i++) {
-      const row = i * n;
+      const row = rowAt[i] as number;
       let s = x[i] as number;
       for (let j = 0; j < i; j++) s -= (re[row + j] as number) * (x[j] as number);
       x[i] = s;
     }
     for (let i = n - 1; i >= 0; i--) {
-      const row = i * n;
+      const row = rowAt[i] as number;
       let s = x[i] as number;
       for (let j = i + 1; j < n; j++) s -= (re[row + j] as number) * (x[j] as number);
       x[i] = s / (re[row + i] as number);
@@ -218,9 +204,9 @@ export class ComplexLu {
   }
 
   private substituteComplex(xr: Float64Array, xi: Float64Array): void {
-    const { n, re, im } = this;
+    const { n, re, im, rowAt } = this;
     for (let i = 1; i < n; i++) {
-      const row = i * n;
+      const row = rowAt[i] as number;
       let sr = xr[i] as number;
       let si = xi[i] as number;
       for (let j = 0; j < i; j++) {
@@ -235,7 +221,7 @@ export class ComplexLu {
       xi[i] = si;
     }
     for (let i = n - 1; i >= 0; i--) {
-      const row = i * n;
+      const row = rowAt[i] as number;
       let sr = xr[i] as number;
       let si = xi[i] as number;
       for (let j = i + 1; j < n; j++) {

@@ -42,8 +42,8 @@ interface Reactive {
   readonly value: number;
   /** Inductor winding resistance; 0 for capacitors. */
   readonly resistance: number;
-  /** Midband: this capacitor's short lies in a loop of voltage-defined branches (see below). */
-  readonly redundantShort: boolean;
+  /** Midband: this capacitor's short lies in a loop of voltage-defined branches (see buildNetwork). */
+  redundantShort: boolean;
 }
 
 interface VoltageControlledStamp {
@@ -68,7 +68,8 @@ interface CurrentControlledStamp {
 interface DeviceStamp {
   readonly id: string;
   readonly pins: Int32Array;
-  readonly y: Float64Array;
+  /** The operating point's own matrix, read in place (it is immutable). */
+  readonly y: readonly number[];
 }
 
 export interface SmallSignalNetwork {
@@ -76,8 +77,8 @@ export interface SmallSignalNetwork {
   readonly size: number;
   readonly nodeIndex: ReadonlyMap<string, number>;
   readonly branchIndex: ReadonlyMap<string, number>;
-  /** What each unknown is, for messages: "node `out`" or "the branch current of C1". */
-  readonly unknownLabels: readonly string[];
+  /** Node names by unknown index, then the ids of the branch elements (for messages). */
+  readonly unknownNames: readonly string[];
   readonly lu: ComplexLu;
   readonly rhsRe: Float64Array;
   readonly rhsIm: Float64Array;
@@ -95,6 +96,38 @@ export interface SmallSignalNetwork {
 export type BuildResult =
   | { readonly ok: true; readonly network: SmallSignalNetwork }
   | { readonly ok: false; readonly message: string };
+
+interface Scratch {
+  readonly lu: ComplexLu;
+  readonly rhsRe: Float64Array;
+  readonly rhsIm: Float64Array;
+  readonly xRe: Float64Array;
+  readonly xIm: Float64Array;
+}
+
+/**
+ * Matrix and vectors are scratch space, reused between calls of the same size (scenario runs
+ * of one circuit all have the same size). Calls are synchronous and never nested, so one set
+ * per size is enough; the cache holds a few sizes and is cleared when it grows past them.
+ */
+const SCRATCH_SIZES_KEPT = 8;
+const scratchCache = new Map<number, Scratch>();
+
+function scratchFor(size: number): Scratch {
+  let s = scratchCache.get(size);
+  if (!s) {
+    if (scratchCache.size >= SCRATCH_SIZES_KEPT) scratchCache.clear();
+    s = {
+      lu: new ComplexLu(size),
+      rhsRe: new Float64Array(size),
+      rhsIm: new Float64Array(size),
+      xRe: new Float64Array(size),
+      xIm: new Float64Array(size),
+    };
+    scratchCache.set(size, s);
+  }
+  return s;
+}
 
 /** Components whose small-signal behaviour comes from the operating point's `linear` record. */
 function isNonlinear(c: Component): boolean {
@@ -144,19 +177,32 @@ class Islands {
 
 /** Lays out the unknowns and compiles the stamps of every component; nothing is assembled yet. */
 export function buildNetwork(circuit: Circuit, op: OperatingPoint): BuildResult {
-  const nodeIndex = new Map<string, number>();
-  const unknownLabels: string[] = [];
-  for (const name of circuit.nodes) {
-    if (name === circuit.ground || nodeIndex.has(name)) continue;
-    nodeIndex.set(name, unknownLabels.length);
-    unknownLabels.push(`node \`${name}\``);
+  // Unknown order decides the fill-in of the dense factorisation (it skips zeros): nodes with
+  // few connections first, hubs such as supply rails last; each branch right after the nodes of
+  // its element, where its coupling is local.
+  const incidence = new Map<string, number>();
+  for (const c of circuit.components) {
+    const pins = c.pins as Readonly<Record<string, string>>;
+    for (const pin in pins) {
+      const name = pins[pin] as string;
+      incidence.set(name, (incidence.get(name) ?? 0) + 1);
+    }
   }
-  const nodeCount = unknownLabels.length;
+  const nodeNames = circuit.nodes.filter((n) => n !== circuit.ground);
+  nodeNames.sort((a, b) => (incidence.get(a) ?? 0) - (incidence.get(b) ?? 0));
+  const nodeIndex = new Map<string, number>();
+  const unknownNames: string[] = [];
+  for (const name of nodeNames) {
+    if (nodeIndex.has(name)) continue;
+    nodeIndex.set(name, unknownNames.length);
+    unknownNames.push(name);
+  }
+  const nodeCount = nodeIndex.size;
   const branchIndex = new Map<string, number>();
   for (const c of circuit.components) {
     if (!hasBranch(c)) continue;
-    branchIndex.set(c.id, unknownLabels.length);
-    unknownLabels.push(`the branch current of ${c.id}`);
+    branchIndex.set(c.id, unknownNames.length);
+    unknownNames.push(c.id);
   }
 
   let problem: string | undefined;
@@ -173,7 +219,7 @@ export function buildNetwork(circuit: Circuit, op: OperatingPoint): BuildResult 
 
   const conductances: Conductance[] = [];
   const voltageSources: VoltageBranch[] = [];
-  const capacitorsRaw: Omit<Reactive, "redundantShort">[] = [];
+  const capacitors: Reactive[] = [];
   const inductors: Reactive[] = [];
   const voltageControlled: VoltageControlledStamp[] = [];
   const currentControlled: CurrentControlledStamp[] = [];
@@ -191,12 +237,13 @@ export function buildNetwork(circuit: Circuit, op: OperatingPoint): BuildResult 
         break;
       }
       case "capacitor":
-        capacitorsRaw.push({
+        capacitors.push({
           a: node(c.pins.a, c.id),
           b: node(c.pins.b, c.id),
           branch: branchOf(c.id),
           value: c.value.nominal,
           resistance: 0,
+          redundantShort: false,
         });
         break;
       case "inductor":
@@ -254,11 +301,9 @@ export function buildNetwork(circuit: Circuit, op: OperatingPoint): BuildResult 
           problem ??= `the linearised model of ${c.id} has ${linear.y.length} entries for ${n} pins`;
           break;
         }
-        devices.push({
-          id: c.id,
-          pins: Int32Array.from(linear.pins, (p) => node(p, c.id)),
-          y: Float64Array.from(linear.y),
-        });
+        const pins = new Int32Array(n);
+        for (let i = 0; i < n; i++) pins[i] = node(linear.pins[i] as string, c.id);
+        devices.push({ id: c.id, pins, y: linear.y });
       }
     }
   }
@@ -272,9 +317,10 @@ export function buildNetwork(circuit: Circuit, op: OperatingPoint): BuildResult 
   for (const v of voltageSources) loops.union(v.plus, v.minus);
   for (const v of voltageControlled) if (v.branch !== GROUND) loops.union(v.plus, v.minus);
   for (const v of currentControlled) if (v.branch !== GROUND) loops.union(v.plus, v.minus);
-  const capacitors: Reactive[] = capacitorsRaw.map((c) => ({ ...c, redundantShort: !loops.union(c.a, c.b) }));
+  for (const c of capacitors) c.redundantShort = !loops.union(c.a, c.b);
 
-  const size = unknownLabels.length;
+  const size = unknownNames.length;
+  const scratch = scratchFor(size);
   return {
     ok: true,
     network: {
@@ -282,12 +328,8 @@ export function buildNetwork(circuit: Circuit, op: OperatingPoint): BuildResult 
       size,
       nodeIndex,
       branchIndex,
-      unknownLabels,
-      lu: new ComplexLu(size),
-      rhsRe: new Float64Array(size),
-      rhsIm: new Float64Array(size),
-      xRe: new Float64Array(size),
-      xIm: new Float64Array(size),
+      unknownNames,
+      ...scratch,
       conductances,
       voltageSources,
       capacitors,
@@ -427,7 +469,8 @@ function explainSingular(net: SmallSignalNetwork, view: View, failedColumn: numb
     const others = rest.length > 0 ? ` (with ${rest.slice(0, 5).map((n) => `\`${n}\``).join(", ")}${rest.length > 5 ? ", …" : ""})` : "";
     return `the small-signal network is singular ${where}: node \`${first}\`${others} has no path to ground; connect a bias resistor or check the wiring`;
   }
-  const label = net.unknownLabels[failedColumn] ?? `unknown ${failedColumn}`;
+  const name = net.unknownNames[failedColumn] ?? `#${failedColumn}`;
+  const label = failedColumn < nodeCount ? `node \`${name}\`` : `the branch current of ${name}`;
   return `the small-signal network is singular ${where} at ${label}; look for a loop of voltage sources or a node driven only by current sources`;
 }
 
