@@ -300,3 +300,21 @@ export function sweepGain(circuit: Circuit, op: OperatingPoint, gainName: string
   }
   return { gain: gainName, points, lowCorner, highCorner, midband, reference };
 }
+
+/** Sweep points per decade when the caller gives no count: smooth enough to read a Bode plot. */
+export const DEFAULT_POINTS_PER_DECADE = 10;
+/** Decades a default sweep extends beyond the spec band on each side, so both corners show. */
+const DEFAULT_MARGIN_DECADES = 2;
+/** Range of a default sweep when the circuit gives no band: audio and well beyond, Hz. */
+const DEFAULT_START = 1;
+const DEFAULT_STOP = 100e6;
+
+/** The sweep `opgate inspect --sweep` runs when no range is given: the spec band ± two decades. */
+export function defaultSweepRange(circuit: Circuit): SweepOptions {
+  const band = circuit.specs.band;
+  const margin = 10 ** DEFAULT_MARGIN_DECADES;
+  const start = band && band.low > 0 ? band.low / margin : DEFAULT_START;
+  const stop = band && band.high > start ? band.high * margin : DEFAULT_STOP;
+  const decades = Math.log10(stop / start);
+  return { start, stop, points: Math.max(2, Math.round(decades * DEFAULT_POINTS_PER_DECADE) + 1) };
+}
