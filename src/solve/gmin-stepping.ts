@@ -20,7 +20,7 @@ export function gminStepping(plan: Plan, solver: LinearSolver, rec: NewtonRecord
   let first = true;
   for (let gmin = GMIN_START; ; gmin /= GMIN_FACTOR) {
     const g = gmin < GMIN_END * (1 - 1e-9) ? 0 : gmin;
-    newton(plan, solver, { gmin: g, sourceScale: 1, init: first, maxIterations: STEP_ITERATION_CAP }, rec);
+    newton(plan, solver, { gmin: g, sourceScale: 1, init: first, maxIterations: STEP_ITERATION_CAP, polish: g === 0 }, rec);
     total.iterations += rec.iterations;
     first = false;
     if (rec.status !== "converged") return false;

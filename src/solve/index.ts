@@ -43,7 +43,7 @@ export function solveOperatingPoint(circuit: Circuit, options: SolveOptions = {}
     if (aid === "none") {
       plan.x.fill(0);
       for (const d of plan.nonlinear) d.reset?.();
-      newton(plan, solver, { gmin: 0, sourceScale: 1, init: true, maxIterations: PLAIN_ITERATION_CAP }, rec);
+      newton(plan, solver, { gmin: 0, sourceScale: 1, init: true, maxIterations: PLAIN_ITERATION_CAP, polish: true }, rec);
       total.iterations += rec.iterations;
       ok = rec.status === "converged";
     } else if (aid === "gmin-stepping") {

@@ -38,6 +38,8 @@ export interface Plan {
   readonly b: Float64Array;
   readonly x: Float64Array;
   readonly xNew: Float64Array;
+  /** Spare copy of x (the polishing step keeps the accepted point here). */
+  readonly xSpare: Float64Array;
   /** 1 for a KCL row, 0 for a branch-equation row. */
   readonly isNodeRow: Uint8Array;
   readonly target: StampTarget;
@@ -151,6 +153,7 @@ export function compilePlan(circuit: Circuit): CompileResult {
       b,
       x: new Float64Array(n),
       xNew: new Float64Array(n),
+      xSpare: new Float64Array(n),
       isNodeRow,
       target: { a, b, n },
     },

@@ -27,7 +27,7 @@ export function sourceStepping(plan: Plan, solver: LinearSolver, rec: NewtonReco
   for (let k = 0; k < SOURCE_STEP_CAP; k++) {
     const scale = Math.min(1, done + step);
     saved.set(plan.x);
-    newton(plan, solver, { gmin: 0, sourceScale: scale, init: false, maxIterations: STEP_ITERATION_CAP }, rec);
+    newton(plan, solver, { gmin: 0, sourceScale: scale, init: false, maxIterations: STEP_ITERATION_CAP, polish: scale === 1 }, rec);
     total.iterations += rec.iterations;
     if (rec.status === "converged") {
       if (scale === 1) return true;
