@@ -76,6 +76,8 @@ export type ValueResult = { readonly ok: true; readonly value: number } | { read
 
 const NUMBER = /^([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)\s*(.*)$/s;
 const IEC_CODE = /^([+-]?)(\d*)([RKkMGTpnuµμm])(\d+)$/;
+/** Letter at the end (`100R`, `10K`): the IEC 60062 form for whole values; R and K only, as the others are plain SI prefixes. */
+const IEC_CODE_WHOLE = /^([+-]?)(\d+)([RK])$/;
 
 const ok = (value: number): ValueResult => ({ ok: true, value });
 const fail = (message: string, hint?: string): ValueResult => ({ ok: false, message, ...(hint ? { hint } : {}) });
@@ -119,6 +121,8 @@ export function parseValue(raw: unknown, quantity: Quantity): ValueResult {
     const n = Number(`${sign}${whole || "0"}.${frac}`) * mult;
     return ok(n);
   }
+  const whole = IEC_CODE_WHOLE.exec(text);
+  if (whole && (quantity === "resistance" || quantity === "any")) return ok(Number(`${whole[1]}${whole[2]}`) * IEC_CODE_LETTERS[whole[3]!]!);
   const m = NUMBER.exec(text);
   if (!m) {
     return fail(`\`${text}\` is not a number`, "write a number with an optional SI prefix and unit, e.g. 4.7k, 10 uF, 2.2 kΩ, or an expression `= name`");
