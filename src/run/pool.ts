@@ -11,6 +11,13 @@ import type { CircuitResult } from "../report/document.js";
 import type { CircuitFile } from "./discover.js";
 import type { FromWorker, ToWorker, WorkerStart } from "./protocol.js";
 
+/**
+ * A worker first loads the whole pipeline (about a second on a CI runner, measured with
+ * bench/repo.ts) while a file takes milliseconds: below this many files per extra worker the
+ * start-up cannot be paid back, so fewer workers are started.
+ */
+export const MIN_FILES_PER_WORKER = 64;
+
 /** Replacements allowed per job slot before giving up on threads (a crash loop would never end). */
 export const RESPAWNS_PER_JOB = 3;
 
@@ -25,6 +32,10 @@ export interface PoolOptions {
   readonly onNotice?: (message: string) => void;
   /** Tests only: workers exit abruptly on this display path. */
   readonly crashOn?: string;
+  /** Default MIN_FILES_PER_WORKER; tests use 1 to run workers on a handful of files. */
+  readonly minFilesPerWorker?: number;
+  /** Default true. Tests set false so that every file goes through a worker thread. */
+  readonly mainThreadLane?: boolean;
 }
 
 export function internalErrorResult(file: CircuitFile, message: string): CircuitResult {
@@ -93,30 +104,35 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
     }
   };
 
-  const jobs = Math.max(1, Math.min(options.jobs, total));
+  const perWorker = options.minFilesPerWorker ?? MIN_FILES_PER_WORKER;
+  const jobs = Math.max(1, Math.min(options.jobs, 1 + Math.floor(total / perWorker)));
   if (jobs <= 1 || total === 0) {
     await inProcess();
     return results as CircuitResult[];
   }
 
+  // This thread is one of the lanes: it is warm already, while a worker first has to load the
+  // whole pipeline. So `--jobs N` runs N − 1 workers beside it.
   await new Promise<void>((resolveAll) => {
     const entry = workerEntry();
     const start: WorkerStart = { context: options.context, ...(options.crashOn !== undefined ? { crashOn: options.crashOn } : {}) };
     const live = new Set<Worker>();
     let respawns = 0;
-    let fellBack = false;
+    let noticed = false;
+    let resolved = false;
     const checkDone = (): void => {
-      if (done === total) {
+      if (done === total && !resolved) {
+        resolved = true;
         for (const w of live) void w.terminate();
         live.clear();
         resolveAll();
       }
     };
-    const fallBack = (why: string): void => {
-      if (fellBack) return;
-      fellBack = true;
-      options.onNotice?.(`worker threads are unavailable (${why}); checking the remaining files in one thread`);
-      void inProcess().then(checkDone);
+    const giveUp = (why: string): void => {
+      if (noticed) return;
+      noticed = true;
+      options.onNotice?.(`worker threads are unavailable (${why}); this thread checks the remaining files`);
+      if (!(options.mainThreadLane ?? true)) void inProcess().then(checkDone);
     };
     const spawn = (): void => {
       const worker = new Worker(entry.entry, { workerData: start, eval: entry.eval });
@@ -162,18 +178,17 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
           finish(idx, internalErrorResult(f, `the check of this file stopped unexpectedly (its worker thread exited with code ${code}${lastError ? `: ${lastError}` : ""})`));
           options.onNotice?.(`a worker thread died while checking ${f.display}; it was replaced`);
         }
-        if (!ready) {
-          fallBack(lastError || `exit code ${code}`);
-          return;
-        }
-        if (next < total) {
+        if (!ready) giveUp(lastError || `exit code ${code}`);
+        else if (next < total) {
           if (respawns++ < RESPAWNS_PER_JOB * jobs) spawn();
-          else fallBack("too many worker crashes");
+          else giveUp("too many worker crashes");
         }
         checkDone();
       });
     };
-    for (let k = 0; k < jobs; k++) spawn();
+    const mainLane = options.mainThreadLane ?? true;
+    for (let k = 0; k < (mainLane ? jobs - 1 : jobs); k++) spawn();
+    if (mainLane) void inProcess().then(checkDone);
   });
   return results as CircuitResult[];
 }

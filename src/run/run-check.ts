@@ -17,8 +17,10 @@ export interface RunOptions {
   readonly timestamp?: string;
   readonly onProgress?: (done: number, total: number) => void;
   readonly onNotice?: (message: string) => void;
-  /** Tests only, see PoolOptions.crashOn. */
+  /** Tests only, see PoolOptions.crashOn and minFilesPerWorker. */
   readonly crashOn?: string;
+  readonly minFilesPerWorker?: number;
+  readonly mainThreadLane?: boolean;
 }
 
 export async function runCheck(allFiles: readonly CircuitFile[], options: RunOptions): Promise<ResultsDocument> {
@@ -30,6 +32,8 @@ export async function runCheck(allFiles: readonly CircuitFile[], options: RunOpt
     ...(options.onProgress ? { onProgress: options.onProgress } : {}),
     ...(options.onNotice ? { onNotice: options.onNotice } : {}),
     ...(options.crashOn !== undefined ? { crashOn: options.crashOn } : {}),
+    ...(options.minFilesPerWorker !== undefined ? { minFilesPerWorker: options.minFilesPerWorker } : {}),
+    ...(options.mainThreadLane !== undefined ? { mainThreadLane: options.mainThreadLane } : {}),
   });
   const { config, rules } = options.ctx;
   return buildDocument(circuits, {
