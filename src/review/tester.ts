@@ -49,8 +49,10 @@ export interface RuleTestResult {
 const NOMINAL: VariationSettings = { mode: "nominal", samples: 1, seed: 1 };
 const FILE_REFERENCE = /^[^\n]+\.(ya?ml|json)$/i;
 
+/** A circuit name from a case name (names start with a letter). */
 function slug(text: string): string {
-  return text.toLowerCase().replace(/[^a-z0-9]+/g, "-").replace(/^-|-$/g, "").slice(0, 60) || "case";
+  const s = text.toLowerCase().replace(/[^a-z0-9]+/g, "-").replace(/^-|-$/g, "").slice(0, 60);
+  return /^[a-z]/.test(s) ? s : `case-${s}`;
 }
 
 /**
