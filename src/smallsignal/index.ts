@@ -4,7 +4,7 @@
 
 import type { Circuit, Component, CurrentSource, GainSpec, VoltageSource } from "../circuit/types.js";
 import type { OperatingPoint } from "../solve/types.js";
-import { buildNetwork, factorView, GROUND, MIDBAND, type SmallSignalNetwork, type View } from "./network.js";
+import { buildNetwork, factorView, GROUND, MIDBAND, midbandInputShort, type SmallSignalNetwork, type View } from "./network.js";
 import type { ComplexValue, FrequencyPoint, GainResult, SmallSignalResult, SweepResult } from "./types.js";
 
 export type { View } from "./network.js";
@@ -58,6 +58,10 @@ function resolveGain(circuit: Circuit, net: SmallSignalNetwork, spec: GainSpec):
   if (plus === undefined) return `output node \`${spec.output.plus}\` is not in the circuit`;
   if (minus === undefined) return `output node \`${spec.output.minus}\` is not in the circuit`;
   return { spec, source, amplitude, plus, minus };
+}
+
+function inputShort(net: SmallSignalNetwork, g: ResolvedGain): string | null {
+  return g.source.kind === "voltage-source" ? midbandInputShort(net, net.branchIndex.get(g.source.id) as number) : null;
 }
 
 function valueAt(x: Float64Array, k: number): number {
@@ -143,6 +147,11 @@ export function analyseSmallSignal(circuit: Circuit, op: OperatingPoint): SmallS
       pending = [];
     }
     for (const g of pending) {
+      const shorted = inputShort(net, g);
+      if (shorted !== null) {
+        errors.push({ gain: g.spec.name, message: shorted });
+        continue;
+      }
       const gain = solveGain(net, g).gain.re;
       const zin = inputImpedance(net, g);
       const zout = outputImpedance(net, g);
@@ -247,7 +256,7 @@ export function sweepGain(circuit: Circuit, op: OperatingPoint, gainName: string
   if (typeof g === "string") return sweepFailure(gainName, g);
 
   const singularMid = factorView(net, MIDBAND);
-  const midband = singularMid === null ? solveGain(net, g).gain.re : null;
+  const midband = singularMid === null && inputShort(net, g) === null ? solveGain(net, g).gain.re : null;
 
   const evaluate = (f: number): FrequencyPoint | string => {
     const view: View = { kind: "frequency", frequency: f };

@@ -474,6 +474,35 @@ function explainSingular(net: SmallSignalNetwork, view: View, failedColumn: numb
   return `the small-signal network is singular ${where} at ${label}; look for a loop of voltage sources or a node driven only by current sources`;
 }
 
+/**
+ * At midband, a voltage input whose two pins are joined through a node by capacitor shorts
+ * (C1 from the input to x, C2 from x back) is contradictory: the view fixes x twice, and which
+ * capacitor "wins" would be arbitrary. A capacitor straight across the input (or across it
+ * through other, zeroed, sources) is harmless: the ideal source wins, as at every frequency.
+ * Returns the message for that gain, or null when the input is free.
+ */
+export function midbandInputShort(net: SmallSignalNetwork, inputBranch: number): string | null {
+  const source = net.voltageSources.find((v) => v.branch === inputBranch);
+  if (!source) return null;
+  const islands = new Islands(net.nodeIndex.size);
+  for (const v of net.voltageSources) if (v !== source) islands.union(v.plus, v.minus);
+  for (const e of net.voltageControlled) if (e.branch !== GROUND) islands.union(e.plus, e.minus);
+  for (const f of net.currentControlled) if (f.branch !== GROUND) islands.union(f.plus, f.minus);
+  const plus = islands.find(source.plus);
+  const minus = islands.find(source.minus);
+  const across = net.capacitors.map((c) => {
+    const a = islands.find(c.a);
+    const b = islands.find(c.b);
+    return (a === plus && b === minus) || (a === minus && b === plus);
+  });
+  net.capacitors.forEach((c, i) => {
+    if (!across[i]) islands.union(c.a, c.b);
+  });
+  if (islands.find(source.plus) !== islands.find(source.minus)) return null;
+  const id = net.unknownNames[inputBranch] ?? "the input";
+  return `at midband (capacitors short) a chain of capacitors joins the two pins of input \`${id}\`, so the midband gain is undefined; give the gain a \`frequency\` or check the capacitors around the input`;
+}
+
 /** Assembles and factors one view; returns null on success, else a message naming the node at fault. */
 export function factorView(net: SmallSignalNetwork, view: View): string | null {
   assemble(net, view);

@@ -171,3 +171,58 @@ describe("bad networks give errors, never NaN", () => {
     expect(sweepGain(c, op, "nope", { start: 1, stop: 10, points: 10 }).error).toMatch(/known: g/);
   });
 });
+
+describe("sweep reference and singular loops", () => {
+  it("band-pass (coupling C, buffer, load C): both corners to 0.1% with the midband view degenerate (handbook formulas)", () => {
+    const R1 = 10e3;
+    const C1 = 1e-6; // f1 = 15.9 Hz
+    const R2 = 100;
+    const C2 = 100e-12; // f2 = 15.9 MHz: 1e6 above f1, so the poles interact by ~1e-6 only
+    const c = circuit("vane-bandpass")
+      .vsource("VIN", "in", "gnd", 0, 1)
+      .capacitor("C1", "in", "x", C1)
+      .resistor("R1", "x", "gnd", R1)
+      .vcvs("E1", "y", "gnd", "x", "gnd", 1)
+      .resistor("R2", "y", "out", R2)
+      .capacitor("C2", "out", "gnd", C2)
+      .gain("bp", "VIN", "out")
+      .build();
+    const s = sweepGain(c, op, "bp", { start: 0.1, stop: 1e10, points: 111 });
+    expect(s.midband).toBe(0); // C2 is shorted at midband
+    expect(s.reference).toBeGreaterThan(0.999);
+    expect(relErr(s.lowCorner as number, 1 / (2 * Math.PI * R1 * C1))).toBeLessThan(1e-3);
+    expect(relErr(s.highCorner as number, 1 / (2 * Math.PI * R2 * C2))).toBeLessThan(1e-3);
+  });
+
+  it("two voltage sources across the same nodes: singular, reported with the branch at fault", () => {
+    const c = circuit("parallel-sources").vsource("VIN", "in", "gnd", 0, 1).vsource("V2", "in", "gnd", 0).resistor("R1", "in", "gnd", 1e3).gain("g", "VIN", "in").build();
+    const r = analyseSmallSignal(c, op);
+    expect(r.gains).toEqual([]);
+    expect(r.errors[0]!.message).toMatch(/singular at midband .* branch current of (VIN|V2)/);
+    const s = sweepGain(c, op, "g", { start: 1, stop: 10, points: 3 });
+    expect(s.error).toMatch(/singular at 1 Hz/);
+    expect(s.points).toEqual([]);
+  });
+
+  it("capacitors joining the input's pins at midband: an error for that gain; the sweep still runs", () => {
+    const c = circuit("cap-divider").vsource("VIN", "in", "gnd", 0, 1).capacitor("C1", "in", "x", 1e-9).capacitor("C2", "x", "gnd", 1e-9).gain("g", "VIN", "x").build();
+    const r = analyseSmallSignal(c, op);
+    expect(r.gains).toEqual([]);
+    expect(r.errors[0]!.message).toMatch(/joins the two pins of input `VIN`/);
+    // Capacitive divider C1/(C1 + C2) = 0.5 at every frequency above 0 (handbook formula).
+    const s = sweepGain(c, op, "g", { start: 1, stop: 1e6, points: 4 });
+    expect(s.midband).toBeNull();
+    for (const p of s.points) expect(p.magnitude).toBeCloseTo(0.5, 12);
+  });
+
+  it("a decoupling capacitor across the input source itself is harmless", () => {
+    const c = circuit("input-decoupled").vsource("VIN", "in", "gnd", 0, 1).capacitor("C1", "in", "gnd", 1e-9).resistor("R1", "in", "out", 1e3).resistor("R2", "out", "gnd", 3e3).gain("g", "VIN", "out").build();
+    const r = analyseSmallSignal(c, op);
+    // C1 straight across VIN: the ideal source wins at every frequency, so at midband too.
+    expect(r.errors).toEqual([]);
+    expect(r.gains[0]!.midband).toBeCloseTo(0.75, 14);
+    // Across VIN through the zeroed supply (C from `in` to vcc, VCC to ground): the same.
+    const c2 = circuit("input-to-rail").vsource("VCC", "vcc", "gnd", 5).vsource("VIN", "in", "gnd", 0, 1).capacitor("C1", "in", "vcc", 1e-9).resistor("R1", "in", "out", 1e3).resistor("R2", "out", "vcc", 3e3).gain("g", "VIN", "out").build();
+    expect(analyseSmallSignal(c2, op).gains[0]!.midband).toBeCloseTo(0.75, 14);
+  });
+});
