@@ -200,7 +200,11 @@ export function checkTopology(circuit: Circuit): TopologyResult {
       continue;
     }
     if (!vg.join(a, b)) {
-      const loop = [...branchPath(edges, b, a), c.id];
+      const found = [...branchPath(edges, b, a), c.id];
+      // Start the cycle at the part that comes first in the file, so the message reads naturally.
+      const order = circuit.components.map((x) => x.id);
+      const first = found.reduce((best, id, i) => (order.indexOf(id) < order.indexOf(found[best]!) ? i : best), 0);
+      const loop = [...found.slice(first), ...found.slice(0, first)];
       errors.push({
         ...at(c.pos),
         message: `loop of voltage sources and DC shorts: ${loop.join(" → ")} → ${loop[0]}`,

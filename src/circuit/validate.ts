@@ -163,7 +163,7 @@ export function validateWithSchema(
     if (e.keyword === "required" && typoTargets.has(`${e.instancePath}|${(e.params as { missingProperty: string }).missingProperty}`)) continue;
     const path = typedPath(value, pointerToPath(e.instancePath));
     const data = valueAt(value, path);
-    const where = options.describe?.(path, value) ?? `\`${pathText(path)}\``;
+    const where = options.describe?.(path, value) ?? (path.length ? `\`${pathText(path)}\`` : pathText(path));
     const custom = options.rewrite?.(e, path, value);
     const g = generic(e, path, where, data);
     const text = custom ?? g;
