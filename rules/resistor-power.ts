@@ -27,7 +27,8 @@ export default defineRule({
         default: { "0201": 0.05, "0402": 0.0625, "0603": 0.1, "0805": 0.125, "1206": 0.25, "1210": 0.5, "2010": 0.75, "2512": 1 },
         description: "Rating in W by chip size code, used when a resistor gives a package but no powerRating",
       },
-      // A careful reviewer assumes the smallest common chip (0402, 1/16 W) when nothing is said.
+      // Common practice for a careful reviewer: assume the smallest common chip (0402, 1/16 W)
+      // when the file says nothing about the part.
       defaultRating: { type: "number", exclusiveMinimum: 0, default: 0.0625, description: "Rating in W assumed for a resistor with neither powerRating nor a known package" },
     },
   },

@@ -14,6 +14,8 @@ export interface RuleSetting {
 export interface ResolvedConfig {
   /** The config file, or null when none was found (defaults apply). */
   readonly file: string | null;
+  /** The config file as messages name it (relative to the working folder); added by the review stage. */
+  readonly shownFile?: string;
   /** Folder paths and globs are relative to (the config file's folder, else the working directory). */
   readonly root: string;
   readonly include: readonly string[];

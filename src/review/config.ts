@@ -176,6 +176,7 @@ export async function loadConfig(options: LoadConfigOptions): Promise<ResolvedCo
 
   return freezeConfig({
     file,
+    shownFile: shown,
     root,
     include: raw.include ?? [...DEFAULT_INCLUDE],
     exclude: [...DEFAULT_EXCLUDE, ...(raw.exclude ?? [])],

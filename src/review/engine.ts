@@ -47,7 +47,7 @@ export interface RuleResults {
 /** Throws one ConfigError listing every bad option of every rule (nothing has run yet). */
 export function validateRuleOptions(rules: readonly ConfiguredRule[]): ConfiguredRule[] {
   const problems: ConfigProblem[] = [];
-  for (const c of rules) problems.push(...optionProblems(c.rule, c.options ?? {}, c.origin ?? { file: null }));
+  for (const c of rules) problems.push(...optionProblems(c.rule, c.options ?? {}, { file: null, ...c.origin, ruleSource: c.source }));
   if (problems.length > 0) throw new ConfigError(problems);
   return rules.map((c) => ({ ...c, options: resolveOptions(c.rule, c.options ?? {}, c.origin ?? { file: null }) }));
 }

@@ -14,6 +14,8 @@ export interface OptionsOrigin {
   readonly pos?: SourcePos;
   /** Position of each option key, when known. */
   readonly keyPos?: Readonly<Record<string, SourcePos>>;
+  /** "builtin" or the plugin path: where a broken default must be fixed. */
+  readonly ruleSource?: string;
 }
 
 // One ajv instance for all rule schemas; `useDefaults` fills in every property's `default`.
@@ -60,7 +62,17 @@ function explain(rule: Rule, e: ErrorObject, raw: unknown, origin: OptionsOrigin
   }
   const key = path.join(".") || "(options)";
   const pos = origin.keyPos?.[path[0] ?? ""] ?? origin.pos;
-  const received = describeValue(valueAt(raw, e.instancePath));
+  const given = valueAt(raw, e.instancePath);
+  if (given === undefined && path.length > 0) {
+    // Nobody set it: the rule's own default fails the rule's schema.
+    const where = origin.ruleSource && origin.ruleSource !== "builtin" ? origin.ruleSource : null;
+    return {
+      file: where,
+      message: `rule \`${rule.id}\` has a default for option \`${key}\` that its own schema refuses: ${e.message ?? "invalid"}`,
+      hint: "fix the `default` in the rule's options schema",
+    };
+  }
+  const received = describeValue(given);
   let hint: string | undefined;
   if (e.keyword === "enum") {
     const allowed = ((e.params as { allowedValues: unknown[] }).allowedValues ?? []).map(String);

@@ -98,7 +98,7 @@ export function allRules(plugins: readonly LoadedPlugin[]): { rule: Rule; source
 export function configuredRules(config: ResolvedConfig, plugins: readonly LoadedPlugin[]): ConfiguredRule[] {
   const rules = allRules(plugins);
   const ids = rules.map((r) => r.rule.id);
-  const shownFile = config.file === null ? null : (Object.values(config.rules)[0]?.pos?.file ?? relative(process.cwd(), config.file));
+  const shownFile = config.file === null ? null : (config.shownFile ?? config.file);
   const problems: ConfigProblem[] = [];
   for (const [id, setting] of Object.entries(config.rules))
     if (!ids.includes(id)) problems.push(problemAt(setting.pos, shownFile, `the config names rule \`${id}\`, which is neither built in nor in a plugin`, didYouMean(id, ids) ?? "run `opgate rules` for the list"));
@@ -111,7 +111,7 @@ export function configuredRules(config: ResolvedConfig, plugins: readonly Loaded
         source,
         severity: setting?.severity ?? rule.severity,
         options: setting?.options ?? {},
-        origin: { file: setting?.pos?.file ?? shownFile, ...(setting?.pos ? { pos: setting.pos } : {}), ...(setting?.optionsPos ? { keyPos: setting.optionsPos } : {}) },
+        origin: { file: setting?.pos?.file ?? shownFile, ruleSource: source, ...(setting?.pos ? { pos: setting.pos } : {}), ...(setting?.optionsPos ? { keyPos: setting.optionsPos } : {}) },
       };
     }),
   );
