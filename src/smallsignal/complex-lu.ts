@@ -187,13 +187,17 @@ export class ComplexLu {
     xIm.set(tmpIm);
   }
 
+  // Forward substitution runs by columns and skips zero entries: the right-hand sides here
+  // are one drive or one test current, so most of x stays zero until late.
   private substituteReal(x: Float64Array): void {
     const { n, re, rowAt } = this;
-    for (let i = 1; i < n; i++) {
-      const row = rowAt[i] as number;
-      let s = x[i] as number;
-      for (let j = 0; j < i; j++) s -= (re[row + j] as number) * (x[j] as number);
-      x[i] = s;
+    for (let j = 0; j < n - 1; j++) {
+      const v = x[j] as number;
+      if (v === 0) continue;
+      for (let i = j + 1; i < n; i++) {
+        const l = re[(rowAt[i] as number) + j] as number;
+        if (l !== 0) x[i] = (x[i] as number) - l * v;
+      }
     }
     for (let i = n - 1; i >= 0; i--) {
       const row = rowAt[i] as number;
@@ -205,20 +209,18 @@ export class ComplexLu {
 
   private substituteComplex(xr: Float64Array, xi: Float64Array): void {
     const { n, re, im, rowAt } = this;
-    for (let i = 1; i < n; i++) {
-      const row = rowAt[i] as number;
-      let sr = xr[i] as number;
-      let si = xi[i] as number;
-      for (let j = 0; j < i; j++) {
-        const lr = re[row + j] as number;
-        const li = im[row + j] as number;
-        const vr = xr[j] as number;
-        const vi = xi[j] as number;
-        sr -= lr * vr - li * vi;
-        si -= lr * vi + li * vr;
+    for (let j = 0; j < n - 1; j++) {
+      const vr = xr[j] as number;
+      const vi = xi[j] as number;
+      if (vr === 0 && vi === 0) continue;
+      for (let i = j + 1; i < n; i++) {
+        const o = (rowAt[i] as number) + j;
+        const lr = re[o] as number;
+        const li = im[o] as number;
+        if (lr === 0 && li === 0) continue;
+        xr[i] = (xr[i] as number) - (lr * vr - li * vi);
+        xi[i] = (xi[i] as number) - (lr * vi + li * vr);
       }
-      xr[i] = sr;
-      xi[i] = si;
     }
     for (let i = n - 1; i >= 0; i--) {
       const row = rowAt[i] as number;

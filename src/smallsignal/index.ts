@@ -9,10 +9,15 @@ import type { ComplexValue, FrequencyPoint, GainResult, SmallSignalResult, Sweep
 
 export type { View } from "./network.js";
 
-/** Bisection on the log-frequency axis stops when the bracket is this narrow (ratio − 1). */
-const CORNER_RELATIVE_WIDTH = 1e-10;
-/** Enough halvings to shrink any sweep bracket (at most a few decades) below the width above. */
-const CORNER_MAX_ITERATIONS = 80;
+/**
+ * The corner search on the log-frequency axis stops when the bracket is this narrow (in ln f,
+ * i.e. a relative width): 1e-9 is a million times finer than the 0.1 % a designer reads.
+ */
+const CORNER_RELATIVE_WIDTH = 1e-9;
+/** A corner evaluation this close to the −3 dB level (in dB) is the corner. */
+const CORNER_DB_RESOLUTION = 1e-12;
+/** Bound on corner-search evaluations; bisection alone would need ~40 for any sweep bracket. */
+const CORNER_MAX_ITERATIONS = 60;
 /** The −3 dB level: |H| = reference / √2. */
 const HALF_POWER = Math.SQRT1_2;
 
@@ -281,18 +286,30 @@ export function sweepGain(circuit: Circuit, op: OperatingPoint, gainName: string
   const level = reference * HALF_POWER;
 
   const corner = (i: number): number => {
-    // Bracket [i, i+1] straddles the level; bisect on log f with real solves.
-    let lo = (points[i] as FrequencyPoint).frequency;
-    let hi = (points[i + 1] as FrequencyPoint).frequency;
-    const loAbove = (points[i] as FrequencyPoint).magnitude >= level;
-    for (let it = 0; it < CORNER_MAX_ITERATIONS && hi / lo - 1 > CORNER_RELATIVE_WIDTH; it++) {
-      const mid = Math.sqrt(lo * hi);
-      const p = evaluate(mid);
-      if (typeof p === "string") break;
-      if (p.magnitude >= level === loAbove) lo = mid;
-      else hi = mid;
+    // Bracket [i, i+1] straddles the level. Regula falsi with the Illinois modification on
+    // (log f, dB − level dB): superlinear on these smooth curves, and it keeps the bracket.
+    const levelDb = 20 * Math.log10(level);
+    let a = Math.log((points[i] as FrequencyPoint).frequency);
+    let b = Math.log((points[i + 1] as FrequencyPoint).frequency);
+    let ga = (points[i] as FrequencyPoint).db - levelDb;
+    let gb = (points[i + 1] as FrequencyPoint).db - levelDb;
+    for (let it = 0; it < CORNER_MAX_ITERATIONS && Math.abs(b - a) > CORNER_RELATIVE_WIDTH; it++) {
+      let x = b - (gb * (b - a)) / (gb - ga);
+      if (!(x > Math.min(a, b) && x < Math.max(a, b))) x = (a + b) / 2;
+      const p = evaluate(Math.exp(x));
+      if (typeof p === "string" || !Number.isFinite(p.db)) break;
+      const gx = p.db - levelDb;
+      if (Math.abs(gx) < CORNER_DB_RESOLUTION) return Math.exp(x);
+      if (gx * gb < 0) {
+        a = b;
+        ga = gb;
+      } else {
+        ga /= 2; // Illinois: halve the stale end's value so the search cannot stall on it
+      }
+      b = x;
+      gb = gx;
     }
-    return Math.sqrt(lo * hi);
+    return Math.exp((a + b) / 2);
   };
 
   const firstIn = points.findIndex((p) => p.magnitude >= level);
