@@ -29,11 +29,6 @@ interface ResolvedGain {
   readonly minus: number;
 }
 
-/** A view solved for one gain: the complex gain, and at midband the two impedances. */
-interface Solved {
-  readonly gain: ComplexValue;
-}
-
 export function frequencyPoint(frequency: number, value: ComplexValue): FrequencyPoint {
   const magnitude = Math.hypot(value.re, value.im);
   return {
@@ -90,15 +85,13 @@ function inject(net: SmallSignalNetwork, into: number, outOf: number, current: n
   if (outOf !== GROUND) net.rhsRe[outOf] = (net.rhsRe[outOf] as number) - current;
 }
 
-/** Solves the factored view for the gain's drive. */
-function solveGain(net: SmallSignalNetwork, g: ResolvedGain): Solved {
+/** Solves the factored view for the gain's drive: (V(plus) − V(minus)) / amplitude. */
+function solveGain(net: SmallSignalNetwork, g: ResolvedGain): ComplexValue {
   drive(net, g);
   net.lu.solve(net.rhsRe, net.rhsIm, net.xRe, net.xIm);
   return {
-    gain: {
-      re: (valueAt(net.xRe, g.plus) - valueAt(net.xRe, g.minus)) / g.amplitude,
-      im: (valueAt(net.xIm, g.plus) - valueAt(net.xIm, g.minus)) / g.amplitude,
-    },
+    re: (valueAt(net.xRe, g.plus) - valueAt(net.xRe, g.minus)) / g.amplitude,
+    im: (valueAt(net.xIm, g.plus) - valueAt(net.xIm, g.minus)) / g.amplitude,
   };
 }
 
@@ -124,7 +117,7 @@ function outputImpedance(net: SmallSignalNetwork, g: ResolvedGain): number {
 }
 
 function finite(...values: number[]): boolean {
-  return values.every((v) => !Number.isNaN(v) && v !== Infinity && v !== -Infinity);
+  return values.every(Number.isFinite);
 }
 
 export function analyseSmallSignal(circuit: Circuit, op: OperatingPoint): SmallSignalResult {
@@ -157,7 +150,7 @@ export function analyseSmallSignal(circuit: Circuit, op: OperatingPoint): SmallS
         errors.push({ gain: g.spec.name, message: shorted });
         continue;
       }
-      const gain = solveGain(net, g).gain.re;
+      const gain = solveGain(net, g).re;
       const zin = inputImpedance(net, g);
       const zout = outputImpedance(net, g);
       if (!finite(gain, zout) || Number.isNaN(zin)) {
@@ -190,7 +183,7 @@ export function analyseSmallSignal(circuit: Circuit, op: OperatingPoint): SmallS
         failed.add(g);
         continue;
       }
-      const p = frequencyPoint(f, solveGain(net, g).gain);
+      const p = frequencyPoint(f, solveGain(net, g));
       if (!finite(p.re, p.im)) {
         errors.push({ gain: g.spec.name, message: `the solve at ${f} Hz gave a non-finite value; the network is ill-conditioned` });
         failed.add(g);
@@ -261,13 +254,13 @@ export function sweepGain(circuit: Circuit, op: OperatingPoint, gainName: string
   if (typeof g === "string") return sweepFailure(gainName, g);
 
   const singularMid = factorView(net, MIDBAND);
-  const midband = singularMid === null && inputShort(net, g) === null ? solveGain(net, g).gain.re : null;
+  const midband = singularMid === null && inputShort(net, g) === null ? solveGain(net, g).re : null;
 
   const evaluate = (f: number): FrequencyPoint | string => {
     const view: View = { kind: "frequency", frequency: f };
     const singular = factorView(net, view);
     if (singular !== null) return singular;
-    return frequencyPoint(f, solveGain(net, g).gain);
+    return frequencyPoint(f, solveGain(net, g));
   };
 
   const points: FrequencyPoint[] = [];
