@@ -104,6 +104,8 @@ export interface SmallSignalBench {
   readonly sweep100Micros: number;
   readonly perSweepPointMicros: number;
   readonly midbandTargetMicros: number;
+  /** The DC solve of the same circuit, timed in the same run, for a side-by-side ratio. */
+  readonly dcSolveMicros: number;
 }
 
 export async function benchSmallSignal(): Promise<SmallSignalBench> {
@@ -123,19 +125,26 @@ export async function benchSmallSignal(): Promise<SmallSignalBench> {
   const midbandMicros = timeMicros(midband, MIDBAND_RUNS);
   for (let i = 0; i < 5; i++) sweep();
   const sweep100Micros = timeMicros(sweep, SWEEP_RUNS);
+  const dc = () => {
+    sink += solveOperatingPoint(circuit).ok ? 0 : 1;
+  };
+  for (let i = 0; i < 20; i++) dc();
+  const dcSolveMicros = timeMicros(dc, SWEEP_RUNS);
   const result: SmallSignalBench = {
     nodes: circuit.nodes.length,
     midbandMicros,
     sweep100Micros,
     perSweepPointMicros: sweep100Micros / SWEEP_POINTS,
     midbandTargetMicros: MIDBAND_TARGET_MICROS,
+    dcSolveMicros,
   };
   if (!Number.isFinite(sink)) throw new Error("bench produced a non-finite gain");
   console.log(
     `small-signal (${result.nodes}-node cascade): midband gain + impedances ${midbandMicros.toFixed(1)} µs median ` +
       `(target < ${MIDBAND_TARGET_MICROS} µs: ${midbandMicros < MIDBAND_TARGET_MICROS ? "met" : "MISSED"}); ` +
       `${SWEEP_POINTS}-point sweep with corners ${sweep100Micros.toFixed(0)} µs median ` +
-      `(${result.perSweepPointMicros.toFixed(1)} µs per point, ${(sweep100Micros / midbandMicros).toFixed(1)}× the midband analysis)`,
+      `(${result.perSweepPointMicros.toFixed(1)} µs per point, ${(sweep100Micros / midbandMicros).toFixed(1)}× the midband analysis); ` +
+      `DC solve of the same circuit ${dcSolveMicros.toFixed(0)} µs (midband analysis = ${(midbandMicros / dcSolveMicros).toFixed(2)}× the DC solve)`,
   );
   return result;
 }
