@@ -15,5 +15,7 @@ export function expectGolden(name: string, actual: string): void {
     return;
   }
   if (!existsSync(path)) throw new Error(`golden file ${name} is missing: run with UPDATE_GOLDEN=1 to create it, then review it`);
-  expect(actual).toBe(readFileSync(path, "utf8"));
+  expect(actual, `${name} differs from its golden file; if the change is intended, run UPDATE_GOLDEN=1 npx vitest run test/report and review the diff`).toBe(
+    readFileSync(path, "utf8"),
+  );
 }

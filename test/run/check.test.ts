@@ -55,7 +55,7 @@ describe("opgate check", () => {
     const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude });
     const notices: string[] = [];
     const onNotice = (m: string): void => void notices.push(m);
-    const threaded = await runCheck(files, { ctx, contextOptions: { cwd: repo.dir }, jobs: 3, minFilesPerWorker: 1, mainThreadLane: false, onNotice });
+    const threaded = await runCheck(files, { ctx, contextOptions: { cwd: repo.dir }, jobs: 2, minFilesPerWorker: 1, mainThreadLane: false, onNotice });
     const single = await runCheck(files, { ctx, contextOptions: { cwd: repo.dir }, jobs: 1 });
     expect(notices).toEqual([]);
     expect(renderJson(threaded)).toBe(renderJson(single));
