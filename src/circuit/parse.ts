@@ -1,6 +1,6 @@
 // Parsing untrusted YAML/JSON text into a plain value while keeping source positions.
 // Guards: size cap, duplicate keys, prototype keys, alias expansion cap, one document only.
-import { isAlias, isPair, isScalar, LineCounter, parseDocument, visit } from "yaml";
+import { isAlias, isPair, isScalar, LineCounter, parseDocument, visit, type Document } from "yaml";
 import { positionAtOffset, type PositionedDocument } from "./positions.js";
 import type { InputError } from "./types.js";
 
@@ -16,6 +16,26 @@ export const FORBIDDEN_KEYS: ReadonlySet<string> = new Set(["__proto__", "constr
 export type ParseResult =
   | { readonly ok: true; readonly value: unknown; readonly positioned: PositionedDocument }
   | { readonly ok: false; readonly errors: readonly InputError[] };
+
+/** The parser's problems in plain words, with what to do. */
+function yamlProblem(code: string, raw: string, json: boolean): { message: string; hint: string } {
+  const text = firstLine(raw);
+  if (/call stack/i.test(text)) return { message: "the document is nested too deeply to read", hint: "circuit files need only a few levels of nesting" };
+  switch (code) {
+    case "DUPLICATE_KEY":
+      return { message: "duplicate key: each key may appear once in a mapping", hint: "remove or rename one of the two entries" };
+    case "MULTIPLE_DOCS":
+      return { message: "the file holds more than one YAML document", hint: "keep one circuit per file (remove the `---` separator)" };
+    case "TAG_RESOLVE_FAILED":
+      return { message: `unknown YAML tag (${text.replace(/^Unresolved tag: /, "")})`, hint: "remove the tag; circuit files use plain values only" };
+    case "RESOURCE_EXHAUSTION":
+      return { message: "the document expands too much (aliases or size)", hint: "write the values out instead of nesting anchors and aliases" };
+    case "TAB_AS_INDENT":
+      return { message: "a tab is used for indentation", hint: "indent with spaces" };
+    default:
+      return { message: `invalid ${json ? "JSON" : "YAML"}: ${text}`, hint: "fix the syntax at this point" };
+  }
+}
 
 function firstLine(message: string): string {
   return (message.split("\n")[0] ?? message).replace(/ at line \d+, column \d+:?$/, "").trim();
@@ -87,16 +107,17 @@ export function parseDocumentWithPositions(text: string, file: string, options: 
     const err = jsonSyntaxError(text, file, new LineCounterFor(text));
     if (err) return { ok: false, errors: [err] };
   }
-  const doc = parseDocument(text, { lineCounter, prettyErrors: false, uniqueKeys: true, merge: false });
+  let doc: Document.Parsed;
+  try {
+    doc = parseDocument(text, { lineCounter, prettyErrors: false, uniqueKeys: true, merge: false }) as Document.Parsed;
+  } catch (err) {
+    return { ok: false, errors: [{ file, message: `cannot read the document: ${firstLine(err instanceof Error ? err.message : String(err))}`, hint: "check the file's syntax" }] };
+  }
   const errors: InputError[] = [];
   for (const e of [...doc.errors, ...doc.warnings]) {
     const at = e.linePos?.[0] ?? lineCounter.linePos(e.pos[0]);
-    errors.push({
-      file,
-      ...(at ? { line: at.line, column: at.col } : {}),
-      message: e.code === "DUPLICATE_KEY" ? "duplicate key: each key may appear once in a mapping" : `invalid ${options.json ? "JSON" : "YAML"}: ${firstLine(e.message)}`,
-      hint: e.code === "DUPLICATE_KEY" ? "remove or rename one of the two entries" : "fix the syntax at this point",
-    });
+    const { message, hint } = yamlProblem(e.code, e.message, options.json === true);
+    errors.push({ file, ...(at ? { line: at.line, column: at.col } : {}), message, hint });
   }
   if (errors.length) return { ok: false, errors };
   const positioned: PositionedDocument = { file, doc, lineCounter };

@@ -51,6 +51,9 @@ const CORPUS: Record<string, [RegExp, boolean]> = {
   "spread-out-of-order.yaml": [/range \{min: 300, typ: 200, max: 400\} is out of order/, true],
   "ground-unconnected.yaml": [/no component connects to the ground node `gnd`.*ground: 0/, true],
   "not-a-mapping.yaml": [/must be a mapping/, true],
+  "unknown-tag.yaml": [/unknown YAML tag/, true],
+  "multiple-documents.yaml": [/more than one YAML document/, true],
+  "tab-indent.yaml": [/a tab is used for indentation/, true],
 };
 
 function fakeIo(cwd: string): CliIo & { out: string[]; err: string[] } {
@@ -95,6 +98,14 @@ describe("bad-input corpus through `opgate check`", () => {
     const { code, text } = await check("huge.yaml", dir);
     expect(code).toBe(2);
     expectCleanError(text, "huge.yaml", /file is too large \(\d+ bytes; the limit is 1048576 bytes\)/, false);
+  });
+
+  it("absurd nesting is refused without a crash", async () => {
+    const dir = mkdtempSync(join(tmpdir(), "opgate-deep-"));
+    writeFileSync(join(dir, "deep.yaml"), `format: opgate-circuit/1\nname: deep\ncomponents: ${"[".repeat(200_000)}${"]".repeat(200_000)}\n`);
+    const { code, text } = await check("deep.yaml", dir);
+    expect(code).toBe(2);
+    expectCleanError(text, "deep.yaml", /nested too deeply/, true);
   });
 
   it("a file of another type named explicitly is refused", async () => {
