@@ -41,3 +41,14 @@ it("measures the square-law headroom a hand analysis gives, equal for NMOS and P
   expect(n.findings[0]!.margin).toBeCloseTo((0.2 - 0.3) / 0.3, 5);
   expect(n.findings[0]).toMatchObject({ unit: "V", limit: 0.3, scenario: "nominal", line: expect.any(Number) });
 });
+
+it("keeps the worst corner: RC 8k2 passes at nominal and saturates at a supply/spread/temperature corner", async () => {
+  const corners = { mode: "corners" as const, samples: 1, seed: 1, temperature: { min: 253.15, max: 333.15 } };
+  const nominal = await runRuleCase(headroom, { name: "nominal", circuit: npnStage({ rc: "8k2" }), expect: [] });
+  expect(nominal.findings).toEqual([]);
+  expect(nominal.passed[0]!.measured).toBeGreaterThan(0.5);
+  const worst = await runRuleCase(headroom, { name: "corners", circuit: npnStage({ rc: "8k2" }), variation: corners, expect: [] });
+  expect(worst.findings).toHaveLength(1);
+  expect(worst.findings[0]!.scenario).not.toBe("nominal");
+  expect(worst.findings[0]!.measured).toBeLessThan(nominal.passed[0]!.measured!);
+});

@@ -57,7 +57,8 @@ function slug(text: string): string {
 
 /**
  * Loads a case's circuit through the real loader: a path to a circuit file (relative to the
- * working folder), or a snippet. A snippet may leave out `format:` and `name:`; they are added.
+ * working folder), or a snippet. A snippet may leave out `format:` and `name:`; they are added
+ * after its last line.
  */
 export function loadCaseCircuit(source: string, caseName: string): Circuit {
   let text: string;
@@ -68,8 +69,9 @@ export function loadCaseCircuit(source: string, caseName: string): Circuit {
   } else {
     file = `${slug(caseName)}.yaml`;
     text = source;
-    if (!/^name:/m.test(text)) text = `name: ${slug(caseName)}\n${text}`;
-    if (!/^format:/m.test(text)) text = `format: opgate-circuit/1\n${text}`;
+    // Added at the end, so that line numbers in messages are the snippet's own.
+    if (!/^format:/m.test(text)) text = `${text}\nformat: opgate-circuit/1`;
+    if (!/^name:/m.test(text)) text = `${text}\nname: ${slug(caseName)}\n`;
   }
   const loaded = loadCircuitText(text, file);
   if (!loaded.ok) {
