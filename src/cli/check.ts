@@ -76,10 +76,14 @@ export function writeReports(doc: ResultsDocument, targets: Partial<Record<Forma
   return toStdout;
 }
 
-/** Under GitHub Actions: annotations on stdout, markdown appended to the step summary (size-capped). */
-export function writeCiOutputs(doc: ResultsDocument, io: CliIo, options: ReportOptions): void {
+/**
+ * Under GitHub Actions: annotations (on stdout, or stderr when a report occupies stdout — the
+ * runner reads commands from both) and the markdown appended to the step summary, size-capped.
+ */
+export function writeCiOutputs(doc: ResultsDocument, io: CliIo, options: ReportOptions, reportOnStdout = false): void {
   if (io.env.GITHUB_ACTIONS !== "true") return;
-  io.stdout(renderAnnotations(doc));
+  if (reportOnStdout) io.stderr(renderAnnotations(doc));
+  else io.stdout(renderAnnotations(doc));
   const summaryFile = io.env.GITHUB_STEP_SUMMARY;
   if (!summaryFile) return;
   const already = existsSync(summaryFile) ? statSync(summaryFile).size : 0;
@@ -146,7 +150,8 @@ function outputTargets(args: Record<string, unknown>, ctx: CheckContext): Partia
   for (const format of FORMATS) {
     const flag = args[format];
     const fromConfig = ctx.config.outputs[format];
-    if (typeof flag === "string" && flag !== "") targets[format] = flag;
+    if (flag === "") throw new CliExit(EXIT_INPUT, `--${format} needs a path (--${format}=- writes to standard output)`);
+    if (typeof flag === "string") targets[format] = flag;
     else if (fromConfig) targets[format] = fromConfig;
   }
   return targets;
@@ -158,7 +163,7 @@ export const checkCommand: CommandSpec = {
   builder: (y) =>
     y
       .positional("paths", { type: "string", array: true, describe: "Circuit files, folders or globs" })
-      .option("json", { type: "string", describe: "Write the results document (JSON) to PATH ('-' for stdout)" })
+      .option("json", { type: "string", describe: "Write the results document (JSON) to PATH (--json=- for stdout)" })
       .option("junit", { type: "string", describe: "Write JUnit XML to PATH" })
       .option("markdown", { type: "string", describe: "Write the markdown report to PATH" })
       .option("sarif", { type: "string", describe: "Write SARIF 2.1.0 to PATH (code-scanning upload)" })
@@ -226,7 +231,7 @@ export const checkCommand: CommandSpec = {
     });
     if (reportOnStdout) io.stderr(consoleText);
     else io.stdout(consoleText);
-    writeCiOutputs(doc, io, reportOptions);
+    writeCiOutputs(doc, io, reportOptions, reportOnStdout);
     return exitCodeFor(doc);
   },
 };

@@ -33,7 +33,7 @@ export const mergeCommand: CommandSpec = {
   builder: (y) =>
     y
       .positional("results", { type: "string", array: true, describe: "Results documents written by `opgate check --shard k/n --json`" })
-      .option("json", { type: "string", describe: "Write the merged results document to PATH ('-' for stdout)" })
+      .option("json", { type: "string", describe: "Write the merged results document to PATH (--json=- for stdout)" })
       .option("junit", { type: "string", describe: "Write JUnit XML to PATH" })
       .option("markdown", { type: "string", describe: "Write the markdown report to PATH" })
       .option("sarif", { type: "string", describe: "Write SARIF 2.1.0 to PATH (one run: upload it with one category)" })
@@ -52,6 +52,9 @@ export const mergeCommand: CommandSpec = {
       throw err;
     }
     const options: ReportOptions = typeof args.baseline === "string" ? { baseline: diffDocuments(readBaseline(args.baseline, io), merged) } : {};
+    for (const f of ["json", "junit", "markdown", "sarif"]) {
+      if (args[f] === "") throw new CliExit(EXIT_INPUT, `--${f} needs a path (--${f}=- writes to standard output)`);
+    }
     const targets = {
       ...(typeof args.json === "string" ? { json: args.json } : {}),
       ...(typeof args.junit === "string" ? { junit: args.junit } : {}),
@@ -62,7 +65,7 @@ export const mergeCommand: CommandSpec = {
     const text = renderConsole(merged, { color: colourEnabled(io.env, io.isTTY), quiet: args.quiet === true, ...(options.baseline ? { baseline: options.baseline } : {}) });
     if (onStdout) io.stderr(text);
     else io.stdout(text);
-    writeCiOutputs(merged, io, options);
+    writeCiOutputs(merged, io, options, onStdout);
     return exitCodeFor(merged);
   },
 };

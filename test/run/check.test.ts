@@ -123,6 +123,22 @@ describe("opgate check", () => {
     expect(bad.stderr).toContain("--baseline nope.json: cannot read the file");
   });
 
+  it("applies --rule and --fail-on, and reports config mistakes with exit 2", async () => {
+    const base = JSON.parse((await cli(["check", "boards/tide-gauge-preamp-rev-b.yaml", "--json=-"], repo.dir)).stdout);
+    const rules = new Set(base.circuits[0].findings.map((f: { rule: string }) => f.rule));
+    expect(rules.has("headroom")).toBe(true);
+    const off = await cli(["check", "boards/tide-gauge-preamp-rev-b.yaml", "--rule", "headroom=off", "--json=-"], repo.dir);
+    expect(JSON.parse(off.stdout).circuits[0].findings.some((f: { rule: string }) => f.rule === "headroom")).toBe(false);
+    // The console text moved to stderr so that stdout stays parseable JSON.
+    expect(off.stderr).toContain("opgate: fail");
+    const typo = await cli(["check", "boards", "--rule", "headrom=off"], repo.dir);
+    expect(typo.code).toBe(2);
+    expect(typo.stderr).toContain("did you mean `headroom`?");
+    expect((await cli(["check", "boards", "--json"], repo.dir)).stderr).toContain("--json needs a path");
+    const passing = await cli(["check", "boards/tide-gauge-preamp.yaml"], repo.dir);
+    expect(passing.code).toBe(0);
+  });
+
   it("prints only failures with --quiet, and rejects bad flags with exit 2", async () => {
     const q = await cli(["check", "boards", "--jobs", "1", "--quiet"], repo.dir);
     expect(q.stdout).not.toMatch(/^ok /m);
