@@ -1,6 +1,6 @@
 // The built-in rules: an explicit registry, sorted by id (a meta-test keeps it in step with the
 // files in this folder). No filesystem scanning.
-import type { Rule } from "../src/review/rule.js";
+import type { OptionsOf, Rule } from "../src/review/rule.js";
 import capacitorVoltage from "./capacitor-voltage.js";
 import couplingAdequacy from "./coupling-adequacy.js";
 import deviceCurrent from "./device-current.js";
@@ -28,3 +28,10 @@ export const BUILTIN_RULES: ReadonlyMap<string, Rule> = new Map<string, Rule>([
 export function builtinRules(): readonly Rule[] {
   return [...BUILTIN_RULES.values()];
 }
+
+// Option types of the built-in rules, derived from their schemas (defaults filled in).
+export type CapacitorVoltageOptions = OptionsOf<typeof capacitorVoltage>;
+export type CouplingAdequacyOptions = OptionsOf<typeof couplingAdequacy>;
+export type DevicePowerOptions = OptionsOf<typeof devicePower>;
+export type HeadroomOptions = OptionsOf<typeof headroom>;
+export type ResistorPowerOptions = OptionsOf<typeof resistorPower>;

@@ -16,6 +16,7 @@ import type { ResolvedConfig, RuleSetting } from "./config-types.js";
 import { didYouMean } from "./did-you-mean.js";
 import { ConfigError, problemAt, type ConfigProblem } from "./errors.js";
 import type { RuleSeverity } from "./rule.js";
+import { BUILTIN_RULES } from "../../rules/index.js";
 
 /** Looked for in this order in each folder. */
 export const CONFIG_NAMES: readonly string[] = ["opgate.config.yaml", "opgate.config.yml", "opgate.config.json"];
@@ -205,9 +206,10 @@ function freezeConfig(c: ResolvedConfig): ResolvedConfig {
 
 /**
  * Applies `--rule id=severity` flags (later flags win). `knownIds` are the rules in play
- * (built-in and plugins); an unknown id or severity is a ConfigError with a did-you-mean.
+ * (built-in and plugins; default: the built-ins); an unknown id or severity is a ConfigError
+ * with a did-you-mean.
  */
-export function applyRuleFlags(config: ResolvedConfig, flags: readonly string[], knownIds: Iterable<string>): ResolvedConfig {
+export function applyRuleFlags(config: ResolvedConfig, flags: readonly string[], knownIds: Iterable<string> = BUILTIN_RULES.keys()): ResolvedConfig {
   const ids = [...knownIds];
   const problems: ConfigProblem[] = [];
   const rules: Record<string, RuleSetting> = { ...config.rules };

@@ -40,6 +40,9 @@ export type FromSchema<S> = S extends { readonly enum: readonly (infer E)[] }
                   : Readonly<Record<string, unknown>>
                 : unknown;
 
+/** The options type of a rule made with defineRule: `OptionsOf<typeof headroom>`. */
+export type OptionsOf<R> = R extends Rule<infer O> ? O : never;
+
 /** What a rule's check sees for one scenario whose bias solve succeeded. Read-only: do not mutate. */
 export interface RuleView<O = Readonly<Record<string, unknown>>> {
   readonly circuit: Circuit;
