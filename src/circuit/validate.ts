@@ -113,7 +113,7 @@ function generic(e: ErrorObject, path: readonly PathSegment[], where: string, da
       return { message: `${where} must be ${expectedType((e.params as { type: unknown }).type)}, not ${typeName(data)}` };
     case "oneOf":
     case "anyOf":
-      return { message: `${where} has the wrong shape (${typeName(data)})`, ...(parent.description ? { hint: `expected ${parent.description}` } : {}) };
+      return { message: `${where} has the wrong shape (${typeName(data)})`, ...(parent.description ? { hint: `expected ${parent.description.charAt(0).toLowerCase()}${parent.description.slice(1).replace(/\.$/, "")}` } : {}) };
     case "pattern":
       return { message: `${where}: ${typeName(data)} is not a valid name`, hint: "use letters, digits, `_`, `-` and `.`, starting with a letter" };
     case "propertyNames":
