@@ -123,6 +123,17 @@ export function formatInputError(e: InputError): string {
   return `${where}: error: ${e.message}${e.hint ? ` — ${e.hint}` : ""}`;
 }
 
+/** Redraws the bar only when it visibly moves (a frame per file would flood a slow terminal). */
+function progressWriter(io: CliIo): (done: number, total: number) => void {
+  let last = "";
+  return (done, total) => {
+    const frame = progressFrame(done, total);
+    const bar = frame.slice(0, frame.indexOf("]"));
+    if (bar !== last || done === total) io.stderr(frame);
+    last = bar;
+  };
+}
+
 function parseJobs(value: unknown): number {
   if (value === undefined) return availableParallelism();
   const n = Number(value);
@@ -216,7 +227,7 @@ export const checkCommand: CommandSpec = {
       jobs,
       ...(shard ? { shard } : {}),
       ...(args.timestamp === true ? { timestamp: new Date().toISOString() } : {}),
-      ...(showProgress ? { onProgress: (done: number, total: number) => io.stderr(progressFrame(done, total)) } : {}),
+      ...(showProgress ? { onProgress: progressWriter(io) } : {}),
       onNotice: (message) => io.stderr(`opgate: ${message}\n`),
     });
     if (showProgress) io.stderr("\n");

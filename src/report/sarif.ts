@@ -37,6 +37,11 @@ function fingerprint(f: Finding, occurrence: number): string {
   return occurrence > 1 ? `${hash}:${occurrence}` : hash;
 }
 
+/** A relative URI reference for a repository path: each segment percent-encoded (`#`, `?`, spaces…). */
+function fileUri(path: string): string {
+  return path.split("/").map(encodeURIComponent).join("/");
+}
+
 function firstParagraph(text: string): string {
   return text.trim().split(/\n\s*\n/)[0]?.replace(/\s+/g, " ") ?? "";
 }
@@ -69,7 +74,7 @@ export function renderSarif(doc: ResultsDocument, options: { informationUri?: st
         locations: [
           {
             physicalLocation: {
-              artifactLocation: { uri: encodeURI(f.file) },
+              artifactLocation: { uri: fileUri(f.file) },
               region: { startLine: f.line, startColumn: f.column },
             },
           },

@@ -59,7 +59,7 @@ describe("renderSarif", () => {
       expect(loc.region.startColumn).toBeGreaterThanOrEqual(1);
     }
     expect(results.map((r: { locations: { physicalLocation: { artifactLocation: { uri: string } } }[] }) => r.locations[0]!.physicalLocation.artifactLocation.uri)).toContain(
-      "boards/odd,%20names/100%25:%20probe.yaml",
+      "boards/odd%2C%20names/100%25%3A%20probe.yaml",
     );
   });
 

@@ -139,6 +139,17 @@ describe("opgate check", () => {
     expect(passing.code).toBe(0);
   });
 
+  it("draws a progress bar on a terminal only, never under CI", async () => {
+    const preamp = read("boards/tide-gauge-preamp.yaml");
+    for (let i = 0; i < 24; i++) writeFileSync(join(repo.dir, "boards", `many-${String(i).padStart(2, "0")}.yml`), preamp.replace("name: tide-gauge-preamp", `name: preamp-copy-${i}`));
+    const many = ["check", "boards", "--jobs", "1", "--quiet"];
+    const tty = await cli(many, repo.dir, {}, true);
+    expect(tty.stderr).toContain("\r[");
+    expect(tty.stderr).toMatch(/\] 31\/31 files\n$/);
+    expect((await cli(many, repo.dir, { CI: "true" }, true)).stderr).not.toContain("\r[");
+    expect((await cli(many, repo.dir, {}, false)).stderr).not.toContain("\r[");
+  });
+
   it("prints only failures with --quiet, and rejects bad flags with exit 2", async () => {
     const q = await cli(["check", "boards", "--jobs", "1", "--quiet"], repo.dir);
     expect(q.stdout).not.toMatch(/^ok /m);
