@@ -1,6 +1,7 @@
 // The rule engine: runs every enabled rule over every scenario of one circuit, keeps per rule
 // and subject the worst scenario, and isolates rules from each other (a throw or a runaway
 // rule becomes an `error` finding; the other rules still run).
+import vm from "node:vm";
 import type { Circuit, SourcePos } from "../circuit/types.js";
 import type { ScenarioAnalysis } from "../pipeline/types.js";
 import type { Finding, PassedCheck, Severity } from "../report/document.js";
@@ -110,13 +111,33 @@ function num(v: number | undefined): number | null {
 
 class TimeoutError extends Error {}
 
-async function withTimeLimit(work: () => void | Promise<void>, ms: number): Promise<void> {
+// A synchronous endless loop never yields to a timer, so Promise.race cannot stop it. Team
+// rules therefore start inside a vm script with a timeout: its watchdog interrupts whatever
+// JavaScript runs, including the rule's own function. The watchdog costs a few hundred
+// microseconds per call, so built-in rules (ours, reviewed and tested) skip it.
+const GUARDED_CALL = new vm.Script("globalThis.__opgateGuardedRuleCall()");
+const GUARD_SLOT = "__opgateGuardedRuleCall";
+
+function startGuarded(work: () => void | Promise<void>, ms: number): void | Promise<void> {
+  const slot = globalThis as unknown as Record<string, unknown>;
+  slot[GUARD_SLOT] = work;
+  try {
+    return GUARDED_CALL.runInThisContext({ timeout: ms }) as void | Promise<void>;
+  } catch (err) {
+    if ((err as { code?: string }).code === "ERR_SCRIPT_EXECUTION_TIMEOUT") throw new TimeoutError(`it ran longer than ${ms / 1000} s without returning`);
+    throw err;
+  } finally {
+    delete slot[GUARD_SLOT];
+  }
+}
+
+async function withTimeLimit(work: () => void | Promise<void>, ms: number, guardSync: boolean): Promise<void> {
   let timer: NodeJS.Timeout | undefined;
   const limit = new Promise<never>((_, reject) => {
     timer = setTimeout(() => reject(new TimeoutError(`it ran longer than ${ms / 1000} s`)), ms);
   });
   try {
-    await Promise.race([Promise.resolve().then(work), limit]);
+    await Promise.race([Promise.resolve().then(() => (guardSync ? startGuarded(work, ms) : work())), limit]);
   } finally {
     clearTimeout(timer);
   }
@@ -240,7 +261,7 @@ async function runOne(
         : undefined;
     if (!work) continue;
     try {
-      await withTimeLimit(work, timeLimitMs);
+      await withTimeLimit(work, timeLimitMs, configured.source !== "builtin");
     } catch (err) {
       keep({
         kind: "fail",

@@ -49,6 +49,15 @@ describe("crash isolation", () => {
     expect(byRule.headroom).toMatchObject({ subject: "Q1", severity: "error", line: 10 });
   });
 
+  it("stops a team rule stuck in a synchronous loop", async () => {
+    const spins = defineRule({ id: "spins", description: "Loops forever without yielding", severity: "note", docs: "d", check() { for (;;) { /* never yields */ } } });
+    const c = circuit({ components: [bjt("Q1", "npn", 10)] });
+    const analyses = [analysis(c, op({ Q1: bjtPoint("npn", { headroom: 0.1 }) }))];
+    const { findings } = await runRules({ circuit: c, analyses, rules: [{ ...builtin(spins), source: "team-rules/spins.mjs" }, builtin(headroom)], timeLimitMs: 100 });
+    expect(findings.map((f) => [f.rule, f.subject, f.severity])).toEqual([["spins", "tide-gauge-front-end", "error"], ["headroom", "Q1", "error"]]);
+    expect(findings[0]!.message).toContain("ran longer than 0.1 s without returning");
+  });
+
   it("ignores what a rule reports after its time limit", async () => {
     const analyses = [analysis(threeStages, op({}))];
     const { findings } = await runRules({ circuit: threeStages, analyses, rules: [builtin(late)], timeLimitMs: 30 });
