@@ -90,7 +90,7 @@ afterAll(() => {
 
 describe("plugins in a repository", () => {
   beforeAll(() => {
-    repos.push(newRepo("plugins:\n  - team-rules/*.ts\n  - team-rules/legacy.mjs\nrules:\n  tidewater/collector-ceiling: { options: { maxCollectorVolts: 5 } }\n", { "team-rules/collector-ceiling.ts": TS_RULE, "team-rules/legacy.mjs": JS_RULES }));
+    repos.push(newRepo("plugins:\n  - team-rules/*.ts\n  - team-rules/legacy.js\nrules:\n  tidewater/collector-ceiling: { options: { maxCollectorVolts: 5 } }\n", { "team-rules/collector-ceiling.ts": TS_RULE, "team-rules/legacy.js": JS_RULES }));
   });
 
   it("lists built-in and plugin rules with sources, severities and option defaults (opgate rules --json)", async () => {
@@ -105,7 +105,7 @@ describe("plugins in a repository", () => {
     ]);
     const ceiling = listing.find((r) => r.id === "tidewater/collector-ceiling")!;
     expect(ceiling).toMatchObject({ source: "team-rules/collector-ceiling.ts", severity: "warning", options: { maxCollectorVolts: { value: 5, default: 6 } } });
-    expect(listing.find((r) => r.id === "tidewater/resistor-count")).toMatchObject({ source: "team-rules/legacy.mjs", options: { max: { value: 12, default: 12 } } });
+    expect(listing.find((r) => r.id === "tidewater/resistor-count")).toMatchObject({ source: "team-rules/legacy.js", options: { max: { value: 12, default: 12 } } });
     expect(listing.find((r) => r.id === "resistor-power")!.options).toMatchObject({ fraction: { default: 0.5 }, fullRatingUpToC: { default: 70 } });
   });
 
