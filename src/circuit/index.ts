@@ -1,5 +1,5 @@
 // Public entry of the circuit stage: file or text → validated, resolved, topology-checked Circuit.
-import { readFile } from "node:fs/promises";
+import { readFile, stat } from "node:fs/promises";
 import { extname } from "node:path";
 import { readFileSync } from "node:fs";
 import { schemaPath } from "../paths.js";
@@ -66,7 +66,6 @@ export async function loadCircuitFile(path: string, opts: { displayPath?: string
   }
   let buffer: Buffer;
   try {
-    const { stat } = await import("node:fs/promises");
     const st = await stat(path);
     if (!st.isFile()) return { ok: false, errors: [{ file: shown, message: "not a file", hint: "name a circuit file or a folder of them" }] };
     if (st.size > MAX_FILE_BYTES) return { ok: false, errors: [{ file: shown, message: `file is too large (${st.size} bytes; the limit is ${MAX_FILE_BYTES} bytes)`, hint: "split the design into several circuit files" }] };

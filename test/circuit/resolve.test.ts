@@ -156,3 +156,57 @@ describe("positions and immutability", () => {
     expect(c.components[1]!.pos.line).toBe(14);
   });
 });
+
+describe("the format example of DESIGN.md section 3", () => {
+  // Copied from the design document so the documented format and the loader cannot drift apart.
+  const text = `format: opgate-circuit/1
+name: line-driver            # identifier, unique in a repository
+description: Emitter-follower buffer for the sensor line
+temperature: 27 °C           # nominal ambient; default 27 °C
+ground: gnd                  # name of the reference node; default gnd
+parameters:                  # named values usable in "=" expressions
+  rLoad: 2k2
+models:
+  small-npn:
+    kind: npn
+    beta: { min: 100, typ: 200, max: 300 }
+    saturationCurrent: 1e-14 A
+    earlyVoltage: 90 V       # omit for no Early effect
+    saturationEdge: 0.3 V    # VCE at the edge of saturation, for headroom
+components:
+  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, dc: 12 V, tolerance: 5% }
+  - { id: VIN, kind: voltage-source, pins: { plus: in, minus: gnd }, dc: 0, ac: 1 }
+  - { id: R1, kind: resistor, pins: [vcc, b], value: 47k, tolerance: 1%, powerRating: 0.125 W }
+  - { id: R2, kind: resistor, pins: [b, gnd], value: 68k, tolerance: 1%, package: "0603" }
+  - { id: C1, kind: capacitor, pins: [in, b], value: 10u, voltageRating: 25 V }
+  - { id: Q1, kind: npn, model: small-npn, pins: { collector: vcc, base: b, emitter: out } }
+  - { id: RL, kind: resistor, pins: [out, gnd], value: "= rLoad" }
+specs:
+  gains:
+    - { name: buffer, input: VIN, output: out, target: 0.98, tolerance: 3% }
+  band: { low: 20 Hz, high: 20 kHz }
+  supplies:
+    - { source: VCC, maxCurrent: 6 mA }
+  devices:
+    Q1: { region: active, minCurrent: 1 mA, maxCurrent: 5 mA }
+`;
+  it("loads, with every value in SI base units", () => {
+    const c = load(text);
+    expect(c.name).toBe("line-driver");
+    expect(c.nodes).toEqual(["b", "in", "out", "vcc"]);
+    const byId = new Map(c.components.map((x) => [x.id, x]));
+    const vcc = byId.get("VCC");
+    expect(vcc?.kind === "voltage-source" && vcc.dc.min).toBeCloseTo(11.4, 12);
+    const r1 = byId.get("R1");
+    expect(r1?.kind === "resistor" && r1.powerRating).toBe(0.125);
+    const c1 = byId.get("C1");
+    expect(c1?.kind === "capacitor" && c1.value.nominal).toBeCloseTo(10e-6, 15);
+    expect((byId.get("RL") as Resistor).value.nominal).toBe(2200);
+    const m = c.models.get("small-npn") as BjtModel;
+    expect(m.earlyVoltage.typ).toBe(90);
+    expect(c.specs.gains[0]!.window.min).toBeCloseTo(0.9506, 12);
+    expect(c.specs.supplies[0]!.maxCurrent).toBeCloseTo(6e-3, 15);
+    expect(c.specs.devices[0]).toMatchObject({ device: "Q1", region: "active", minCurrent: 1e-3, maxCurrent: 5e-3 });
+    expect(c.specs.band).toMatchObject({ low: 20, high: 20e3 });
+  });
+});
