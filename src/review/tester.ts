@@ -140,8 +140,17 @@ export function assertCase(rule: Rule, c: RuleTestCase, result: RuleTestResult &
     expect(result.passed.map((p) => p.subject), `passed checks of ${rule.id} in "${c.name}"`).toContain(subject);
 }
 
-/** `ruleTester(rule).run([...cases])` inside a vitest file: one `it` per case plus shape checks. */
-export function ruleTester(rule: Rule): { run(cases: readonly RuleTestCase[]): void } {
+/** Settings shared by every case of a table (a case's own value wins). */
+export interface RuleTesterDefaults {
+  readonly options?: Readonly<Record<string, unknown>>;
+  readonly variation?: VariationSettings;
+}
+
+/**
+ * `ruleTester(rule).run([...cases])` inside a vitest file: one `it` per case, plus a check of
+ * the rule's shape and option defaults. Options or variation shared by a table go in `defaults`.
+ */
+export function ruleTester(rule: Rule, defaults: RuleTesterDefaults = {}): { run(cases: readonly RuleTestCase[]): void } {
   return {
     run(cases) {
       describe(`rule ${rule.id}`, () => {
@@ -149,7 +158,12 @@ export function ruleTester(rule: Rule): { run(cases: readonly RuleTestCase[]): v
           expect(ruleShapeProblems(rule)).toEqual([]);
           expect(() => defaultOptions(rule)).not.toThrow();
         });
-        for (const c of cases) {
+        for (const given of cases) {
+          const c: RuleTestCase = {
+            ...given,
+            ...((given.options ?? defaults.options) ? { options: { ...defaults.options, ...given.options } } : {}),
+            ...((given.variation ?? defaults.variation) ? { variation: given.variation ?? defaults.variation! } : {}),
+          };
           it(c.name, async () => {
             assertCase(rule, c, await runRuleCase(rule, c));
           });

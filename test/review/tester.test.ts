@@ -2,7 +2,7 @@
 // missing passes, and a circuit snippet that does not load.
 import { describe, expect, it } from "vitest";
 import { defineRule } from "../../src/review/rule.js";
-import { assertCase, loadCaseCircuit, runRuleCase, type RuleTestCase } from "../../src/review/tester.js";
+import { assertCase, loadCaseCircuit, ruleTester, runRuleCase, type RuleTestCase } from "../../src/review/tester.js";
 import { npnStage } from "./circuits.js";
 
 const flagsEveryResistor = defineRule({
@@ -54,4 +54,23 @@ describe("rule tester", () => {
   it("loads an example file by path", () => {
     expect(loadCaseCircuit("examples/tide-gauge-preamp.yaml", "example").name).toBe("tide-gauge-preamp");
   });
+});
+
+describe("table defaults", () => {
+  const counts = defineRule({
+    id: "resistor-count",
+    description: "Checks the number of resistors",
+    severity: "warning",
+    options: { type: "object", additionalProperties: false, properties: { max: { type: "integer", default: 10 } } },
+    docs: "A test rule.",
+    check({ circuit, options }, report) {
+      const n = circuit.components.filter((c) => c.kind === "resistor").length;
+      if (n > options.max) report.fail({ subject: circuit.name, message: `${n} resistors`, measured: n, limit: options.max, bound: "max" });
+    },
+  });
+  // npnStage has five resistors (R1, R2, RC, RE, RL).
+  ruleTester(counts, { options: { max: 4 } }).run([
+    { name: "the table's max of 4 applies", circuit: npnStage(), expect: [{ subject: "the-table-s-max-of-4-applies", messageIncludes: "5 resistors" }] },
+    { name: "a case's own options win", circuit: npnStage(), options: { max: 5 }, expect: [] },
+  ]);
 });
