@@ -55,9 +55,10 @@ export function bjt(c: Bjt, ctx: SetupContext): DeviceInstance {
   const va = m.earlyVoltage.typ;
   const vcrit = criticalVoltage(vt, is);
   const gl = JUNCTION_LEAK_CONDUCTANCE;
-  const idx = Int32Array.of(col.index, base.index, emi.index);
-  const g = new Float64Array(9);
-  const ieq = new Float64Array(3);
+  const idx: number[] = [col.index, base.index, emi.index];
+  // Plain arrays: a handful of doubles is cheaper to create than a typed array per device.
+  const g: number[] = new Array<number>(9).fill(0);
+  const ieq: number[] = new Array<number>(3).fill(0);
   const e: BjtEval = { ic: 0, ib: 0, icVbe: 0, icVbc: 0, ibVbe: 0, ibVbc: 0 };
   let vbeLast = vcrit;
   let vbcLast = 0;
@@ -100,6 +101,7 @@ export function bjt(c: Bjt, ctx: SetupContext): DeviceInstance {
     kind: c.kind,
     terminals: [col, base, emi],
     nonlinear: true,
+    stampIndices: idx,
     dcLinks: [
       [base.node, emi.node],
       [base.node, col.node],
@@ -166,7 +168,7 @@ export function bjt(c: Bjt, ctx: SetupContext): DeviceInstance {
         rpi: 1 / gpi,
         re: 1 / (gm + gpi),
         ro: 1 / go,
-        linear: { pins: [col.node, base.node, emi.node], y: Array.from(g) },
+        linear: { pins: [col.node, base.node, emi.node], y: g.slice() },
       };
     },
   };

@@ -69,6 +69,8 @@ export interface DeviceInstance {
   stampStatic?(m: StampTarget): void;
   /** Right-hand side of independent sources at full value (the solver scales it). */
   stampSource?(b: Float64Array): void;
+  /** Unknowns a nonlinear device's stamp couples (every pair may become non-zero). */
+  readonly stampIndices?: readonly number[];
   /** Newton companion stamp of a nonlinear device at trial solution x (adds to a and b). */
   stampNonlinear?(x: Float64Array, m: StampTarget, st: IterationState): void;
   /** Forget limiting state (start of a new continuation from the initial guess). */
@@ -105,7 +107,7 @@ export function volt(x: Float64Array, i: number): number {
  * g[i·k+j] = ∂I(pin i, into the device)/∂V(pin j) and the companion current ieq[i]
  * (the current into pin i at the linearisation point minus g·v there).
  */
-export function stampPins(m: StampTarget, idx: Int32Array, g: Float64Array, ieq: Float64Array): void {
+export function stampPins(m: StampTarget, idx: readonly number[], g: readonly number[], ieq: readonly number[]): void {
   const k = idx.length;
   for (let i = 0; i < k; i++) {
     const r = idx[i]!;

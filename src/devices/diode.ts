@@ -34,9 +34,10 @@ export function diode(c: Diode, ctx: SetupContext): DeviceInstance {
   const nvt = model.ideality.typ * thermalVoltage(ctx.temperature);
   const is = saturationCurrentAt(model.saturationCurrent.typ, ctx.temperature, model.energyGap, model.saturationCurrentExponent);
   const vcrit = criticalVoltage(nvt, is);
-  const idx = Int32Array.of(inner, cathode.index);
-  const g = new Float64Array(4);
-  const ieq = new Float64Array(2);
+  const idx: number[] = [inner, cathode.index];
+  // Plain arrays: a handful of doubles is cheaper to create than a typed array per device.
+  const g: number[] = new Array<number>(4).fill(0);
+  const ieq: number[] = new Array<number>(2).fill(0);
   let vLast = vcrit;
 
   const evaluate = (v: number): void => {
@@ -50,6 +51,7 @@ export function diode(c: Diode, ctx: SetupContext): DeviceInstance {
     kind: c.kind,
     terminals: [anode, cathode],
     nonlinear: true,
+    stampIndices: idx,
     dcLinks: [[anode.node, cathode.node]],
     voltageLinks: [],
     stampStatic(m: StampTarget) {

@@ -63,9 +63,10 @@ export function mosfet(c: Mosfet, ctx: SetupContext): DeviceInstance {
   const gamma = m.bodyEffect;
   const phi2 = Math.max(m.surfacePotential, 0);
   const sqrtPhi2 = Math.sqrt(phi2);
-  const idx = Int32Array.of(dr.index, gt.index, sr.index, bd.index);
-  const g = new Float64Array(16);
-  const ieq = new Float64Array(4);
+  const idx: number[] = [dr.index, gt.index, sr.index, bd.index];
+  // Plain arrays: a handful of doubles is cheaper to create than a typed array per device.
+  const g: number[] = new Array<number>(16).fill(0);
+  const ieq: number[] = new Array<number>(4).fill(0);
   const e: MosEval = { id: 0, gm: 0, gds: 0, gmb: 0, vt: 0, vov: 0, region: "cutoff" };
   let vgsLast = 0;
   let vdsLast = 0;
@@ -145,6 +146,7 @@ export function mosfet(c: Mosfet, ctx: SetupContext): DeviceInstance {
     kind: c.kind,
     terminals: [dr, gt, sr, bd],
     nonlinear: true,
+    stampIndices: idx,
     dcLinks: [[dr.node, sr.node]],
     voltageLinks: [],
     reset() {
@@ -194,7 +196,7 @@ export function mosfet(c: Mosfet, ctx: SetupContext): DeviceInstance {
         gm: e.gm,
         gmb: e.gmb,
         ro: 1 / e.gds,
-        linear: { pins: [dr.node, gt.node, sr.node, bd.node], y: Array.from(g) },
+        linear: { pins: [dr.node, gt.node, sr.node, bd.node], y: g.slice() },
       };
     },
   };

@@ -11,24 +11,37 @@ export interface Diagnosis {
   readonly nodes: readonly string[];
 }
 
+/** Union–find over node unknown indices, with ground as one extra slot (index n). */
 class UnionFind {
-  private readonly parent = new Map<string, string>();
-  find(a: string): string {
-    let p = this.parent.get(a) ?? a;
-    if (p === a) return a;
-    p = this.find(p);
-    this.parent.set(a, p);
-    return p;
+  private readonly parent: Int32Array;
+  constructor(size: number) {
+    this.parent = new Int32Array(size);
+    for (let i = 0; i < size; i++) this.parent[i] = i;
   }
-  union(a: string, b: string): boolean {
+  find(a: number): number {
+    let r = a;
+    while (this.parent[r] !== r) r = this.parent[r]!;
+    while (this.parent[a] !== r) {
+      const next = this.parent[a]!;
+      this.parent[a] = r;
+      a = next;
+    }
+    return r;
+  }
+  union(a: number, b: number): boolean {
     const ra = this.find(a);
     const rb = this.find(b);
     if (ra === rb) return false;
-    // Deterministic: the lexically smaller root wins.
-    if (ra < rb) this.parent.set(rb, ra);
-    else this.parent.set(ra, rb);
+    // Deterministic: the smaller root wins.
+    if (ra < rb) this.parent[rb] = ra;
+    else this.parent[ra] = rb;
     return true;
   }
+}
+
+/** Slot of a node name in the union–find (ground is plan.n). */
+function slotOf(plan: Plan, name: string): number {
+  return name === plan.circuit.ground ? plan.n : plan.nodeIndex.get(name)!;
 }
 
 function listWords(items: readonly string[]): string {
@@ -38,12 +51,13 @@ function listWords(items: readonly string[]): string {
 
 /** Nodes with no DC path to ground (through resistors, junctions, channels, sources, inductors). */
 export function findFloatingNodes(plan: Plan): Diagnosis | undefined {
-  const ground = plan.circuit.ground;
-  const uf = new UnionFind();
-  for (const d of plan.devices) for (const [p, q] of d.dcLinks) uf.union(p, q);
-  const groundRoot = uf.find(ground);
-  const floating = [...plan.nodeIndex.keys()].filter((nd) => uf.find(nd) !== groundRoot).sort();
-  if (floating.length === 0) return undefined;
+  const uf = new UnionFind(plan.n + 1);
+  for (const d of plan.devices) for (const [p, q] of d.dcLinks) uf.union(slotOf(plan, p), slotOf(plan, q));
+  const groundRoot = uf.find(plan.n);
+  let floating: string[] | undefined;
+  for (const [nd, i] of plan.nodeIndex) if (uf.find(i) !== groundRoot) (floating ??= []).push(nd);
+  if (floating === undefined) return undefined;
+  floating.sort();
   const set = new Set(floating);
   const parts = plan.devices.filter((d) => d.terminals.some((t) => set.has(t.node))).map((d) => d.id);
   const what = floating.length === 1 ? `node \`${floating[0]}\` has` : `nodes ${listWords(floating.map((f) => `\`${f}\``))} have`;
@@ -57,11 +71,11 @@ export function findFloatingNodes(plan: Plan): Diagnosis | undefined {
 
 /** A loop made only of voltage-fixing branches (two sources in parallel, a source shorted by an inductor…). */
 export function findVoltageLoop(plan: Plan): Diagnosis | undefined {
-  const uf = new UnionFind();
+  const uf = new UnionFind(plan.n + 1);
   const edges: { d: DeviceInstance; p: string; q: string }[] = [];
   for (const d of plan.devices) {
     for (const [p, q] of d.voltageLinks) {
-      if (p === q || !uf.union(p, q)) {
+      if (p === q || !uf.union(slotOf(plan, p), slotOf(plan, q))) {
         const path = p === q ? [] : pathBetween(edges, p, q);
         const members = [...path.map((e) => e.d), d];
         const ids = members.map((m) => m.id);

@@ -14,13 +14,13 @@ export const GMIN_END = 1e-12;
 export const GMIN_FACTOR = 10;
 
 /** Returns true when the circuit converged with the shunt finally removed; iterations add up in `total`. */
-export function gminStepping(plan: Plan, solver: LinearSolver, rec: NewtonRecord, total: { iterations: number }): boolean {
+export function gminStepping(plan: Plan, solver: LinearSolver, rec: NewtonRecord, total: { iterations: number }, cap = Infinity): boolean {
   plan.x.fill(0);
   for (const d of plan.nonlinear) d.reset?.();
   let first = true;
   for (let gmin = GMIN_START; ; gmin /= GMIN_FACTOR) {
     const g = gmin < GMIN_END * (1 - 1e-9) ? 0 : gmin;
-    newton(plan, solver, { gmin: g, sourceScale: 1, init: first, maxIterations: STEP_ITERATION_CAP, polish: g === 0 }, rec);
+    newton(plan, solver, { gmin: g, sourceScale: 1, init: first, maxIterations: Math.min(STEP_ITERATION_CAP, cap), polish: g === 0 }, rec);
     total.iterations += rec.iterations;
     first = false;
     if (rec.status !== "converged") return false;

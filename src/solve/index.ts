@@ -20,6 +20,8 @@ export interface SolveOptions {
   readonly linearSolver?: LinearSolverFactory;
   /** Skip the stages before this aid (tests use it to exercise each aid on its own). */
   readonly startWith?: ConvergenceAid;
+  /** Lower every stage's iteration cap to this (tests use it to provoke non-convergence). */
+  readonly maxIterations?: number;
 }
 
 const AIDS: readonly ConvergenceAid[] = ["none", "gmin-stepping", "source-stepping"];
@@ -31,10 +33,11 @@ export function solveOperatingPoint(circuit: Circuit, options: SolveOptions = {}
   const topo = diagnoseTopology(plan);
   if (topo) return failure(topo.reason, topo.parts, topo.nodes, "none", 0, Infinity);
 
-  const solver = (options.linearSolver ?? denseLu)(plan.n);
+  const solver = (options.linearSolver ?? denseLu)(plan.n, plan.pattern);
   const rec = newRecord();
   const total = { iterations: 0 };
   const first = AIDS.indexOf(options.startWith ?? "none");
+  const cap = options.maxIterations ?? Infinity;
   let lastStatus: NewtonRecord["status"] = "not-converged";
   let singular = -1;
   for (let k = first; k < AIDS.length; k++) {
@@ -43,13 +46,13 @@ export function solveOperatingPoint(circuit: Circuit, options: SolveOptions = {}
     if (aid === "none") {
       plan.x.fill(0);
       for (const d of plan.nonlinear) d.reset?.();
-      newton(plan, solver, { gmin: 0, sourceScale: 1, init: true, maxIterations: PLAIN_ITERATION_CAP, polish: true }, rec);
+      newton(plan, solver, { gmin: 0, sourceScale: 1, init: true, maxIterations: Math.min(PLAIN_ITERATION_CAP, cap), polish: true }, rec);
       total.iterations += rec.iterations;
       ok = rec.status === "converged";
     } else if (aid === "gmin-stepping") {
-      ok = gminStepping(plan, solver, rec, total);
+      ok = gminStepping(plan, solver, rec, total, cap);
     } else {
-      ok = sourceStepping(plan, solver, rec, total);
+      ok = sourceStepping(plan, solver, rec, total, cap);
     }
     lastStatus = rec.status;
     if (rec.status === "singular" && singular < 0) singular = rec.singularColumn;
@@ -82,12 +85,19 @@ function nonConvergence(plan: Plan, rec: NewtonRecord, status: NewtonRecord["sta
   const touching = plan.devices.filter((d) => owners.has(d.id) || d.terminals.some((t) => nodes.includes(t.node)));
   const nonlinear = touching.filter((d) => d.nonlinear);
   const parts = (nonlinear.length ? nonlinear : touching).map((d) => d.id);
-  const where = unknowns.map(describeUnknown).join(" and ");
-  const why =
-    singular >= 0 && status === "singular"
-      ? `the DC equations are singular at ${describeUnknown(plan.unknowns[singular]!)}`
-      : `the operating point did not converge (plain Newton, gmin stepping and source stepping all failed)`;
-  const at = where ? `; the largest changes and residuals were at ${where}` : "";
   const near = parts.length ? ` near ${parts.join(", ")}` : "";
-  return failure(`${why}${at}${near}; check the bias network there`, parts, nodes, "source-stepping", iterations, rec.residual);
+  if (singular >= 0 && status === "singular") {
+    const at = describeUnknown(plan.unknowns[singular]!);
+    return failure(
+      `the DC equations are singular at ${at}${near}: its value is not determined (look for a controlled source cancelling a conductance, or a part that leaves it without a DC reference)`,
+      parts,
+      nodes,
+      "source-stepping",
+      iterations,
+      rec.residual,
+    );
+  }
+  const where = unknowns.map(describeUnknown).join(" and ");
+  const at = where ? `; the largest changes and residuals were at ${where}` : "";
+  return failure(`the operating point did not converge (plain Newton, gmin stepping and source stepping all failed)${at}${near}; check the bias network there`, parts, nodes, "source-stepping", iterations, rec.residual);
 }

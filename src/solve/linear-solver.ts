@@ -1,6 +1,6 @@
 // The linear step of the Newton loop behind a small interface, so that a benchmark can run the
 // identical loop with a different solver. The default is our dense LU (lu.ts).
-import { luFactor, luSolve } from "./lu.js";
+import { createLuWorkspace, luFactor, luSolve } from "./lu.js";
 
 export interface LinearSolver {
   /** Factors a (n×n, row-major); may overwrite it. Returns −1, or the first column without a pivot. */
@@ -9,19 +9,19 @@ export interface LinearSolver {
   solve(x: Float64Array): void;
 }
 
-export type LinearSolverFactory = (n: number) => LinearSolver;
+/** `pattern`: flat indices of every entry the stamps can make non-zero (a solver may ignore it). */
+export type LinearSolverFactory = (n: number, pattern?: Int32Array) => LinearSolver;
 
-export const denseLu: LinearSolverFactory = (n) => {
-  const pivots = new Int32Array(n);
-  const colScale = new Float64Array(n);
+export const denseLu: LinearSolverFactory = (n, pattern) => {
+  const ws = createLuWorkspace(n);
   let factored: Float64Array | undefined;
   return {
     factor(a) {
       factored = a;
-      return luFactor(a, n, pivots, colScale);
+      return luFactor(a, ws, pattern);
     },
     solve(x) {
-      if (factored) luSolve(factored, n, pivots, x);
+      if (factored) luSolve(factored, ws, x);
     },
   };
 };

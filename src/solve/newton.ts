@@ -31,6 +31,13 @@ export interface NewtonSettings {
   readonly polish: boolean;
 }
 
+/**
+ * The polishing step is skipped when the last update was already below this fraction of its
+ * tolerance (≲ 0.5 µV on a volt-level node): Newton's remaining error, about δ²/(n·VT), is then
+ * ~1e-11 V and another step adds nothing.
+ */
+export const POLISH_SKIP_RATIO = 0.1;
+
 export type NewtonStatus = "converged" | "singular" | "not-converged" | "non-finite";
 
 /** Mutable record of one run, reused across runs to keep the loop allocation-free. */
@@ -57,6 +64,8 @@ export function newton(plan: Plan, solver: LinearSolver, s: NewtonSettings, rec:
   const st: IterationState = { init: false, limited: false };
   // A linear network needs no update test: one exact solve is the answer.
   let updateOk = nonlinear.length === 0;
+  // Largest update of the last step relative to its tolerance (≤ 1 once the update test passes).
+  let lastRatio = nonlinear.length === 0 ? 0 : Infinity;
   rec.status = "not-converged";
   rec.iterations = 0;
   rec.worstUpdate = -1;
@@ -73,7 +82,7 @@ export function newton(plan: Plan, solver: LinearSolver, s: NewtonSettings, rec:
 
     if (!st.init && !st.limited && updateOk && residualOk(plan, rec)) {
       rec.status = "converged";
-      if (s.polish) polishStep(plan, solver, s, rec);
+      if (s.polish && nonlinear.length > 0 && lastRatio > POLISH_SKIP_RATIO) polishStep(plan, solver, s, rec);
       return rec;
     }
 
@@ -105,6 +114,7 @@ export function newton(plan: Plan, solver: LinearSolver, s: NewtonSettings, rec:
         rec.worstUpdate = i;
       }
     }
+    lastRatio = worst;
     x.set(xNew);
   }
   // One last look: the final update may have landed on the answer.
@@ -116,7 +126,7 @@ export function newton(plan: Plan, solver: LinearSolver, s: NewtonSettings, rec:
   for (let d = 0; d < nonlinear.length; d++) nonlinear[d]!.stampNonlinear!(x, target, st);
   if (!st.limited && updateOk && residualOk(plan, rec)) {
     rec.status = "converged";
-    if (s.polish) polishStep(plan, solver, s, rec);
+    if (s.polish && nonlinear.length > 0 && lastRatio > POLISH_SKIP_RATIO) polishStep(plan, solver, s, rec);
   }
   return rec;
 }

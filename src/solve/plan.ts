@@ -40,6 +40,8 @@ export interface Plan {
   readonly xNew: Float64Array;
   /** Spare copy of x (the polishing step keeps the accepted point here). */
   readonly xSpare: Float64Array;
+  /** Flat indices of every matrix entry the stamps can make non-zero (static, devices, gmin diagonal). */
+  readonly pattern: Int32Array;
   /** 1 for a KCL row, 0 for a branch-equation row. */
   readonly isNodeRow: Uint8Array;
   readonly target: StampTarget;
@@ -127,8 +129,16 @@ export function compilePlan(circuit: Circuit): CompileResult {
     if (msg !== undefined) return { ok: false, reason: msg, parts: [d.id] };
   }
   const n = unknowns.length;
-  const aStatic = new Float64Array(n * n);
-  const bSource = new Float64Array(n);
+  // Every working array of the plan in one allocation (typed-array creation is costly per call).
+  const buffer = new Float64Array(2 * n * n + 5 * n);
+  const slice = (start: number, length: number): Float64Array => buffer.subarray(start, start + length);
+  const aStatic = slice(0, n * n);
+  const a = slice(n * n, n * n);
+  const bSource = slice(2 * n * n, n);
+  const b = slice(2 * n * n + n, n);
+  const x = slice(2 * n * n + 2 * n, n);
+  const xNew = slice(2 * n * n + 3 * n, n);
+  const xSpare = slice(2 * n * n + 4 * n, n);
   const staticTarget: StampTarget = { a: aStatic, b: bSource, n };
   for (const d of devices) {
     d.stampStatic?.(staticTarget);
@@ -136,8 +146,7 @@ export function compilePlan(circuit: Circuit): CompileResult {
   }
   const isNodeRow = new Uint8Array(n);
   unknowns.forEach((u, i) => (isNodeRow[i] = u.kind === "branch" ? 0 : 1));
-  const a = new Float64Array(n * n);
-  const b = new Float64Array(n);
+  const pattern = stampPattern(n, aStatic, isNodeRow, devices);
   return {
     ok: true,
     plan: {
@@ -151,13 +160,30 @@ export function compilePlan(circuit: Circuit): CompileResult {
       bSource,
       a,
       b,
-      x: new Float64Array(n),
-      xNew: new Float64Array(n),
-      xSpare: new Float64Array(n),
+      x,
+      xNew,
+      xSpare,
+      pattern,
       isNodeRow,
       target: { a, b, n },
     },
   };
+}
+
+function stampPattern(n: number, aStatic: Float64Array, isNodeRow: Uint8Array, devices: readonly DeviceInstance[]): Int32Array {
+  const mark = new Uint8Array(n * n);
+  for (let i = 0; i < n * n; i++) if (aStatic[i] !== 0) mark[i] = 1;
+  for (let i = 0; i < n; i++) if (isNodeRow[i]) mark[i * n + i] = 1;
+  for (const d of devices) {
+    const idx = d.stampIndices;
+    if (!idx) continue;
+    for (const r of idx) if (r >= 0) for (const c of idx) if (c >= 0) mark[r * n + c] = 1;
+  }
+  let count = 0;
+  for (let i = 0; i < n * n; i++) count += mark[i]!;
+  const pattern = new Int32Array(count);
+  for (let i = 0, k = 0; i < n * n; i++) if (mark[i]) pattern[k++] = i;
+  return pattern;
 }
 
 /** Human name of an unknown for messages: "node `b`", "the branch of VCC", "node `D1#junction`". */

@@ -18,7 +18,7 @@ export const SOURCE_STEP_MIN = 1e-6;
 /** Upper bound on the number of steps (successful or not), so a hopeless case ends. */
 export const SOURCE_STEP_CAP = 200;
 
-export function sourceStepping(plan: Plan, solver: LinearSolver, rec: NewtonRecord, total: { iterations: number }): boolean {
+export function sourceStepping(plan: Plan, solver: LinearSolver, rec: NewtonRecord, total: { iterations: number }, cap = Infinity): boolean {
   plan.x.fill(0);
   for (const d of plan.nonlinear) d.reset?.();
   const saved = new Float64Array(plan.n);
@@ -27,7 +27,7 @@ export function sourceStepping(plan: Plan, solver: LinearSolver, rec: NewtonReco
   for (let k = 0; k < SOURCE_STEP_CAP; k++) {
     const scale = Math.min(1, done + step);
     saved.set(plan.x);
-    newton(plan, solver, { gmin: 0, sourceScale: scale, init: false, maxIterations: STEP_ITERATION_CAP, polish: scale === 1 }, rec);
+    newton(plan, solver, { gmin: 0, sourceScale: scale, init: false, maxIterations: Math.min(STEP_ITERATION_CAP, cap), polish: scale === 1 }, rec);
     total.iterations += rec.iterations;
     if (rec.status === "converged") {
       if (scale === 1) return true;

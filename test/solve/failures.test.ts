@@ -60,3 +60,26 @@ describe("unsolvable circuits", () => {
     expect(failed(solveOperatingPoint(h)).reason).toMatch(/H1 is controlled by `R1`, which is not a voltage source/);
   });
 });
+
+describe("non-convergence", () => {
+  it("names the parts and nodes where Newton struggled, after trying every aid", () => {
+    const c = circuit()
+      .bjtModel("n", "npn")
+      .v("VCC", "vcc", "gnd", 10)
+      .v("VEE", "vee", "gnd", -10)
+      .r("RC1", "vcc", "c1", 4.7e3)
+      .r("RC2", "vcc", "c2", 4.7e3)
+      .q("Q1", "npn", "c1", "gnd", "e", "n")
+      .q("Q2", "npn", "c2", "gnd", "e", "n")
+      .r("RT", "e", "vee", 4.7e3)
+      .build();
+    const f = failed(solveOperatingPoint(c, { maxIterations: 2 }));
+    expect(f.reason).toMatch(/did not converge \(plain Newton, gmin stepping and source stepping all failed\)/);
+    expect(f.reason).toMatch(/node `/);
+    expect(f.parts.length).toBeGreaterThan(0);
+    expect(f.parts.every((p) => ["Q1", "Q2"].includes(p))).toBe(true);
+    expect(f.nodes.length).toBeGreaterThan(0);
+    expect(f.stats.aid).toBe("source-stepping");
+    expect(Number.isFinite(f.stats.iterations)).toBe(true);
+  });
+});

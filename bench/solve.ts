@@ -1,0 +1,167 @@
+// Benchmark of the bias solve: median µs per operating-point solve and Newton iterations for
+// generated transistor chains of 10, 30, 100 and 300 nodes, beside the identical Newton loop
+// whose linear step is mathjs `lusolve` (same run, reported as a ratio).
+// Run alone with `npx tsx bench/solve.ts`; `npm run bench` calls benchSolve().
+
+import { pathToFileURL } from "node:url";
+import { lup, lusolve } from "mathjs";
+import type { Circuit, Component, Model, SourcePos } from "../src/circuit/types.js";
+import { solveOperatingPoint } from "../src/solve/index.js";
+import type { LinearSolverFactory } from "../src/solve/linear-solver.js";
+
+/** Node counts of the generated circuits (issue 3). */
+export const SIZES = [10, 30, 100, 300] as const;
+/** Target from the issue: a 30-node solve under 100 µs. */
+export const TARGET_MICROS_30 = 100;
+/** Target from the issue: at least this many times faster than the mathjs-based loop. */
+export const TARGET_RATIO = 30;
+/** Wall-clock budget per measurement, ms: enough samples for a stable median, bounded for big circuits. */
+const BUDGET_MS = 400;
+/** Fewest and most timed solves per measurement. */
+const MIN_RUNS = 3;
+const MAX_RUNS = 5000;
+
+const POS: SourcePos = { file: "bench.yaml", line: 1, column: 1 };
+const exact = (v: number) => ({ nominal: v, min: v, max: v });
+const spread = (v: number) => ({ min: v, typ: v, max: v });
+
+/** Seeded PRNG (mulberry32) so every run times the same circuits. */
+function prng(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+/**
+ * A chain of biased stages (Tidewater's multi-stage sensor front ends): each stage is a
+ * divider-biased common-emitter BJT or common-source NMOS with collector/drain and degeneration
+ * resistors, DC-coupled to the next stage through a resistor. 3 nodes per stage plus the rail.
+ */
+export function chainCircuit(nodes: number, seed = 1): Circuit {
+  const rnd = prng(seed);
+  const vary = (v: number) => v * (0.8 + 0.4 * rnd());
+  const parts: Component[] = [];
+  const r = (id: string, a: string, b: string, v: number) => parts.push({ id, pos: POS, kind: "resistor", pins: { a, b }, value: exact(v) });
+  parts.push({ id: "VCC", pos: POS, kind: "voltage-source", pins: { plus: "vcc", minus: "gnd" }, dc: exact(12) });
+  const stages = Math.max(1, Math.round((nodes - 1) / 3));
+  const names: string[] = ["vcc"];
+  for (let i = 0; i < stages; i++) {
+    const [b, c, e] = [`b${i}`, `c${i}`, `e${i}`];
+    names.push(b, c, e);
+    r(`R1_${i}`, "vcc", b, vary(82e3));
+    r(`R2_${i}`, b, "gnd", vary(22e3));
+    r(`RC_${i}`, "vcc", c, vary(4.7e3));
+    r(`RE_${i}`, e, "gnd", vary(1e3));
+    if (i > 0) r(`RK_${i}`, `c${i - 1}`, b, vary(470e3));
+    if (rnd() < 0.5) parts.push({ id: `Q${i}`, pos: POS, kind: "npn", model: "npn", pins: { collector: c, base: b, emitter: e } });
+    else parts.push({ id: `M${i}`, pos: POS, kind: "nmos", model: "nmos", pins: { drain: c, gate: b, source: e, body: e } });
+  }
+  const models = new Map<string, Model>([
+    [
+      "npn",
+      { id: "npn", pos: POS, kind: "npn", beta: spread(150), reverseBeta: spread(1), saturationCurrent: spread(1e-14), earlyVoltage: spread(80), saturationEdge: 0.3, energyGap: 1.11, saturationCurrentExponent: 3, betaExponent: 1.5 },
+    ],
+    [
+      "nmos",
+      { id: "nmos", pos: POS, kind: "nmos", threshold: spread(1), kPrime: spread(100e-6), width: 20e-6, length: 1e-6, lambda: spread(0.02), bodyEffect: 0, surfacePotential: 0.6, thresholdTempco: -2e-3, kPrimeExponent: -1.5 },
+    ],
+  ]);
+  return {
+    file: "bench.yaml",
+    name: `chain-${nodes}`,
+    temperature: 300.15,
+    ground: "gnd",
+    parameters: new Map(),
+    models,
+    components: parts,
+    nodes: names.sort(),
+    specs: { gains: [], supplies: [], devices: [] },
+    overrides: [],
+    warnings: [],
+    pos: POS,
+  };
+}
+
+/** The same Newton loop with mathjs doing the linear step: lup() to factor, lusolve() to solve. */
+export const mathjsLinearSolver: LinearSolverFactory = (n) => {
+  let factored: ReturnType<typeof lup> | undefined;
+  return {
+    factor(a) {
+      const rows: number[][] = [];
+      for (let i = 0; i < n; i++) rows.push(Array.from(a.subarray(i * n, i * n + n)));
+      factored = lup(rows);
+      return -1;
+    },
+    solve(x) {
+      try {
+        const sol = (lusolve(factored!, Array.from(x)).valueOf() as number[][]).map((r) => r[0]!);
+        for (let i = 0; i < n; i++) x[i] = sol[i]!;
+      } catch {
+        x.fill(NaN); // singular: the loop reports a non-finite step
+      }
+    },
+  };
+};
+
+function medianMicros(run: () => void): { median: number; runs: number } {
+  run(); // warm-up (JIT)
+  const times: number[] = [];
+  const start = performance.now();
+  while (times.length < MAX_RUNS && (times.length < MIN_RUNS || performance.now() - start < BUDGET_MS)) {
+    const t0 = performance.now();
+    run();
+    times.push((performance.now() - t0) * 1000);
+  }
+  times.sort((a, b) => a - b);
+  return { median: times[Math.floor(times.length / 2)]!, runs: times.length };
+}
+
+export interface SolveBenchRow {
+  readonly nodes: number;
+  readonly unknowns: number;
+  readonly iterations: number;
+  readonly aid: string;
+  readonly micros: number;
+  readonly mathjsMicros: number;
+  readonly ratio: number;
+}
+
+export async function benchSolve(print: (line: string) => void = console.log): Promise<SolveBenchRow[]> {
+  const rows: SolveBenchRow[] = [];
+  for (const n of SIZES) {
+    const c = chainCircuit(n);
+    const ours = solveOperatingPoint(c);
+    const theirs = solveOperatingPoint(c, { linearSolver: mathjsLinearSolver });
+    if (!ours.ok || !theirs.ok) throw new Error(`bench circuit ${c.name} did not solve: ${ours.ok ? "" : ours.reason} ${theirs.ok ? "" : theirs.reason}`);
+    const a = medianMicros(() => solveOperatingPoint(c));
+    const b = medianMicros(() => solveOperatingPoint(c, { linearSolver: mathjsLinearSolver }));
+    rows.push({
+      nodes: c.nodes.length,
+      unknowns: c.nodes.length + 1,
+      iterations: ours.stats.iterations,
+      aid: ours.stats.aid,
+      micros: a.median,
+      mathjsMicros: b.median,
+      ratio: b.median / a.median,
+    });
+  }
+  print("bias solve (median per operating point; same Newton loop, linear step ours vs mathjs lup/lusolve)");
+  print("  nodes  iterations  aid        ours µs    mathjs µs    ratio");
+  for (const r of rows) {
+    print(
+      `  ${String(r.nodes).padStart(5)}  ${String(r.iterations).padStart(10)}  ${r.aid.padEnd(9)}  ${r.micros.toFixed(1).padStart(9)}  ${r.mathjsMicros.toFixed(0).padStart(11)}  ${r.ratio.toFixed(0).padStart(6)}×`,
+    );
+  }
+  const r30 = rows.find((r) => r.nodes >= 30 && r.nodes <= 32);
+  if (r30) print(`  targets: 30 nodes under ${TARGET_MICROS_30} µs: ${r30.micros < TARGET_MICROS_30 ? "met" : "missed"}; ≥${TARGET_RATIO}× mathjs at every size: ${rows.every((r) => r.ratio >= TARGET_RATIO) ? "met" : "missed"}`);
+  return rows;
+}
+
+if (import.meta.url === pathToFileURL(process.argv[1] ?? "").href) {
+  await benchSolve();
+}
