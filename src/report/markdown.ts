@@ -80,7 +80,7 @@ function scenarioLabel(c: CircuitResult, id: string): string {
 
 function findingsTable(c: CircuitResult): string[] {
   const lines = [
-    `### ${c.status === "error" ? "⚠️" : "❌"} ${circuitTitle(c)}`,
+    `### ${c.status === "error" ? "⚠️" : c.status === "fail" ? "❌" : "✅"} ${circuitTitle(c)}${c.status === "pass" ? " — passes the gate" : ""}`,
     "",
     "| Severity | Rule | Subject | Measured | Limit | Margin | Worst scenario | Line | What is wrong | How to fix |",
     "|---|---|---|---:|---:|---:|---|---:|---|---|",
@@ -139,7 +139,8 @@ function detailsSection(c: CircuitResult): string[] {
       }
       lines.push("");
     }
-    lines.push(`Solved in ${op.solve.iterations} Newton iterations (convergence aid: ${cell(op.solve.aid)}).`, "");
+    // A convergence aid means the bias point was hard to find: worth a reviewer's second look.
+    if (op.solve.aid !== "none") lines.push(`The bias point needed a convergence aid (${cell(op.solve.aid)}).`, "");
   }
   if (c.gains.length > 0) {
     lines.push("| Gain | Midband | dB | Target | Window | Input impedance | Output impedance |", "|---|---:|---:|---:|---|---:|---:|");
@@ -206,10 +207,11 @@ export function renderMarkdown(doc: ResultsDocument, options: MarkdownOptions = 
   if (doc.shard) lines.push(`This report covers shard ${doc.shard.index} of ${doc.shard.count}.`, "");
   lines.push(...summaryTable(doc), "");
   if (options.baseline) lines.push(...baselineSection(options.baseline));
-  const failing = doc.circuits.filter((c) => c.findings.length > 0 && c.status !== "pass");
-  if (failing.length > 0) {
+  // Failing circuits first; then those that pass the gate but still have warnings or notes.
+  const withFindings = doc.circuits.filter((c) => c.findings.length > 0).sort((a, b) => STATUS_ORDER[a.status] - STATUS_ORDER[b.status]);
+  if (withFindings.length > 0) {
     lines.push("## Findings", "");
-    for (const c of failing) lines.push(...findingsTable(c), "");
+    for (const c of withFindings) lines.push(...findingsTable(c), "");
   }
   const withFigures = doc.circuits.filter((c) => c.operatingPoint || c.gains.length > 0);
   if (withFigures.length > 0) {

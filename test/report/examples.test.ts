@@ -24,6 +24,20 @@ import { descendants, parseXml } from "./xml.js";
 
 const ROOT = join(dirname(fileURLToPath(import.meta.url)), "..", "..");
 
+/**
+ * The examples' golden JSON guards the document's shape and content, not the solver's last
+ * digits: numbers are kept to 6 significant digits and the Newton statistics are blanked, so a
+ * solver refinement does not churn this file (the fixture golden is compared at full precision).
+ */
+const GOLDEN_DIGITS = 6;
+function solverNeutral(json: string): string {
+  const value = JSON.parse(json, (key, v: unknown) => {
+    if (key === "iterations" || key === "residual") return 0;
+    return typeof v === "number" && v !== 0 ? Number(v.toPrecision(GOLDEN_DIGITS)) : v;
+  });
+  return `${JSON.stringify(value, null, 2)}\n`;
+}
+
 let doc: ResultsDocument;
 beforeAll(async () => {
   const ctx = await makeCheckContext({ cwd: ROOT });
@@ -42,7 +56,7 @@ describe("reports of the examples", () => {
   it("writes a schema-valid results document", () => {
     const json = renderJson(doc);
     expect(documentProblems(JSON.parse(json))).toEqual([]);
-    expectGolden("examples/results.json", json);
+    expectGolden("examples/results.json", solverNeutral(json));
   });
 
   it("writes JUnit XML with a suite per file and a case per finding or passed check", () => {
@@ -65,7 +79,7 @@ describe("reports of the examples", () => {
     (addFormats as unknown as (a: Ajv) => void)(ajv);
     const validate = ajv.compile(schema);
     expect(validate(JSON.parse(text)), JSON.stringify(validate.errors?.slice(0, 3))).toBe(true);
-    expectGolden("examples/opgate.sarif", text);
+    expectGolden("examples/opgate.sarif", solverNeutral(text));
   });
 
   it("writes markdown, console text and annotations", () => {
