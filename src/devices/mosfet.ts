@@ -191,7 +191,7 @@ export function mosfet(c: Mosfet, ctx: SetupContext): DeviceInstance {
         vov: e.vov,
         vth: p * e.vt,
         region: e.region,
-        headroom: Math.abs(vdsRaw) - e.vov,
+        headroom: Math.abs(vdsRaw) - Math.abs(e.vov), // |VDS| − |Vov| (DESIGN.md §3)
         power: p * vdsRaw * e.id,
         gm: e.gm,
         gmb: e.gmb,
