@@ -1,6 +1,7 @@
 // Convergence aid 1: gmin stepping. A shunt conductance from every node to ground makes the
 // network nearly linear and well conditioned; it is stepped down by decades to zero, each
-// solve starting from the previous answer.
+// solve starting from the previous answer. It starts from all-zero with the junctions off (not
+// from the plain stage's forward-biased guess): the shunt, not the guess, carries the first step.
 import type { LinearSolver } from "./linear-solver.js";
 import { newton, type NewtonRecord } from "./newton.js";
 import { STEP_ITERATION_CAP } from "./convergence.js";
@@ -17,12 +18,10 @@ export const GMIN_FACTOR = 10;
 export function gminStepping(plan: Plan, solver: LinearSolver, rec: NewtonRecord, total: { iterations: number }, cap = Infinity): boolean {
   plan.x.fill(0);
   for (const d of plan.nonlinear) d.reset?.();
-  let first = true;
   for (let gmin = GMIN_START; ; gmin /= GMIN_FACTOR) {
     const g = gmin < GMIN_END * (1 - 1e-9) ? 0 : gmin;
-    newton(plan, solver, { gmin: g, sourceScale: 1, init: first, maxIterations: Math.min(STEP_ITERATION_CAP, cap), polish: g === 0 }, rec);
+    newton(plan, solver, { gmin: g, sourceScale: 1, init: false, maxIterations: Math.min(STEP_ITERATION_CAP, cap), polish: g === 0 }, rec);
     total.iterations += rec.iterations;
-    first = false;
     if (rec.status !== "converged") return false;
     if (g === 0) return true;
   }

@@ -40,3 +40,22 @@ describe("convergence aids", () => {
     });
   }
 });
+
+describe("fall-back order", () => {
+  it("20 direct-coupled common-emitter stages: converges (with an aid if plain Newton runs out), regions alternate", () => {
+    const b = circuit().bjtModel("n", "npn", { beta: 300, earlyVoltage: 20 }).v("VCC", "vcc", "gnd", 30).v("VIN", "in", "gnd", 0.7);
+    let prev = "in";
+    for (let k = 0; k < 20; k++) {
+      b.r(`RC${k}`, "vcc", `c${k}`, 10e3).q(`Q${k}`, "npn", `c${k}`, prev, "gnd", "n");
+      prev = `c${k}`;
+    }
+    const c = b.build();
+    const op = solved(solveOperatingPoint(c));
+    expect(kclError(c, op).worst).toBeLessThan(1e-9);
+    // Each stage inverts: an on (saturated) stage pulls the next base low, an off stage lets
+    // the next base draw current through its collector resistor (logic-inverter chain).
+    for (let k = 0; k < 20; k++) expect((op.devices[`Q${k}`] as { region: string }).region).toBe(k % 2 === 0 ? "saturation" : "cutoff");
+    expect(["gmin-stepping", "source-stepping"]).toContain(op.stats.aid);
+  });
+});
+
