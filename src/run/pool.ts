@@ -18,6 +18,13 @@ import type { FromWorker, ToWorker, WorkerStart } from "./protocol.js";
  */
 export const MIN_FILES_PER_WORKER = 64;
 
+/**
+ * Files sent ahead to each worker, so that it never waits for this thread (which may itself be
+ * busy checking a file, or descheduled on a loaded machine) between two files. Small, so that the
+ * shares stay even at the end of a run.
+ */
+export const PREFETCH = 4;
+
 /** Replacements allowed per job slot before giving up on threads (a crash loop would never end). */
 export const RESPAWNS_PER_JOB = 3;
 
@@ -85,7 +92,10 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
   const results: (CircuitResult | undefined)[] = new Array(files.length);
   const total = files.length;
   let next = 0;
+  /** Files handed back by a dead worker that it had not started yet. */
+  const requeued: number[] = [];
   let done = 0;
+  const take = (): number | undefined => (requeued.length > 0 ? requeued.shift() : next < total ? next++ : undefined);
   const finish = (i: number, result: CircuitResult): void => {
     results[i] = result;
     done++;
@@ -93,8 +103,7 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
   };
 
   const inProcess = async (): Promise<void> => {
-    while (next < total) {
-      const i = next++;
+    for (let i = take(); i !== undefined; i = take()) {
       const file = files[i]!;
       try {
         finish(i, await checkFile(file.abs, options.ctx, file.display));
@@ -117,6 +126,7 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
     const entry = workerEntry();
     const start: WorkerStart = { context: options.context, ...(options.crashOn !== undefined ? { crashOn: options.crashOn } : {}) };
     const live = new Set<Worker>();
+    const mainLane = options.mainThreadLane ?? true;
     let respawns = 0;
     let noticed = false;
     let resolved = false;
@@ -132,22 +142,25 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
       if (noticed) return;
       noticed = true;
       options.onNotice?.(`worker threads are unavailable (${why}); this thread checks the remaining files`);
-      if (!(options.mainThreadLane ?? true)) void inProcess().then(checkDone);
+      if (!mainLane) void inProcess().then(checkDone);
     };
     const spawn = (): void => {
       const worker = new Worker(entry.entry, { workerData: start, eval: entry.eval });
       live.add(worker);
-      let current: number | undefined;
+      /** Sent and not yet answered, in the order the worker checks them (the first is in progress). */
+      const inFlight: number[] = [];
       let ready = false;
       let lastError = "";
-      const dispatch = (): void => {
-        if (next < total) {
-          current = next++;
-          const f = files[current]!;
-          const message: ToWorker = { type: "check", id: current, abs: f.abs, display: f.display };
+      const fill = (): void => {
+        while (inFlight.length < PREFETCH) {
+          const i = take();
+          if (i === undefined) break;
+          inFlight.push(i);
+          const f = files[i]!;
+          const message: ToWorker = { type: "check", id: i, abs: f.abs, display: f.display };
           worker.postMessage(message);
-        } else {
-          current = undefined;
+        }
+        if (inFlight.length === 0) {
           live.delete(worker);
           void worker.terminate();
           checkDone();
@@ -156,13 +169,16 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
       worker.on("message", (m: FromWorker) => {
         if (m.type === "ready") {
           ready = true;
-          dispatch();
+          fill();
         } else if (m.type === "fatal") {
           lastError = m.message;
           void worker.terminate();
-        } else if (m.id === current) {
+        } else {
+          const at = inFlight.indexOf(m.id);
+          if (at < 0) return;
+          inFlight.splice(at, 1);
           finish(m.id, m.type === "result" ? m.result : internalErrorResult(files[m.id]!, `the check stopped: ${m.message}`));
-          dispatch();
+          fill();
         }
       });
       worker.on("error", (err) => {
@@ -171,22 +187,25 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
       worker.on("exit", (code) => {
         if (!live.has(worker)) return;
         live.delete(worker);
-        if (current !== undefined) {
-          const idx = current;
-          const f = files[idx]!;
-          current = undefined;
-          finish(idx, internalErrorResult(f, `the check of this file stopped unexpectedly (its worker thread exited with code ${code}${lastError ? `: ${lastError}` : ""})`));
+        const [dying, ...untouched] = inFlight;
+        if (dying !== undefined) {
+          const f = files[dying]!;
+          finish(dying, internalErrorResult(f, `the check of this file stopped unexpectedly (its worker thread exited with code ${code}${lastError ? `: ${lastError}` : ""})`));
           options.onNotice?.(`a worker thread died while checking ${f.display}; it was replaced`);
         }
+        // The files queued behind the one that crashed were never started: someone else takes them.
+        requeued.push(...untouched);
+        inFlight.length = 0;
+        const workLeft = requeued.length > 0 || next < total;
         if (!ready) giveUp(lastError || `exit code ${code}`);
-        else if (next < total) {
+        else if (workLeft) {
           if (respawns++ < RESPAWNS_PER_JOB * jobs) spawn();
           else giveUp("too many worker crashes");
         }
+        if (workLeft && mainLane && requeued.length > 0 && live.size === 0) void inProcess().then(checkDone);
         checkDone();
       });
     };
-    const mainLane = options.mainThreadLane ?? true;
     for (let k = 0; k < (mainLane ? jobs - 1 : jobs); k++) spawn();
     if (mainLane) void inProcess().then(checkDone);
   });

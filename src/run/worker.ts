@@ -13,15 +13,31 @@ function send(message: FromWorker): void {
   port!.postMessage(message);
 }
 
+// Files are checked strictly one after another, in the order sent: the pool sends a few ahead,
+// and a crash must take only the file in progress with it.
+const queue: ToWorker[] = [];
+let busy = false;
+
+async function drain(ctx: Awaited<ReturnType<typeof makeCheckContext>>): Promise<void> {
+  if (busy) return;
+  busy = true;
+  for (let message = queue.shift(); message; message = queue.shift()) {
+    if (start.crashOn !== undefined && message.display === start.crashOn) process.exit(70);
+    try {
+      send({ type: "result", id: message.id, result: await checkFile(message.abs, ctx, message.display) });
+    } catch (err) {
+      send({ type: "failed", id: message.id, message: err instanceof Error ? err.message : String(err) });
+    }
+  }
+  busy = false;
+}
+
 try {
   const ctx = await makeCheckContext(start.context);
   port.on("message", (message: ToWorker) => {
     if (message.type !== "check") return;
-    if (start.crashOn !== undefined && message.display === start.crashOn) process.exit(70);
-    checkFile(message.abs, ctx, message.display).then(
-      (result) => send({ type: "result", id: message.id, result }),
-      (err: unknown) => send({ type: "failed", id: message.id, message: err instanceof Error ? err.message : String(err) }),
-    );
+    queue.push(message);
+    void drain(ctx);
   });
   send({ type: "ready" });
 } catch (err) {
