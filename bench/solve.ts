@@ -108,17 +108,36 @@ export const mathjsLinearSolver: LinearSolverFactory = (n) => {
   };
 };
 
-function medianMicros(run: () => void): { median: number; runs: number } {
+/** A batch lasts at least this long, ms, so the clock's resolution does not matter. */
+const BATCH_MS = 2;
+
+/**
+ * Median over timed batches of the time per call, µs: wall clock, and the process's CPU time
+ * (user + system), which other processes on a busy machine inflate much less.
+ */
+function medianMicros(run: () => void): { wall: number; cpu: number; runs: number } {
   run(); // warm-up (JIT)
-  const times: number[] = [];
-  const start = performance.now();
-  while (times.length < MAX_RUNS && (times.length < MIN_RUNS || performance.now() - start < BUDGET_MS)) {
+  let batch = 1;
+  for (;;) {
     const t0 = performance.now();
-    run();
-    times.push((performance.now() - t0) * 1000);
+    for (let i = 0; i < batch; i++) run();
+    if (performance.now() - t0 >= BATCH_MS || batch >= MAX_RUNS) break;
+    batch *= 2;
   }
-  times.sort((a, b) => a - b);
-  return { median: times[Math.floor(times.length / 2)]!, runs: times.length };
+  const wall: number[] = [];
+  const cpu: number[] = [];
+  const start = performance.now();
+  while (wall.length < MIN_RUNS || (performance.now() - start < BUDGET_MS && wall.length * batch < MAX_RUNS)) {
+    const c0 = process.cpuUsage();
+    const t0 = performance.now();
+    for (let i = 0; i < batch; i++) run();
+    const t1 = performance.now();
+    const c1 = process.cpuUsage(c0);
+    wall.push(((t1 - t0) * 1000) / batch);
+    cpu.push((c1.user + c1.system) / batch);
+  }
+  const median = (xs: number[]) => xs.sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
+  return { wall: median(wall), cpu: median(cpu), runs: wall.length * batch };
 }
 
 export interface SolveBenchRow {
@@ -126,8 +145,13 @@ export interface SolveBenchRow {
   readonly unknowns: number;
   readonly iterations: number;
   readonly aid: string;
+  /** Median wall-clock µs per solve. */
   readonly micros: number;
+  /** Median CPU µs per solve (less sensitive to other load on the machine). */
+  readonly cpuMicros: number;
   readonly mathjsMicros: number;
+  readonly mathjsCpuMicros: number;
+  /** mathjs loop time / our time, wall clock. */
   readonly ratio: number;
 }
 
@@ -145,16 +169,18 @@ export async function benchSolve(print: (line: string) => void = console.log): P
       unknowns: c.nodes.length + 1,
       iterations: ours.stats.iterations,
       aid: ours.stats.aid,
-      micros: a.median,
-      mathjsMicros: b.median,
-      ratio: b.median / a.median,
+      micros: a.wall,
+      cpuMicros: a.cpu,
+      mathjsMicros: b.wall,
+      mathjsCpuMicros: b.cpu,
+      ratio: b.wall / a.wall,
     });
   }
   print("bias solve (median per operating point; same Newton loop, linear step ours vs mathjs lup/lusolve)");
-  print("  nodes  iterations  aid        ours µs    mathjs µs    ratio");
+  print("  nodes  iterations  aid    ours µs (cpu)      mathjs µs (cpu)    ratio");
   for (const r of rows) {
     print(
-      `  ${String(r.nodes).padStart(5)}  ${String(r.iterations).padStart(10)}  ${r.aid.padEnd(9)}  ${r.micros.toFixed(1).padStart(9)}  ${r.mathjsMicros.toFixed(0).padStart(11)}  ${r.ratio.toFixed(0).padStart(6)}×`,
+      `  ${String(r.nodes).padStart(5)}  ${String(r.iterations).padStart(10)}  ${r.aid.padEnd(5)}  ${r.micros.toFixed(1).padStart(8)} (${r.cpuMicros.toFixed(1).padStart(7)})  ${r.mathjsMicros.toFixed(0).padStart(9)} (${r.mathjsCpuMicros.toFixed(0).padStart(7)})  ${r.ratio.toFixed(0).padStart(5)}×`,
     );
   }
   const r30 = rows.find((r) => r.nodes >= 30 && r.nodes <= 32);

@@ -13,7 +13,7 @@ import { sourceStepping } from "./source-stepping.js";
 import type { ConvergenceAid, SolveFailure, SolveResult } from "./types.js";
 
 export type * from "./types.js";
-export { renderOperatingPoint } from "./table.js";
+export { formatSi, renderOperatingPoint, renderSolveResult } from "./table.js";
 
 export interface SolveOptions {
   /** Linear solver of the Newton step (default: our dense LU). The benchmark swaps it. */
@@ -27,6 +27,16 @@ export interface SolveOptions {
 const AIDS: readonly ConvergenceAid[] = ["none", "gmin-stepping", "source-stepping"];
 
 export function solveOperatingPoint(circuit: Circuit, options: SolveOptions = {}): SolveResult {
+  try {
+    return solve(circuit, options);
+  } catch (err) {
+    // A defect here must not crash a review run: report it as a failure of this circuit.
+    const message = err instanceof Error ? err.message : String(err);
+    return failure(`internal error in the bias solver (${message}); please report it with this circuit`, [], [], "none", 0, Infinity);
+  }
+}
+
+function solve(circuit: Circuit, options: SolveOptions): SolveResult {
   const compiled = compilePlan(circuit);
   if (!compiled.ok) return failure(compiled.reason, compiled.parts, [], "none", 0, Infinity);
   const plan = compiled.plan;

@@ -83,3 +83,12 @@ describe("non-convergence", () => {
     expect(Number.isFinite(f.stats.iterations)).toBe(true);
   });
 });
+
+describe("defects never crash", () => {
+  it("an unexpected component shape becomes a SolveFailure, not a throw", () => {
+    const c = circuit().v("V1", "a", "gnd", 1).r("R1", "a", "gnd", 1).build();
+    const broken = { ...c, components: [...c.components, { id: "X1", kind: "memristor", pins: {} } as never] };
+    const f = failed(solveOperatingPoint(broken));
+    expect(f.reason).toMatch(/^internal error in the bias solver/);
+  });
+});
