@@ -2,7 +2,7 @@
 // globs) and globs, minus the config's excludes; shown relative to the results root.
 import fg from "fast-glob";
 import { statSync } from "node:fs";
-import { relative, resolve, sep } from "node:path";
+import { isAbsolute, relative, resolve, sep } from "node:path";
 import { compareText } from "../report/build.js";
 
 export interface CircuitFile {
@@ -19,9 +19,18 @@ export interface DiscoverOptions {
   readonly exclude: readonly string[];
 }
 
-export function displayPath(abs: string, root: string): string {
-  const rel = relative(root, abs);
-  return (rel === "" ? abs : rel).split(sep).join("/");
+function under(abs: string, dir: string): string | null {
+  const rel = relative(dir, abs);
+  return rel === "" || rel.startsWith("..") || isAbsolute(rel) ? null : rel.split(sep).join("/");
+}
+
+/**
+ * The path a results entry shows: relative to the results root (the config's folder), or to the
+ * working directory for a file outside it (a config kept in a subfolder), never with `../`
+ * unless the file is outside both.
+ */
+export function displayPath(abs: string, root: string, cwd: string = root): string {
+  return under(abs, root) ?? under(abs, cwd) ?? relative(cwd, abs).split(sep).join("/");
 }
 
 /**
@@ -48,6 +57,6 @@ export async function discoverCircuitFiles(patterns: readonly string[], options:
     else for (const f of await fg(pattern, { ...globOptions, cwd: options.cwd })) found.add(resolve(f));
   }
   return [...found]
-    .map((abs) => ({ abs, display: displayPath(abs, options.root) }))
+    .map((abs) => ({ abs, display: displayPath(abs, options.root, options.cwd) }))
     .sort((a, b) => compareText(a.display, b.display));
 }
