@@ -57,6 +57,13 @@ export function inputErrorFindings(errors: readonly InputError[], file: string):
   }));
 }
 
+/** Findings for the loader's non-fatal remarks (Circuit.warnings): readable, but worth a look. */
+export function fileWarningFindings(warnings: readonly InputError[], file: string): Finding[] {
+  return inputErrorFindings(warnings, file).map((f) => ({ ...f, rule: FILE_WARNING_RULE, severity: "warning" as const }));
+}
+
+export const FILE_WARNING_RULE = "file-warning";
+
 function errorResult(file: string, name: string | null, findings: Finding[]): CircuitResult {
   return { file, name, status: "error", operatingPoint: null, gains: [], scenarios: [], findings, passed: [] };
 }
@@ -82,7 +89,7 @@ export async function checkCircuit(circuit: Circuit, ctx: CheckContext, displayP
   const scenarios = buildScenarios(circuit, ctx.config.variation);
   const analyses = scenarios.map(analyse);
   const { findings, passed } = await runRules({ circuit, analyses, rules: ctx.configured });
-  const located = findings.map((f) => ({ ...f, file: displayPath }));
+  const located = [...fileWarningFindings(circuit.warnings, displayPath), ...findings.map((f) => ({ ...f, file: displayPath }))];
   const nominal = analyses[0]!;
   const failOn = ctx.config.failOn;
   const status = !nominal.solve.ok

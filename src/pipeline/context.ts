@@ -17,6 +17,18 @@ export const INPUT_RULE: RuleEntry = {
   source: "builtin",
 };
 
+/** The loader's non-fatal remarks about a circuit file carry this rule id. */
+export const FILE_WARNING_ENTRY: RuleEntry = {
+  id: "file-warning",
+  description: "Reports readable but questionable content in a circuit file",
+  severity: "warning",
+  docs:
+    "The file loaded, but something in it is probably not what was meant: a threshold whose sign does not fit the " +
+    "transistor type (both readings are named), a bare temperature number read as kelvin, a node with a single " +
+    "connection. Read the message and either fix the file or make the intent explicit (a unit, a sign).",
+  source: "builtin",
+};
+
 /** Throws ConfigError (exit 2 at the CLI) for a bad config, plugin, flag or rule option. */
 export async function createCheckContext(options: CheckContextOptions): Promise<CheckContext> {
   const loaded = await loadConfig({ cwd: options.cwd, ...(options.configPath ? { configPath: options.configPath } : {}) });
@@ -25,7 +37,7 @@ export async function createCheckContext(options: CheckContextOptions): Promise<
   const flagged = applyRuleFlags(loaded, options.ruleFlags ?? [], ids);
   const config = options.failOn ? { ...flagged, failOn: options.failOn } : flagged;
   const configured = configuredRules(config, plugins);
-  const rules: RuleEntry[] = [INPUT_RULE, ...configured
+  const rules: RuleEntry[] = [INPUT_RULE, FILE_WARNING_ENTRY, ...configured
     .map((c) => ({
       id: c.rule.id,
       description: c.rule.description,

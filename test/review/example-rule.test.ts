@@ -8,7 +8,7 @@ import { ruleTester, runRuleCase } from "../../src/review/tester.js";
 import { npnStage, pnpStage } from "./circuits.js";
 
 const ROOT = resolve(import.meta.dirname, "..", "..");
-const config = await loadConfig({ cwd: ROOT, configPath: "examples/team-rules/opgate.config.yaml" });
+const config = await loadConfig({ cwd: ROOT, configPath: "examples/opgate.config.yaml" });
 const [plugin] = await loadPlugins(config);
 const rule = plugin!.rules[0]!;
 
