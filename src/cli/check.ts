@@ -185,6 +185,11 @@ export const checkCommand: CommandSpec = {
       .option("config", { type: "string", describe: "Config file (default: opgate.config.yaml found walking up)" })
       .option("rule", { type: "string", array: true, describe: "Set a rule's severity: id=error|warning|note|off (repeatable)" })
       .option("fail-on", { choices: ["error", "warning", "note"], describe: "Lowest severity that fails the run (default: config, else error)" })
+      .option("annotations", {
+        type: "boolean",
+        default: true,
+        describe: "Under GitHub Actions, annotate findings and append the step summary (--no-annotations in shard jobs: merge does it once)",
+      })
       .option("timestamp", { type: "boolean", default: false, describe: "Record the time in the results document (off: reproducible output)" })
       .example("$0 check examples", "Check every circuit file under examples/")
       .example("$0 check 'boards/**/*.yaml' --fail-on warning", "Fail on warnings too")
@@ -242,7 +247,7 @@ export const checkCommand: CommandSpec = {
     });
     if (reportOnStdout) io.stderr(consoleText);
     else io.stdout(consoleText);
-    writeCiOutputs(doc, io, reportOptions, reportOnStdout);
+    if (args.annotations !== false) writeCiOutputs(doc, io, reportOptions, reportOnStdout);
     return exitCodeFor(doc);
   },
 };

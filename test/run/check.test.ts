@@ -1,6 +1,6 @@
 // `opgate check` end to end, in-process, on a temporary repository of the example circuits:
 // reports, exit codes, a broken file among good ones, shards and merge, worker threads, CI outputs.
-import { readFileSync, writeFileSync } from "node:fs";
+import { mkdirSync, readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { documentProblems } from "../../src/report/validate.js";
@@ -106,11 +106,17 @@ describe("opgate check", () => {
   it("annotates and writes the step summary only under GitHub Actions", async () => {
     const plain = await cli(["check", "boards", "--jobs", "1"], repo.dir, { CI: "true" });
     expect(plain.stdout).not.toMatch(/^::error /m);
+    mkdirSync(join(repo.dir, "out"), { recursive: true });
     const summary = join(repo.dir, "out", "summary.md");
     writeFileSync(summary, "");
     const gh = await cli(["check", "boards", "--jobs", "1"], repo.dir, { CI: "true", GITHUB_ACTIONS: "true", GITHUB_STEP_SUMMARY: summary });
     expect(gh.stdout).toMatch(/^::error file=boards\/zz-unparseable\.yaml,line=\d+,col=\d+,title=opgate input%3A /m);
     expect(readFileSync(summary, "utf8")).toContain("**opgate: error**");
+    // A shard job leaves annotations and the summary to the merge job.
+    writeFileSync(summary, "");
+    const shardJob = await cli(["check", "boards", "--jobs", "1", "--shard", "1/2", "--no-annotations"], repo.dir, { GITHUB_ACTIONS: "true", GITHUB_STEP_SUMMARY: summary });
+    expect(shardJob.stdout).not.toMatch(/^::/m);
+    expect(readFileSync(summary, "utf8")).toBe("");
   });
 
   it("shows baseline changes", async () => {
