@@ -37,6 +37,8 @@ export interface NewtonSettings {
  * ~1e-11 V and another step adds nothing.
  */
 export const POLISH_SKIP_RATIO = 0.1;
+/** …or when every KCL residual is already below this fraction of its tolerance (≲ 1e-14 A on mA currents). */
+export const POLISH_SKIP_RESIDUAL_RATIO = 0.01;
 
 export type NewtonStatus = "converged" | "singular" | "not-converged" | "non-finite";
 
@@ -48,6 +50,8 @@ export interface NewtonRecord {
   residual: number;
   /** Unknown with the largest residual relative to its tolerance at the last evaluation. */
   worstResidual: number;
+  /** That largest residual / tolerance ratio (≤ 1 when the residual test passes). */
+  residualRatio: number;
   /** Unknown with the largest last update relative to its tolerance. */
   worstUpdate: number;
   /** Column without a pivot when status is "singular". */
@@ -55,7 +59,7 @@ export interface NewtonRecord {
 }
 
 export function newRecord(): NewtonRecord {
-  return { status: "not-converged", iterations: 0, residual: Infinity, worstResidual: -1, worstUpdate: -1, singularColumn: -1 };
+  return { status: "not-converged", iterations: 0, residual: Infinity, worstResidual: -1, residualRatio: Infinity, worstUpdate: -1, singularColumn: -1 };
 }
 
 /** Runs Newton from plan.x; on "converged" plan.x is the answer at these settings. */
@@ -82,7 +86,7 @@ export function newton(plan: Plan, solver: LinearSolver, s: NewtonSettings, rec:
 
     if (!st.init && !st.limited && updateOk && residualOk(plan, rec)) {
       rec.status = "converged";
-      if (s.polish && nonlinear.length > 0 && lastRatio > POLISH_SKIP_RATIO) polishStep(plan, solver, s, rec);
+      if (s.polish && nonlinear.length > 0 && lastRatio > POLISH_SKIP_RATIO && rec.residualRatio > POLISH_SKIP_RESIDUAL_RATIO) polishStep(plan, solver, s, rec);
       return rec;
     }
 
@@ -126,7 +130,7 @@ export function newton(plan: Plan, solver: LinearSolver, s: NewtonSettings, rec:
   for (let d = 0; d < nonlinear.length; d++) nonlinear[d]!.stampNonlinear!(x, target, st);
   if (!st.limited && updateOk && residualOk(plan, rec)) {
     rec.status = "converged";
-    if (s.polish && nonlinear.length > 0 && lastRatio > POLISH_SKIP_RATIO) polishStep(plan, solver, s, rec);
+    if (s.polish && nonlinear.length > 0 && lastRatio > POLISH_SKIP_RATIO && rec.residualRatio > POLISH_SKIP_RESIDUAL_RATIO) polishStep(plan, solver, s, rec);
   }
   return rec;
 }
@@ -148,6 +152,7 @@ function polishStep(plan: Plan, solver: LinearSolver, s: NewtonSettings, rec: Ne
   const { x, xNew, xSpare } = plan;
   const before = rec.residual;
   const worstBefore = rec.worstResidual;
+  const ratioBefore = rec.residualRatio;
   rec.iterations++;
   if (solver.factor(plan.a) >= 0) return;
   xNew.set(plan.b);
@@ -162,6 +167,7 @@ function polishStep(plan: Plan, solver: LinearSolver, s: NewtonSettings, rec: Ne
   stampAt(plan, s, st);
   rec.residual = before;
   rec.worstResidual = worstBefore;
+  rec.residualRatio = ratioBefore;
 }
 
 /**
@@ -196,5 +202,6 @@ function residualOk(plan: Plan, rec: NewtonRecord): boolean {
     }
   }
   rec.residual = maxNode;
+  rec.residualRatio = worst;
   return ok;
 }
