@@ -145,7 +145,7 @@ export function compilePlan(circuit: Circuit): CompileResult {
     d.stampSource?.(bSource);
   }
   const isNodeRow = new Uint8Array(n);
-  unknowns.forEach((u, i) => (isNodeRow[i] = u.kind === "branch" ? 0 : 1));
+  for (let i = 0; i < n; i++) isNodeRow[i] = unknowns[i]!.kind === "branch" ? 0 : 1;
   const pattern = stampPattern(n, aStatic, isNodeRow, devices);
   return {
     ok: true,
@@ -171,19 +171,18 @@ export function compilePlan(circuit: Circuit): CompileResult {
 }
 
 function stampPattern(n: number, aStatic: Float64Array, isNodeRow: Uint8Array, devices: readonly DeviceInstance[]): Int32Array {
-  const mark = new Uint8Array(n * n);
-  for (let i = 0; i < n * n; i++) if (aStatic[i] !== 0) mark[i] = 1;
+  const nn = n * n;
+  const mark = new Uint8Array(nn);
   for (let i = 0; i < n; i++) if (isNodeRow[i]) mark[i * n + i] = 1;
   for (const d of devices) {
     const idx = d.stampIndices;
     if (!idx) continue;
     for (const r of idx) if (r >= 0) for (const c of idx) if (c >= 0) mark[r * n + c] = 1;
   }
+  const found = new Int32Array(nn);
   let count = 0;
-  for (let i = 0; i < n * n; i++) count += mark[i]!;
-  const pattern = new Int32Array(count);
-  for (let i = 0, k = 0; i < n * n; i++) if (mark[i]) pattern[k++] = i;
-  return pattern;
+  for (let i = 0; i < nn; i++) if (mark[i] || aStatic[i] !== 0) found[count++] = i;
+  return found.subarray(0, count);
 }
 
 /** Human name of an unknown for messages: "node `b`", "the branch of VCC", "node `D1#junction`". */
