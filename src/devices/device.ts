@@ -125,13 +125,6 @@ export function terminal(ctx: SetupContext, pin: string, node: string): Terminal
   return { pin, node, index: ctx.node(node) };
 }
 
-/** Power delivered into a device: Σ V(pin)·I(into pin). */
-export function powerIn(x: Float64Array, terminals: readonly Terminal[], currentsIn: readonly number[]): number {
-  let p = 0;
-  for (let i = 0; i < terminals.length; i++) p += volt(x, terminals[i]!.index) * currentsIn[i]!;
-  return p;
-}
-
 /** Thrown during setup for a device the solver cannot represent; becomes a SolveFailure. */
 export class DeviceSetupError extends Error {
   constructor(
