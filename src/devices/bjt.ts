@@ -103,8 +103,8 @@ export function bjt(c: Bjt, ctx: SetupContext): DeviceInstance {
     nonlinear: true,
     stampIndices: idx,
     dcLinks: [
-      [base.node, emi.node],
-      [base.node, col.node],
+      [base, emi],
+      [base, col],
     ],
     voltageLinks: [],
     reset() {

@@ -20,8 +20,8 @@ export function voltageControlled(c: VoltageControlled, ctx: SetupContext): Devi
       kind: c.kind,
       terminals: [plus, minus, cp, cm],
       nonlinear: false,
-      dcLinks: [[plus.node, minus.node]],
-      voltageLinks: [[plus.node, minus.node]],
+      dcLinks: [[plus, minus]],
+      voltageLinks: [[plus, minus]],
       stampStatic(m: StampTarget) {
         addA(m, plus.index, br, 1);
         addA(m, minus.index, br, -1);
@@ -78,8 +78,8 @@ export function currentControlled(c: CurrentControlled, ctx: SetupContext): Devi
       kind: c.kind,
       terminals: [plus, minus],
       nonlinear: false,
-      dcLinks: [[plus.node, minus.node]],
-      voltageLinks: [[plus.node, minus.node]],
+      dcLinks: [[plus, minus]],
+      voltageLinks: [[plus, minus]],
       bind,
       stampStatic(m: StampTarget) {
         addA(m, plus.index, br, 1);

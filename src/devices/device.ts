@@ -59,10 +59,10 @@ export interface DeviceInstance {
   readonly terminals: readonly Terminal[];
   /** True when the device's stamp depends on the trial solution. */
   readonly nonlinear: boolean;
-  /** How the device joins nodes for the DC topology check (pairs of node names). */
-  readonly dcLinks: readonly (readonly [string, string])[];
-  /** Pairs joined by a branch that fixes their voltage difference (for source-loop diagnosis). */
-  readonly voltageLinks: readonly (readonly [string, string])[];
+  /** How the device joins nodes for the DC topology check (pairs of its terminals). */
+  readonly dcLinks: readonly (readonly [Terminal, Terminal])[];
+  /** Terminal pairs joined by a branch that fixes their voltage difference (for source-loop diagnosis). */
+  readonly voltageLinks: readonly (readonly [Terminal, Terminal])[];
   /** Resolves references to other devices; returns an error sentence, or undefined. */
   bind?(ctx: BindContext): string | undefined;
   /** Constant matrix entries (linear devices), stamped once per plan. */

@@ -52,7 +52,7 @@ export function diode(c: Diode, ctx: SetupContext): DeviceInstance {
     terminals: [anode, cathode],
     nonlinear: true,
     stampIndices: idx,
-    dcLinks: [[anode.node, cathode.node]],
+    dcLinks: [[anode, cathode]],
     voltageLinks: [],
     stampStatic(m: StampTarget) {
       if (rs > 0) stampConductance(m, anode.index, inner, 1 / rs);

@@ -15,8 +15,8 @@ export function inductor(c: Inductor, ctx: SetupContext): DeviceInstance {
     kind: c.kind,
     terminals: [a, b],
     nonlinear: false,
-    dcLinks: [[a.node, b.node]],
-    voltageLinks: rs === 0 ? [[a.node, b.node]] : [],
+    dcLinks: [[a, b]],
+    voltageLinks: rs === 0 ? [[a, b]] : [],
     stampStatic(m: StampTarget) {
       addA(m, a.index, br, 1);
       addA(m, b.index, br, -1);

@@ -147,7 +147,7 @@ export function mosfet(c: Mosfet, ctx: SetupContext): DeviceInstance {
     terminals: [dr, gt, sr, bd],
     nonlinear: true,
     stampIndices: idx,
-    dcLinks: [[dr.node, sr.node]],
+    dcLinks: [[dr, sr]],
     voltageLinks: [],
     reset() {
       vgsLast = 0;

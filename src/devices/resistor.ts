@@ -16,7 +16,7 @@ export function resistor(c: Resistor, ctx: SetupContext): DeviceInstance {
     kind: c.kind,
     terminals: [a, b],
     nonlinear: false,
-    dcLinks: [[a.node, b.node]],
+    dcLinks: [[a, b]],
     voltageLinks: [],
     stampStatic(m: StampTarget) {
       stampConductance(m, a.index, b.index, g);

@@ -20,8 +20,8 @@ export function voltageSource(c: VoltageSource, ctx: SetupContext): VoltageSourc
     branchIndex: br,
     terminals: [plus, minus],
     nonlinear: false,
-    dcLinks: [[plus.node, minus.node]],
-    voltageLinks: [[plus.node, minus.node]],
+    dcLinks: [[plus, minus]],
+    voltageLinks: [[plus, minus]],
     stampStatic(m: StampTarget) {
       addA(m, plus.index, br, 1);
       addA(m, minus.index, br, -1);

@@ -2,7 +2,7 @@
 // ground, and loops of branches that each fix a voltage (sources, zero-resistance inductors,
 // voltage-output controlled sources). Run on the compiled plan before Newton, and used to
 // explain a singular factorisation.
-import type { DeviceInstance } from "../devices/device.js";
+import type { DeviceInstance, Terminal } from "../devices/device.js";
 import type { Plan } from "./plan.js";
 
 export interface Diagnosis {
@@ -39,9 +39,9 @@ class UnionFind {
   }
 }
 
-/** Slot of a node name in the union–find (ground is plan.n). */
-function slotOf(plan: Plan, name: string): number {
-  return name === plan.circuit.ground ? plan.n : plan.nodeIndex.get(name)!;
+/** Slot of a terminal's node in the union–find (ground, index −1, is slot plan.n). */
+function slotOf(plan: Plan, t: Terminal): number {
+  return t.index < 0 ? plan.n : t.index;
 }
 
 function listWords(items: readonly string[]): string {
@@ -74,12 +74,14 @@ export function findVoltageLoop(plan: Plan): Diagnosis | undefined {
   const uf = new UnionFind(plan.n + 1);
   const edges: { d: DeviceInstance; p: string; q: string }[] = [];
   for (const d of plan.devices) {
-    for (const [p, q] of d.voltageLinks) {
-      if (p === q || !uf.union(slotOf(plan, p), slotOf(plan, q))) {
+    for (const [tp, tq] of d.voltageLinks) {
+      const p = tp.node;
+      const q = tq.node;
+      if (p === q || !uf.union(slotOf(plan, tp), slotOf(plan, tq))) {
         const path = p === q ? [] : pathBetween(edges, p, q);
         const members = [...path.map((e) => e.d), d];
         const ids = members.map((m) => m.id);
-        const nodes = [...new Set(members.flatMap((m) => m.voltageLinks.flat()))].sort();
+        const nodes = [...new Set(members.flatMap((m) => m.voltageLinks.flat().map((t) => t.node)))].sort();
         const allSources = members.every((m) => m.kind === "voltage-source");
         const noun = allSources ? "voltage sources" : "voltage-fixing branches (sources, zero-resistance inductors, controlled voltage sources)";
         const reason =
