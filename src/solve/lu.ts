@@ -38,15 +38,19 @@ export interface LuWorkspace {
   readonly uStart: Int32Array;
 }
 
-export function createLuWorkspace(n: number): LuWorkspace {
+export function createLuWorkspace(n: number, borrow?: { int32(slot: string, length: number): Int32Array; float64(slot: string, length: number): Float64Array }): LuWorkspace {
+  // Every array is fully written by luFactor before luSolve reads it, so borrowed memory is safe.
+  const i32 = borrow ? borrow.int32("lu", 2 * n * n + 3 * n + 2) : new Int32Array(2 * n * n + 3 * n + 2);
+  let at = 0;
+  const take = (length: number): Int32Array => i32.subarray(at, (at += length));
   return {
     n,
-    pivots: new Int32Array(n),
-    colScale: new Float64Array(n),
-    lRows: new Int32Array(n * n),
-    lStart: new Int32Array(n + 1),
-    uCols: new Int32Array(n * n),
-    uStart: new Int32Array(n + 1),
+    pivots: take(n),
+    colScale: borrow ? borrow.float64("lu-scale", n) : new Float64Array(n),
+    lRows: take(n * n),
+    lStart: take(n + 1),
+    uCols: take(n * n),
+    uStart: take(n + 1),
   };
 }
 

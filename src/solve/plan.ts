@@ -11,6 +11,7 @@ import { inductor } from "../devices/inductor.js";
 import { mosfet } from "../devices/mosfet.js";
 import { resistor } from "../devices/resistor.js";
 import { voltageSource, type VoltageSourceInstance } from "../devices/voltage-source.js";
+import { scratchFloat64, scratchInt32, scratchUint8 } from "./scratch.js";
 
 export type UnknownKind = "node" | "internal" | "branch";
 
@@ -129,8 +130,9 @@ export function compilePlan(circuit: Circuit): CompileResult {
     if (msg !== undefined) return { ok: false, reason: msg, parts: [d.id] };
   }
   const n = unknowns.length;
-  // Every working array of the plan in one allocation (typed-array creation is costly per call).
-  const buffer = new Float64Array(2 * n * n + 5 * n);
+  // Every working array of the plan in one borrowed buffer (see scratch.ts); the static parts
+  // are zeroed here, the rest is written before it is read.
+  const buffer = scratchFloat64("plan", 2 * n * n + 5 * n);
   const slice = (start: number, length: number): Float64Array => buffer.subarray(start, start + length);
   const aStatic = slice(0, n * n);
   const a = slice(n * n, n * n);
@@ -139,6 +141,8 @@ export function compilePlan(circuit: Circuit): CompileResult {
   const x = slice(2 * n * n + 2 * n, n);
   const xNew = slice(2 * n * n + 3 * n, n);
   const xSpare = slice(2 * n * n + 4 * n, n);
+  aStatic.fill(0);
+  bSource.fill(0);
   const staticTarget: StampTarget = { a: aStatic, b: bSource, n };
   for (const d of devices) {
     d.stampStatic?.(staticTarget);
@@ -172,14 +176,15 @@ export function compilePlan(circuit: Circuit): CompileResult {
 
 function stampPattern(n: number, aStatic: Float64Array, isNodeRow: Uint8Array, devices: readonly DeviceInstance[]): Int32Array {
   const nn = n * n;
-  const mark = new Uint8Array(nn);
+  const mark = scratchUint8("pattern-mark", nn);
+  mark.fill(0);
   for (let i = 0; i < n; i++) if (isNodeRow[i]) mark[i * n + i] = 1;
   for (const d of devices) {
     const idx = d.stampIndices;
     if (!idx) continue;
     for (const r of idx) if (r >= 0) for (const c of idx) if (c >= 0) mark[r * n + c] = 1;
   }
-  const found = new Int32Array(nn);
+  const found = scratchInt32("pattern", nn);
   let count = 0;
   for (let i = 0; i < nn; i++) if (mark[i] || aStatic[i] !== 0) found[count++] = i;
   return found.subarray(0, count);
