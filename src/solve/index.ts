@@ -69,7 +69,7 @@ function solve(circuit: Circuit, options: SolveOptions): SolveResult {
     if (ok) {
       const op = readOperatingPoint(plan, { iterations: total.iterations, residual: rec.residual, aid });
       if ("bad" in op) return failure(`the solve produced a non-finite value at ${op.bad}`, [], [], aid, total.iterations, rec.residual);
-      return op;
+      return implausible(circuit, op) ?? op;
     }
   }
   return nonConvergence(plan, rec, lastStatus, singular, total.iterations);
@@ -84,6 +84,35 @@ function failure(
   residual: number,
 ): SolveFailure {
   return { ok: false, reason, parts, nodes, stats: { iterations, residual, aid } };
+}
+
+/**
+ * No board-level circuit this tool reviews has a node beyond this (V). A converged point past it
+ * means a current source is pushing its current through nothing but the 1e-12 S junction and
+ * channel leakage of the models — a reverse-biased junction or a transistor in cutoff — where the
+ * real part would break down. Reporting that point as right would be a wrong answer.
+ */
+const PLAUSIBLE_VOLTAGE = 100e3;
+/** Sources themselves may set large voltages; a node may sit this many times beyond the largest. */
+const SOURCE_VOLTAGE_FACTOR = 10;
+
+function implausible(circuit: Circuit, op: SolveResult & { ok: true }): SolveFailure | null {
+  let largestSource = 0;
+  for (const c of circuit.components) if (c.kind === "voltage-source") largestSource = Math.max(largestSource, Math.abs(c.dc.nominal));
+  const bound = Math.max(PLAUSIBLE_VOLTAGE, SOURCE_VOLTAGE_FACTOR * largestSource);
+  const far = Object.entries(op.nodes).filter(([, v]) => Math.abs(v) > bound).map(([n]) => n).sort();
+  if (far.length === 0) return null;
+  const currentSources = circuit.components.filter((c) => c.kind === "current-source" || c.kind === "cccs" || c.kind === "vccs").map((c) => c.id);
+  const worst = far.reduce((a, b) => (Math.abs(op.nodes[b]!) > Math.abs(op.nodes[a]!) ? b : a));
+  const volts = op.nodes[worst]!;
+  return failure(
+    `no physical operating point: node \`${worst}\` would sit at ${volts.toExponential(2)} V, because ${currentSources.length ? `a current source (${currentSources.join(", ")})` : "a source"} forces current into a path that cannot carry it (a reverse-biased junction or a transistor in cutoff); give that current a path, or check the source's direction`,
+    currentSources,
+    far,
+    op.stats.aid,
+    op.stats.iterations,
+    op.stats.residual,
+  );
 }
 
 /** Names the unknowns where the solve struggled most and the parts attached to them. */
