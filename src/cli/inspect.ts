@@ -6,6 +6,9 @@ import type { Circuit } from "../circuit/types.js";
 import { solveOperatingPoint } from "../solve/index.js";
 import { renderOperatingPoint } from "../solve/table.js";
 import type { OperatingPoint } from "../solve/types.js";
+import { analyseSmallSignal, defaultSweepRange, sweepGain, type SweepOptions } from "../smallsignal/index.js";
+import { renderSmallSignal, renderSweep, sweepCsv } from "../smallsignal/table.js";
+import { writeFileSync } from "node:fs";
 import { formatInputError } from "./check.js";
 import { EXIT_CLEAN, EXIT_INPUT, type CliIo } from "./io.js";
 import type { CommandSpec } from "./main.js";
@@ -14,7 +17,17 @@ import type { CommandSpec } from "./main.js";
 export type InspectSection = (circuit: Circuit, op: OperatingPoint) => string;
 
 /** Printed in order after the header; append to add a section. */
-export const INSPECT_SECTIONS: InspectSection[] = [(_c, op) => renderOperatingPoint(op)];
+export const INSPECT_SECTIONS: InspectSection[] = [
+  (_c, op) => renderOperatingPoint(op),
+  (c, op) => renderSmallSignal(c, op, analyseSmallSignal(c, op)),
+];
+
+/** A sweep range from the flags, else the default around the spec band. */
+function sweepRange(circuit: Circuit, args: Record<string, unknown>): SweepOptions {
+  const base = defaultSweepRange(circuit);
+  const num = (v: unknown): number | undefined => (typeof v === "number" && Number.isFinite(v) ? v : undefined);
+  return { ...base, start: num(args.from) ?? base.start, stop: num(args.to) ?? base.stop, points: num(args.points) ?? base.points };
+}
 
 /** Exit code when the circuit loads but has no DC operating point (an input problem to fix). */
 export const EXIT_UNSOLVABLE = EXIT_INPUT;
@@ -26,7 +39,13 @@ export const inspectCommand: CommandSpec = {
     y
       .positional("file", { type: "string", describe: "Circuit file (.yaml, .yml or .json)" })
       .example("$0 inspect boards/tide-gauge/front-end.yaml", "Print node voltages and transistor bias of one circuit")
-      .example("$0 inspect wind-vane.json | less -S", "Page through a wide table"),
+      .option("sweep", { type: "string", describe: "Also print the frequency response of GAIN (every gain when no name is given)" })
+      .option("from", { type: "number", describe: "Sweep start frequency in Hz (default: two decades below band.low)" })
+      .option("to", { type: "number", describe: "Sweep stop frequency in Hz (default: two decades above band.high)" })
+      .option("points", { type: "number", describe: "Number of log-spaced sweep points" })
+      .option("csv", { type: "string", describe: "Write the sweep of one gain as CSV to this path" })
+      .example("$0 inspect wind-vane.json | less -S", "Page through a wide table")
+      .example("$0 inspect preamp.yaml --sweep preamp --csv preamp.csv", "Frequency response of gain `preamp`, also as CSV"),
   handler: async (args, io: CliIo) => {
     const file = String(args.file);
     const abs = resolve(io.cwd, file);
@@ -46,6 +65,26 @@ export const inspectCommand: CommandSpec = {
       return EXIT_UNSOLVABLE;
     }
     io.stdout(header + INSPECT_SECTIONS.map((s) => s(circuit, result)).join("\n"));
+    if (args.sweep === undefined && args.csv === undefined) return EXIT_CLEAN;
+    const asked = typeof args.sweep === "string" && args.sweep !== "" ? [args.sweep] : circuit.specs.gains.map((g) => g.name);
+    if (asked.length === 0) {
+      io.stderr(`${shown}: error: --sweep needs a gain, and specs.gains is empty — add a gain spec to the circuit file\n`);
+      return EXIT_INPUT;
+    }
+    if (typeof args.csv === "string" && asked.length > 1) {
+      io.stderr(`opgate: --csv writes one gain; name it: --sweep ${asked[0]} (gains: ${asked.join(", ")})\n`);
+      return EXIT_INPUT;
+    }
+    const range = sweepRange(circuit, args);
+    for (const name of asked) {
+      const sweep = sweepGain(circuit, result, name, range);
+      if (sweep.error) {
+        io.stderr(`${shown}: error: cannot sweep gain \`${name}\`: ${sweep.error}\n`);
+        return EXIT_INPUT;
+      }
+      io.stdout(`\n${renderSweep(sweep)}`);
+      if (typeof args.csv === "string") writeFileSync(resolve(io.cwd, args.csv), sweepCsv(sweep));
+    }
     return EXIT_CLEAN;
   },
 };
