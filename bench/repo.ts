@@ -35,7 +35,7 @@ function lcg(seed: number): () => number {
 function exampleTexts(): { name: string; text: string }[] {
   const dir = join(PACKAGE_ROOT, "examples");
   return readdirSync(dir)
-    .filter((f) => f.endsWith(".yaml"))
+    .filter((f) => f.endsWith(".yaml") && !f.startsWith("opgate.config."))
     .sort()
     .map((f) => ({ name: f.replace(/\.yaml$/, ""), text: readFileSync(join(dir, f), "utf8") }));
 }

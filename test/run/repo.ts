@@ -10,7 +10,7 @@ export const EXAMPLES = join(dirname(fileURLToPath(import.meta.url)), "..", ".."
 
 export function exampleFiles(): string[] {
   return readdirSync(EXAMPLES)
-    .filter((f) => f.endsWith(".yaml"))
+    .filter((f) => f.endsWith(".yaml") && !f.startsWith("opgate.config."))
     .sort();
 }
 
