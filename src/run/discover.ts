@@ -26,11 +26,15 @@ function under(abs: string, dir: string): string | null {
 
 /**
  * The path a results entry shows: relative to the results root (the config's folder), or to the
- * working directory for a file outside it (a config kept in a subfolder), never with `../`
- * unless the file is outside both.
+ * working directory when the config sits below it or the file is outside the root; `../` only
+ * for a file outside both.
  */
 export function displayPath(abs: string, root: string, cwd: string = root): string {
-  return under(abs, root) ?? under(abs, cwd) ?? relative(cwd, abs).split(sep).join("/");
+  // A config named with --config inside a subfolder must not make paths relative to that
+  // subfolder: results paths are repository paths. So the root counts only when it is the
+  // working directory or above it (where a config found by walking up always is).
+  const base = root === cwd || under(cwd, root) !== null ? root : cwd;
+  return under(abs, base) ?? under(abs, cwd) ?? relative(cwd, abs).split(sep).join("/");
 }
 
 /**

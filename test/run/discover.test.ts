@@ -26,6 +26,8 @@ describe("discoverCircuitFiles", () => {
 
   it("shows files outside a config's folder relative to the working directory", () => {
     expect(displayPath(join(dir, "boards", "b.yaml"), join(dir, "policy"), dir)).toBe("boards/b.yaml");
-    expect(displayPath(join(dir, "policy", "x.yaml"), join(dir, "policy"), dir)).toBe("x.yaml");
+    expect(displayPath(join(dir, "policy", "x.yaml"), join(dir, "policy"), dir)).toBe("policy/x.yaml");
+    // A config found by walking up (root above the working directory) keeps paths repository-relative.
+    expect(displayPath(join(dir, "boards", "sub", "c.yml"), dir, join(dir, "boards"))).toBe("boards/sub/c.yml");
   });
 });
