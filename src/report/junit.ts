@@ -1,7 +1,8 @@
 // JUnit XML for CI test-report viewers: a suite per circuit file, a case per rule × subject.
 // Severity mapping (faithful to the gate): a finding at or above failOn is a <failure> (type =
 // its severity); below failOn it is a passing case whose system-out carries the warning or note;
-// input and internal findings (the circuit could not be checked) are <error>s. Checks that
+// input and internal findings, and the solve finding of a circuit with no operating point (the
+// circuit could not be checked), are <error>s. Checks that
 // passed are passing cases. A report never has zero cases.
 import junitReportBuilder, { type Builder } from "junit-report-builder";
 import { ERROR_RULES, reaches } from "./build.js";
@@ -50,7 +51,9 @@ export function renderJunit(doc: ResultsDocument): string {
     for (const f of c.findings) {
       const tc = suite.testCase().className(classname).name(unique(`${f.rule}: ${f.subject}`)).file(c.file);
       const text = findingText(c, f);
-      if (ERROR_RULES.has(f.rule)) tc.error(text, f.rule, cdataSafe(f.hint ?? text));
+      // "Could not run": the file did not load, the check crashed, or there is no operating point.
+      const couldNotRun = ERROR_RULES.has(f.rule) || (f.rule === "solve" && c.status === "error");
+      if (couldNotRun) tc.error(text, f.rule, cdataSafe(f.hint ?? text));
       else if (reaches(f.severity, failOn)) {
         tc.failure(text, f.severity);
         if (f.hint) tc.stacktrace(cdataSafe(`How to fix: ${f.hint}`));

@@ -3,7 +3,7 @@
 import { describe, expect, it } from "vitest";
 import { buildDocument } from "../../src/report/build.js";
 import { renderJunit } from "../../src/report/junit.js";
-import { fixtureDocument, OPTIONS, PASSING } from "./fixtures/documents.js";
+import { FAILING, fixtureDocument, OPTIONS, PASSING } from "./fixtures/documents.js";
 import { expectGolden } from "./golden.js";
 import { descendants, parseXml } from "./xml.js";
 
@@ -57,6 +57,19 @@ describe("renderJunit", () => {
   it("makes warnings failures when the gate fails on warnings", () => {
     const strict = parseXml(renderJunit(buildDocument([...fixtureDocument().circuits], { ...OPTIONS, failOn: "warning" })));
     expect(descendants(strict, "failure").map((f) => f.attributes.type)).toEqual(["warning", "warning", "warning", "error"]);
+  });
+
+  it("reports a circuit without an operating point as an error", () => {
+    const unsolved = {
+      ...PASSING,
+      status: "error" as const,
+      operatingPoint: null,
+      passed: [],
+      findings: [{ ...FAILING.findings[0]!, rule: "solve", subject: PASSING.name!, message: "no operating point: Newton did not converge", file: PASSING.file }],
+    };
+    const root = parseXml(renderJunit(buildDocument([unsolved], OPTIONS)));
+    expect(descendants(root, "error").map((e) => e.attributes.type)).toEqual(["solve"]);
+    expect(descendants(root, "failure")).toHaveLength(0);
   });
 
   it("never writes a report without cases", () => {
