@@ -13,7 +13,7 @@ const [plugin] = await loadPlugins(config);
 const rule = plugin!.rules[0]!;
 
 it("is the one rule of the example plugin", () => {
-  expect(plugin!.shown).toBe("divider-current.ts");
+  expect(plugin!.shown).toBe("team-rules/divider-current.ts");
   expect(rule.id).toBe("tidewater/divider-current");
 });
 
