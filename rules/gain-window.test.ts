@@ -18,6 +18,10 @@ ruleTester(gainWindow).run([
   { name: "boundary: −11.0001 is below the window", circuit: windowed, analyses: judged(-11.0001), expect: [{ subject: "stage", messageIncludes: "below" }] },
   { name: "boundary: −10.9999 is inside", circuit: windowed, analyses: judged(-10.9999), expect: [], passed: ["stage"] },
   { name: "boundary: −8.9999 is above the window", circuit: windowed, analyses: judged(-8.9999), expect: [{ subject: "stage", messageIncludes: "above" }] },
+  // The advice goes by magnitude: for an inverting window, "above" means too little gain.
+  { name: "inverting window, −8.9 V/V is too little gain", circuit: windowed, analyses: judged(-8.9), expect: [{ subject: "stage", messageIncludes: "(too little gain)" }] },
+  { name: "inverting window, −11.5 V/V is too much gain", circuit: windowed, analyses: judged(-11.5), expect: [{ subject: "stage", messageIncludes: "(too much gain)" }] },
+  { name: "inverting window, +10 V/V has the wrong sign", circuit: windowed, analyses: judged(10), expect: [{ subject: "stage", messageIncludes: "(the sign is wrong)" }] },
   {
     name: "a gain the small-signal stage could not compute is a finding with its reason",
     circuit: windowed,
@@ -25,6 +29,11 @@ ruleTester(gainWindow).run([
     expect: [{ subject: "stage", messageIncludes: "singular" }],
   },
 ]);
+
+it("tells an inverting stage with too little gain to raise its magnitude", async () => {
+  const r = await runRuleCase(gainWindow, { name: "hint", circuit: windowed, analyses: judged(-5), expect: [] });
+  expect(r.findings[0]!.hint).toMatch(/^raise the gain's magnitude/);
+});
 
 it("judges the gain the textbook formula gives from the solved small-signal parameters", async () => {
   const r = await runRuleCase(gainWindow, { name: "formula", circuit: npnStage({ specs: spec("-3") }), expect: [] });

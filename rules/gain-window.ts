@@ -3,6 +3,18 @@
 import { defineRule } from "../src/review/rule.js";
 import { formatQuantity } from "../src/review/quantities.js";
 
+const RAISE = "raise the gain's magnitude (less degeneration, larger load) or correct the target";
+const REDUCE = "reduce the gain's magnitude (more degeneration, smaller load) or correct the target";
+
+/** Advice by magnitude, so that an inverting stage (negative window) gets the right direction. */
+function advice(g: number, min: number, max: number): { why: string; hint: string } {
+  if ((min > 0 && g <= 0) || (max < 0 && g >= 0)) {
+    return { why: "the sign is wrong", hint: "check which node is the output and whether the stage inverts, or the sign of the target" };
+  }
+  const low = Math.min(Math.abs(min), Math.abs(max));
+  return Math.abs(g) < low ? { why: "too little gain", hint: RAISE } : { why: "too much gain", hint: REDUCE };
+}
+
 export default defineRule({
   id: "gain-window",
   description: "Checks that each specified gain lies within its tolerance window of the target",
@@ -29,10 +41,10 @@ feedback network), or correct the target if the spec was wrong.`,
       const { min, max } = spec.window;
       const where = spec.frequency !== undefined ? `at ${formatQuantity(spec.frequency, "Hz")}` : "at midband";
       const window = `[${formatQuantity(min, "V/V")}, ${formatQuantity(max, "V/V")}]`;
-      if (g > max) {
-        report.fail({ subject: spec.name, message: `gain \`${spec.name}\` is ${formatQuantity(g, "V/V")} ${where}, above its window ${window}`, measured: g, limit: max, unit: "V/V", bound: "max", hint: "reduce the gain (more degeneration, smaller load) or correct the target" });
-      } else if (g < min) {
-        report.fail({ subject: spec.name, message: `gain \`${spec.name}\` is ${formatQuantity(g, "V/V")} ${where}, below its window ${window}`, measured: g, limit: min, unit: "V/V", bound: "min", hint: "raise the gain (less degeneration, larger load) or correct the target" });
+      if (g > max || g < min) {
+        const { why, hint } = advice(g, min, max);
+        const side = g > max ? "above" : "below";
+        report.fail({ subject: spec.name, message: `gain \`${spec.name}\` is ${formatQuantity(g, "V/V")} ${where}, ${side} its window ${window} (${why})`, measured: g, limit: g > max ? max : min, unit: "V/V", bound: g > max ? "max" : "min", hint });
       } else {
         // Report the nearer edge so that the margin shows how close the gain came.
         const toMax = (max - g) / (max === 0 ? 1 : Math.abs(max));
