@@ -1,5 +1,6 @@
 // Number and text formatting shared by the human-facing reporters (markdown, console, JUnit, SARIF):
 // SI prefixes with units ("6.8 mA"), margins as percentages, one-line finding details.
+import { SI_DISPLAY_PREFIXES, siPrefixIndex } from "../units/si-format.js";
 import type { Finding, PassedCheck } from "./document.js";
 
 /** Three significant digits: enough to compare against a spec, short enough for a table cell. */
@@ -7,19 +8,6 @@ const SIGNIFICANT_DIGITS = 3;
 
 /** Units that take SI prefixes; anything else (V/V, dB, %, °C) is printed as a plain number. */
 const PREFIXED_UNITS = new Set(["A", "V", "W", "Ω", "ohm", "F", "H", "Hz", "s", "S"]);
-
-const PREFIXES: readonly (readonly [number, string])[] = [
-  [1e12, "T"],
-  [1e9, "G"],
-  [1e6, "M"],
-  [1e3, "k"],
-  [1, ""],
-  [1e-3, "m"],
-  [1e-6, "µ"],
-  [1e-9, "n"],
-  [1e-12, "p"],
-  [1e-15, "f"],
-];
 
 /** A number to SIGNIFICANT_DIGITS significant digits, without trailing zeros or exponent noise. */
 export function formatNumber(value: number): string {
@@ -45,23 +33,18 @@ export function formatQuantity(value: number | null, unit: string | null): strin
   if (!PREFIXED_UNITS.has(u) || !Number.isFinite(value) || value === 0) {
     return u ? `${formatNumber(value)} ${u}` : formatNumber(value);
   }
-  const abs = Math.abs(value);
-  // Pick the largest prefix not above the value; rounding may carry to 1000 (999.96 → "1000"),
-  // in which case the next prefix up reads better.
-  for (let i = 0; i < PREFIXES.length; i++) {
-    const [scale, prefix] = PREFIXES[i]!;
-    if (abs >= scale * (1 - 5e-4) || i === PREFIXES.length - 1) {
-      let scaled = Number((value / scale).toPrecision(SIGNIFICANT_DIGITS));
-      let p = prefix;
-      if (Math.abs(scaled) >= 1000 && i > 0) {
-        const [upScale, upPrefix] = PREFIXES[i - 1]!;
-        scaled = Number((value / upScale).toPrecision(SIGNIFICANT_DIGITS));
-        p = upPrefix;
-      }
-      return `${trimZeros(String(scaled))} ${p}${u}`;
-    }
+  // The largest prefix not above the value; should rounding still carry to 1000 (999.96 → "1000"),
+  // the next prefix up reads better.
+  const i = siPrefixIndex(Math.abs(value));
+  const [scale, prefix] = SI_DISPLAY_PREFIXES[i]!;
+  let scaled = Number((value / scale).toPrecision(SIGNIFICANT_DIGITS));
+  let p = prefix;
+  if (Math.abs(scaled) >= 1000 && i > 0) {
+    const [upScale, upPrefix] = SI_DISPLAY_PREFIXES[i - 1]!;
+    scaled = Number((value / upScale).toPrecision(SIGNIFICANT_DIGITS));
+    p = upPrefix;
   }
-  return `${formatNumber(value)} ${u}`;
+  return `${trimZeros(String(scaled))} ${p}${u}`;
 }
 
 /** Signed relative margin as a percentage: -0.133 → "-13.3%"; null → "—". */

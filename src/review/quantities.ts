@@ -1,18 +1,6 @@
 // Small helpers rules share: numbers for people (SI prefixes), temperatures, intended regions.
 import type { Circuit, ComponentKind } from "../circuit/types.js";
-
-const PREFIXES: readonly [number, string][] = [
-  [1e12, "T"],
-  [1e9, "G"],
-  [1e6, "M"],
-  [1e3, "k"],
-  [1, ""],
-  [1e-3, "m"],
-  [1e-6, "µ"],
-  [1e-9, "n"],
-  [1e-12, "p"],
-  [1e-15, "f"],
-];
+import { siPrefix, type SiPrefix } from "../units/si-format.js";
 
 /** Kelvin of 0 °C (SI definition). */
 export const ZERO_CELSIUS_K = 273.15;
@@ -22,7 +10,7 @@ export function formatQuantity(value: number, unit: string): string {
   if (!Number.isFinite(value)) return `${value} ${unit}`.trim();
   if (unit === "dB" || unit === "%" || unit === "V/V" || unit === "°C") return `${trim(value.toPrecision(3))} ${unit}`;
   const mag = Math.abs(value);
-  const [scale, prefix] = mag === 0 ? [1, ""] : (PREFIXES.find(([s]) => mag >= s * 0.9995) ?? [1e-15, "f"]);
+  const [scale, prefix]: SiPrefix = mag === 0 ? [1, ""] : siPrefix(mag);
   return `${trim((value / scale).toPrecision(3))} ${prefix}${unit}`.trim();
 }
 

@@ -4,33 +4,15 @@
 
 import type { Circuit } from "../circuit/types.js";
 import type { OperatingPoint } from "../solve/types.js";
+import { formatSiPrefixed } from "../units/si-format.js";
 import type { FrequencyPoint, SmallSignalResult, SweepResult } from "./types.js";
-
-const PREFIXES: readonly [number, string][] = [
-  [1e12, "T"],
-  [1e9, "G"],
-  [1e6, "M"],
-  [1e3, "k"],
-  [1, ""],
-  [1e-3, "m"],
-  [1e-6, "µ"],
-  [1e-9, "n"],
-  [1e-12, "p"],
-  [1e-15, "f"],
-];
 
 /** Significant digits shown in tables: enough to compare with a hand calculation. */
 const DISPLAY_DIGITS = 4;
 
 /** 4.7e3, "Ω" → "4.7 kΩ"; Infinity → "∞ Ω"; undefined → "—". */
 export function formatSi(value: number | undefined, unit: string): string {
-  if (value === undefined || Number.isNaN(value)) return "—";
-  if (!Number.isFinite(value)) return `${value < 0 ? "−" : ""}∞ ${unit}`.trim();
-  if (value === 0) return `0 ${unit}`.trim();
-  const a = Math.abs(value);
-  const found = PREFIXES.find(([scale]) => a >= scale * 0.9995);
-  const [scale, prefix] = found ?? PREFIXES[PREFIXES.length - 1]!;
-  return `${Number((value / scale).toPrecision(DISPLAY_DIGITS))} ${prefix}${unit}`.trim();
+  return formatSiPrefixed(value, unit, { significant: DISPLAY_DIGITS });
 }
 
 function formatNumber(value: number): string {

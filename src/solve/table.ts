@@ -1,40 +1,11 @@
 // A readable text rendering of an operating point: node voltages, sources and one table per
 // device family, SI-prefixed values with units in aligned columns (for `opgate inspect`).
+import { formatSiPrefixed } from "../units/si-format.js";
 import type { OperatingPoint, SolveResult } from "./types.js";
-
-const PREFIXES: readonly [number, string][] = [
-  [1e12, "T"],
-  [1e9, "G"],
-  [1e6, "M"],
-  [1e3, "k"],
-  [1, ""],
-  [1e-3, "m"],
-  [1e-6, "µ"],
-  [1e-9, "n"],
-  [1e-12, "p"],
-  [1e-15, "f"],
-];
 
 /** Formats an SI value with a prefix and three significant digits: 0.00123 A → "1.23 mA". */
 export function formatSi(value: number, unit: string): string {
-  if (Number.isNaN(value)) return "—";
-  if (!Number.isFinite(value)) return `${value > 0 ? "" : "−"}∞ ${unit}`.trim();
-  if (value === 0) return `0 ${unit}`.trim();
-  const mag = Math.abs(value);
-  // Below a femto-unit the value is numerical noise or leakage; show it plainly.
-  if (mag < 1e-15) return `${value.toExponential(1)} ${unit}`.trim();
-  let [scale, prefix] = PREFIXES[PREFIXES.length - 1]!;
-  for (const [s, p] of PREFIXES) {
-    if (mag >= s * 0.9995) {
-      scale = s;
-      prefix = p;
-      break;
-    }
-  }
-  if (mag >= 1e15) return `${value.toExponential(2)} ${unit}`.trim();
-  const scaled = value / scale;
-  const digits = Math.abs(scaled) >= 99.95 ? 0 : Math.abs(scaled) >= 9.995 ? 1 : 2;
-  return `${scaled.toFixed(digits).replace("-", "−")} ${prefix}${unit}`.trim();
+  return formatSiPrefixed(value, unit, "by-size");
 }
 
 /** Left-aligns the first column and right-aligns the rest. */
