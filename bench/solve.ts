@@ -8,6 +8,8 @@ import { lup, lusolve } from "mathjs";
 import type { Circuit, Component, Model, SourcePos } from "../src/circuit/types.js";
 import { solveOperatingPoint } from "../src/solve/index.js";
 import type { LinearSolverFactory } from "../src/solve/linear-solver.js";
+// Seeded (mulberry32) so every run times the same circuits.
+import { seededRandom } from "../src/variation/random.js";
 
 /** Node counts of the generated circuits (issue 3). */
 export const SIZES = [10, 30, 100, 300] as const;
@@ -25,25 +27,13 @@ const POS: SourcePos = { file: "bench.yaml", line: 1, column: 1 };
 const exact = (v: number) => ({ nominal: v, min: v, max: v });
 const spread = (v: number) => ({ min: v, typ: v, max: v });
 
-/** Seeded PRNG (mulberry32) so every run times the same circuits. */
-function prng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
 /**
  * A chain of biased stages (Tidewater's multi-stage sensor front ends): each stage is a
  * divider-biased common-emitter BJT or common-source NMOS with collector/drain and degeneration
  * resistors, DC-coupled to the next stage through a resistor. 3 nodes per stage plus the rail.
  */
 export function chainCircuit(nodes: number, seed = 1): Circuit {
-  const rnd = prng(seed);
+  const rnd = seededRandom(seed);
   const vary = (v: number) => v * (0.8 + 0.4 * rnd());
   const parts: Component[] = [];
   const r = (id: string, a: string, b: string, v: number) => parts.push({ id, pos: POS, kind: "resistor", pins: { a, b }, value: exact(v) });

@@ -1,19 +1,11 @@
 // A seeded generator of random bias circuits (chains of BJT and MOS stages with resistor
 // bias, diodes, mirrors and pairs) and their polarity mirror image, for property tests.
 import type { Circuit } from "../../src/circuit/types.js";
+import { seededRandom } from "../../src/variation/random.js";
 import { circuit } from "./build.js";
 
-/** mulberry32: a tiny, well-mixed 32-bit PRNG, so every run sees the same circuits. */
-export function prng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** The project's seeded generator (mulberry32), so every run sees the same circuits. */
+export const prng = seededRandom;
 
 /**
  * Random bias circuit; with `mirrored`, the same circuit with every device and source flipped.
