@@ -1,5 +1,6 @@
 // Topology checks on a resolved circuit: ids, model references, DC paths to ground, loops of
 // voltage sources and DC shorts, nodes fed only by current sources, and spec references.
+import { shortestPath } from "./graph-path.js";
 import { didYouMean } from "./suggest.js";
 import type { Circuit, Component, InputError, SourcePos } from "./types.js";
 
@@ -65,32 +66,6 @@ function voltageBranch(c: Component): [string, string] | undefined {
   if (c.kind === "voltage-source" || c.kind === "vcvs" || c.kind === "ccvs") return [c.pins.plus, c.pins.minus];
   if (c.kind === "inductor" && c.seriesResistance === 0) return [c.pins.a, c.pins.b];
   return undefined;
-}
-
-/** Breadth-first path of voltage branches between two nodes, as component ids. */
-function branchPath(edges: readonly { id: string; a: string; b: string }[], from: string, to: string): string[] {
-  const prev = new Map<string, { node: string; id: string }>();
-  const queue = [from];
-  const seen = new Set([from]);
-  while (queue.length) {
-    const n = queue.shift()!;
-    if (n === to) break;
-    for (const e of edges) {
-      const other = e.a === n ? e.b : e.b === n ? e.a : undefined;
-      if (other === undefined || seen.has(other)) continue;
-      seen.add(other);
-      prev.set(other, { node: n, id: e.id });
-      queue.push(other);
-    }
-  }
-  const ids: string[] = [];
-  for (let n = to; n !== from; ) {
-    const p = prev.get(n);
-    if (!p) break;
-    ids.unshift(p.id);
-    n = p.node;
-  }
-  return ids;
 }
 
 export function checkTopology(circuit: Circuit): TopologyResult {
@@ -200,7 +175,7 @@ export function checkTopology(circuit: Circuit): TopologyResult {
       continue;
     }
     if (!vg.join(a, b)) {
-      const found = [...branchPath(edges, b, a), c.id];
+      const found = [...shortestPath(edges, (e) => [e.a, e.b], b, a).map((e) => e.id), c.id];
       // Start the cycle at the part that comes first in the file, so the message reads naturally.
       const order = circuit.components.map((x) => x.id);
       const first = found.reduce((best, id, i) => (order.indexOf(id) < order.indexOf(found[best]!) ? i : best), 0);

@@ -2,6 +2,7 @@
 // ground, and loops of branches that each fix a voltage (sources, zero-resistance inductors,
 // voltage-output controlled sources). Run on the compiled plan before Newton, and used to
 // explain a singular factorisation.
+import { shortestPath } from "../circuit/graph-path.js";
 import type { DeviceInstance, Terminal } from "../devices/device.js";
 import type { Plan } from "./plan.js";
 
@@ -78,7 +79,7 @@ export function findVoltageLoop(plan: Plan): Diagnosis | undefined {
       const p = tp.node;
       const q = tq.node;
       if (p === q || !uf.union(slotOf(plan, tp), slotOf(plan, tq))) {
-        const path = p === q ? [] : pathBetween(edges, p, q);
+        const path = p === q ? [] : shortestPath(edges, (e) => [e.p, e.q], p, q);
         const members = [...path.map((e) => e.d), d];
         const ids = members.map((m) => m.id);
         const nodes = [...new Set(members.flatMap((m) => m.voltageLinks.flat().map((t) => t.node)))].sort();
@@ -94,37 +95,6 @@ export function findVoltageLoop(plan: Plan): Diagnosis | undefined {
     }
   }
   return undefined;
-}
-
-/** Path of edges between two nodes in a forest (breadth-first). */
-function pathBetween(edges: readonly { d: DeviceInstance; p: string; q: string }[], from: string, to: string) {
-  type Edge = (typeof edges)[number];
-  const adj = new Map<string, { next: string; e: Edge }[]>();
-  for (const e of edges) {
-    (adj.get(e.p) ?? adj.set(e.p, []).get(e.p)!).push({ next: e.q, e });
-    (adj.get(e.q) ?? adj.set(e.q, []).get(e.q)!).push({ next: e.p, e });
-  }
-  const back = new Map<string, { prev: string; e: Edge }>();
-  const queue = [from];
-  const seen = new Set([from]);
-  while (queue.length) {
-    const cur = queue.shift()!;
-    if (cur === to) break;
-    for (const { next, e } of adj.get(cur) ?? []) {
-      if (seen.has(next)) continue;
-      seen.add(next);
-      back.set(next, { prev: cur, e });
-      queue.push(next);
-    }
-  }
-  const path: Edge[] = [];
-  for (let cur = to; cur !== from; ) {
-    const step = back.get(cur);
-    if (!step) break;
-    path.unshift(step.e);
-    cur = step.prev;
-  }
-  return path;
 }
 
 export function diagnoseTopology(plan: Plan): Diagnosis | undefined {
