@@ -18,24 +18,22 @@ export function resolveParameters(ctx: ResolveContext, raw: Record<string, unkno
     if (failed.has(name)) return undefined;
     const path = ["parameters", name];
     const src = raw[name];
+    // A value or expression that does not parse or evaluate: report it and mark the parameter failed.
+    const reject = (r: { readonly message: string; readonly hint?: string }): undefined => {
+      ctx.error(path, `parameter \`${name}\`: ${r.message}`, r.hint);
+      failed.add(name);
+      return undefined;
+    };
     if (!isExpression(src)) {
       const r = parseValue(src, "any");
-      if (!r.ok) {
-        ctx.error(path, `parameter \`${name}\`: ${r.message}`, r.hint);
-        failed.add(name);
-        return undefined;
-      }
+      if (!r.ok) return reject(r);
       values.set(name, r.value);
       return r.value;
     }
     let c = checked.get(name);
     if (!c) {
       const r = checkExpression(src);
-      if (!r.ok) {
-        ctx.error(path, `parameter \`${name}\`: ${r.message}`, r.hint);
-        failed.add(name);
-        return undefined;
-      }
+      if (!r.ok) return reject(r);
       c = r;
       checked.set(name, c);
     }
@@ -65,11 +63,7 @@ export function resolveParameters(ctx: ResolveContext, raw: Record<string, unkno
       scope.set(dep, v);
     }
     const r = evaluateChecked(c, scope, src.trim().replace(/^=/, "").trim());
-    if (!r.ok) {
-      ctx.error(path, `parameter \`${name}\`: ${r.message}`, r.hint);
-      failed.add(name);
-      return undefined;
-    }
+    if (!r.ok) return reject(r);
     values.set(name, r.value);
     return r.value;
   };
