@@ -25,6 +25,14 @@ export const PIVOT_RELATIVE_THRESHOLD = 1e-14;
  */
 export const PIVOT_DIAGONAL_PREFERENCE = 0.01;
 
+/**
+ * A refactorisation keeps the previous pivot of a column while it is at least this fraction of
+ * the column's largest candidate: the bound threshold pivoting guarantees (multipliers ≤ 100),
+ * so reusing the structure never makes a step less accurate than a fresh factorisation may be.
+ * Only below it does the factorisation pick pivots afresh (and the structure is rebuilt).
+ */
+export const PIVOT_KEEP_THRESHOLD = PIVOT_DIAGONAL_PREFERENCE;
+
 export interface LuWorkspace {
   readonly n: number;
   /** Row exchanged with row k at step k (exchanges apply to columns k… only, as in LINPACK). */
@@ -61,7 +69,13 @@ export function createLuWorkspace(n: number, borrow?: { int32(slot: string, leng
  * the first column (unknown) without a usable pivot.
  */
 export function luFactor(a: Float64Array, ws: LuWorkspace, pattern?: Int32Array): number {
-  const { n, pivots, colScale, lRows, lStart, uCols, uStart } = ws;
+  columnScales(a, ws, pattern);
+  return eliminateDense(a, ws, 0, 0, 0);
+}
+
+/** Largest magnitude originally in each column (the reference of the singularity test). */
+function columnScales(a: Float64Array, ws: LuWorkspace, pattern: Int32Array | undefined): void {
+  const { n, colScale } = ws;
   colScale.fill(0);
   if (pattern) {
     for (let t = 0; t < pattern.length; t++) {
@@ -79,9 +93,15 @@ export function luFactor(a: Float64Array, ws: LuWorkspace, pattern?: Int32Array)
       }
     }
   }
-  let lCount = 0;
-  let uCount = 0;
-  for (let k = 0; k < n; k++) {
+}
+
+/**
+ * Steps k0… of the factorisation, scanning whole columns and rows for non-zeros; lCount and
+ * uCount are the list lengths left by steps before k0 (so a refactorisation can hand over here).
+ */
+function eliminateDense(a: Float64Array, ws: LuWorkspace, k0: number, lCount: number, uCount: number): number {
+  const { n, pivots, colScale, lRows, lStart, uCols, uStart } = ws;
+  for (let k = k0; k < n; k++) {
     const rk = k * n;
     lStart[k] = lCount;
     uStart[k] = uCount;
@@ -133,6 +153,183 @@ export function luFactor(a: Float64Array, ws: LuWorkspace, pattern?: Int32Array)
   lStart[n] = lCount;
   uStart[n] = uCount;
   return -1;
+}
+
+/**
+ * The structure of a factorisation for one pivot sequence and one stamp pattern: which entries
+ * each step can find non-zero. With it a refactorisation visits only those entries instead of
+ * whole rows and columns.
+ */
+export interface LuSymbolic {
+  /** False until built, and again once the numeric pivots leave the sequence it was built for. */
+  valid: boolean;
+  readonly pivots: Int32Array;
+  /** Rows below the diagonal that can be non-zero in column k at step k (ascending): colRows[colStart[k] … colStart[k+1]). */
+  readonly colRows: Int32Array;
+  readonly colStart: Int32Array;
+  /** Columns ≥ k where row k or its pivot row can be non-zero at step k (the entries an exchange moves). */
+  readonly swapCols: Int32Array;
+  readonly swapStart: Int32Array;
+  /** Columns right of the diagonal that can be non-zero in row k after its exchange (ascending). */
+  readonly rowCols: Int32Array;
+  readonly rowStart: Int32Array;
+  /** Every flat index a refactorisation can write (pattern, fill and exchanged entries). */
+  touched: Int32Array;
+}
+
+export function createLuSymbolic(n: number, borrow?: { int32(slot: string, length: number): Int32Array }): LuSymbolic {
+  const size = 4 * n * n + 4 * n + 3;
+  const i32 = borrow ? borrow.int32("lu-symbolic", size) : new Int32Array(size);
+  let at = 0;
+  const take = (length: number): Int32Array => i32.subarray(at, (at += length));
+  return {
+    valid: false,
+    pivots: take(n),
+    colRows: take(n * n),
+    colStart: take(n + 1),
+    swapCols: take(2 * n * n),
+    swapStart: take(n + 1),
+    rowCols: take(n * n),
+    rowStart: take(n + 1),
+    touched: new Int32Array(0),
+  };
+}
+
+/**
+ * Builds `sym` for the pivot sequence `pivots` on the entries `pattern` (flat indices of every
+ * possibly non-zero entry): the factorisation simulated on booleans, fill included. `mark` is
+ * n² bytes of scratch; `touched` receives the written entries (n² Int32 of room).
+ */
+export function buildSymbolic(n: number, pattern: Int32Array, pivots: Int32Array, sym: LuSymbolic, mark: Uint8Array, touched: Int32Array): void {
+  const { colRows, colStart, swapCols, swapStart, rowCols, rowStart } = sym;
+  // Bit 1: can be non-zero now; bit 2: written at some point.
+  mark.fill(0, 0, n * n);
+  for (let t = 0; t < pattern.length; t++) mark[pattern[t]!] = 3;
+  let cc = 0;
+  let sc = 0;
+  let rc = 0;
+  for (let k = 0; k < n; k++) {
+    const rk = k * n;
+    colStart[k] = cc;
+    for (let i = k + 1; i < n; i++) if (mark[i * n + k]! & 1) colRows[cc++] = i;
+    const p = pivots[k]!;
+    sym.pivots[k] = p;
+    swapStart[k] = sc;
+    if (p !== k) {
+      const rp = p * n;
+      for (let j = k; j < n; j++) {
+        const mk = mark[rk + j]!;
+        const mp = mark[rp + j]!;
+        if ((mk | mp) & 1) {
+          swapCols[sc++] = j;
+          mark[rk + j] = (mp & 1) | 2;
+          mark[rp + j] = (mk & 1) | 2;
+        }
+      }
+    }
+    rowStart[k] = rc;
+    for (let j = k + 1; j < n; j++) if (mark[rk + j]! & 1) rowCols[rc++] = j;
+    // Rows eliminated at this step: the column's candidates, with the exchanged row p standing
+    // for row k when k had an entry in this column.
+    const r0 = rowStart[k]!;
+    for (let t = colStart[k]!; t <= cc; t++) {
+      let r: number;
+      if (t < cc) {
+        r = colRows[t]!;
+        if (r === p) continue;
+      } else {
+        if (p === k || !(mark[p * n + k]! & 1)) break;
+        r = p;
+      }
+      const ri = r * n;
+      for (let u = r0; u < rc; u++) mark[ri + rowCols[u]!] = 3;
+    }
+  }
+  colStart[n] = cc;
+  swapStart[n] = sc;
+  rowStart[n] = rc;
+  let count = 0;
+  for (let i = 0; i < n * n; i++) if (mark[i]! & 2) touched[count++] = i;
+  sym.touched = touched.subarray(0, count);
+  sym.valid = true;
+}
+
+/**
+ * Factors `a` in place with the pivots `sym` was built for, visiting only the entries it lists,
+ * as long as each pivot stays acceptable (PIVOT_KEEP_THRESHOLD); at the first step where one
+ * does not, `sym` is marked invalid and the remaining steps pick pivots as luFactor does.
+ * Entries of `a` outside sym.touched must be zero. Column scales must already be in ws (see
+ * factorColumnScales).
+ */
+export function luRefactor(a: Float64Array, ws: LuWorkspace, sym: LuSymbolic): number {
+  const { n, pivots, colScale, lRows, lStart, uCols, uStart } = ws;
+  const { colRows, colStart, swapCols, swapStart, rowCols, rowStart } = sym;
+  let lCount = 0;
+  let uCount = 0;
+  for (let k = 0; k < n; k++) {
+    const rk = k * n;
+    lStart[k] = lCount;
+    uStart[k] = uCount;
+    let p: number;
+    let max = Math.abs(a[rk + k]!);
+    let nrows = 0;
+    const c1 = colStart[k + 1]!;
+    for (let t = colStart[k]!; t < c1; t++) {
+      const i = colRows[t]!;
+      const v = a[i * n + k]!;
+      if (v === 0) continue;
+      lRows[lCount + nrows++] = i;
+      const av = Math.abs(v);
+      if (av > max) max = av;
+    }
+    if (!(max > PIVOT_RELATIVE_THRESHOLD * colScale[k]!) || max === 0) return k;
+    p = sym.pivots[k]!;
+    if (!(Math.abs(a[p * n + k]!) >= PIVOT_KEEP_THRESHOLD * max)) {
+      sym.valid = false;
+      return eliminateDense(a, ws, k, lCount, uCount);
+    }
+    pivots[k] = p;
+    if (p !== k) {
+      const rp = p * n;
+      const s1 = swapStart[k + 1]!;
+      for (let t = swapStart[k]!; t < s1; t++) {
+        const j = swapCols[t]!;
+        const tmp = a[rk + j]!;
+        a[rk + j] = a[rp + j]!;
+        a[rp + j] = tmp;
+      }
+      let w = lCount;
+      for (let t = lCount; t < lCount + nrows; t++) if (lRows[t] !== p) lRows[w++] = lRows[t]!;
+      nrows = w - lCount;
+      if (a[rp + k] !== 0) lRows[lCount + nrows++] = p;
+    }
+    let nnz = 0;
+    const u1 = rowStart[k + 1]!;
+    for (let t = rowStart[k]!; t < u1; t++) {
+      const j = rowCols[t]!;
+      if (a[rk + j] !== 0) uCols[uCount + nnz++] = j;
+    }
+    const inv = 1 / a[rk + k]!;
+    for (let r = lCount; r < lCount + nrows; r++) {
+      const ri = lRows[r]! * n;
+      const l = a[ri + k]! * inv;
+      a[ri + k] = l;
+      for (let t = uCount; t < uCount + nnz; t++) {
+        const j = uCols[t]!;
+        a[ri + j]! -= l * a[rk + j]!;
+      }
+    }
+    lCount += nrows;
+    uCount += nnz;
+  }
+  lStart[n] = lCount;
+  uStart[n] = uCount;
+  return -1;
+}
+
+/** Column scales of `a` over `pattern` into ws, for luRefactor. */
+export function factorColumnScales(a: Float64Array, ws: LuWorkspace, pattern?: Int32Array): void {
+  columnScales(a, ws, pattern);
 }
 
 /** Solves L·U·x = P·b in place on `x` (which holds b on entry), using a factored `a`. */

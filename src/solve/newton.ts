@@ -64,7 +64,7 @@ export function newRecord(): NewtonRecord {
 
 /** Runs Newton from plan.x; on "converged" plan.x is the answer at these settings. */
 export function newton(plan: Plan, solver: LinearSolver, s: NewtonSettings, rec: NewtonRecord): NewtonRecord {
-  const { n, a, b, x, xNew, aStatic, bSource, isNodeRow, nonlinear, target } = plan;
+  const { n, a, b, x, xNew, isNodeRow, nonlinear } = plan;
   const st: IterationState = { init: false, limited: false };
   // A linear network needs no update test: one exact solve is the answer.
   let updateOk = nonlinear.length === 0;
@@ -76,13 +76,7 @@ export function newton(plan: Plan, solver: LinearSolver, s: NewtonSettings, rec:
   rec.worstResidual = -1;
   rec.singularColumn = -1;
   for (let iter = 0; iter < s.maxIterations; iter++) {
-    a.set(aStatic);
-    const scale = s.sourceScale;
-    for (let i = 0; i < n; i++) b[i] = scale * bSource[i]!;
-    if (s.gmin > 0) for (let i = 0; i < n; i++) if (isNodeRow[i]) a[i * n + i]! += s.gmin;
-    st.init = s.init && iter === 0;
-    st.limited = false;
-    for (let d = 0; d < nonlinear.length; d++) nonlinear[d]!.stampNonlinear!(x, target, st);
+    assemble(plan, s, st, s.init && iter === 0);
 
     if (!st.init && !st.limited && updateOk && residualOk(plan, rec)) {
       rec.status = "converged";
@@ -122,12 +116,7 @@ export function newton(plan: Plan, solver: LinearSolver, s: NewtonSettings, rec:
     x.set(xNew);
   }
   // One last look: the final update may have landed on the answer.
-  a.set(aStatic);
-  for (let i = 0; i < n; i++) b[i] = s.sourceScale * bSource[i]!;
-  if (s.gmin > 0) for (let i = 0; i < n; i++) if (isNodeRow[i]) a[i * n + i]! += s.gmin;
-  st.init = false;
-  st.limited = false;
-  for (let d = 0; d < nonlinear.length; d++) nonlinear[d]!.stampNonlinear!(x, target, st);
+  assemble(plan, s, st, false);
   if (!st.limited && updateOk && residualOk(plan, rec)) {
     rec.status = "converged";
     if (s.polish && nonlinear.length > 0 && lastRatio > POLISH_SKIP_RATIO && rec.residualRatio > POLISH_SKIP_RESIDUAL_RATIO) polishStep(plan, solver, s, rec);
@@ -137,14 +126,27 @@ export function newton(plan: Plan, solver: LinearSolver, s: NewtonSettings, rec:
 
 /** Stamps the plan at plan.x (a, b); returns true when a device limited its voltages. */
 function stampAt(plan: Plan, s: NewtonSettings, st: IterationState): boolean {
-  const { n, a, b, x, aStatic, bSource, isNodeRow, nonlinear, target } = plan;
-  a.set(aStatic);
-  for (let i = 0; i < n; i++) b[i] = s.sourceScale * bSource[i]!;
+  assemble(plan, s, st, false);
+  return st.limited;
+}
+
+/**
+ * Builds a and b at plan.x: the static part, the scaled sources, the gmin shunt, then every
+ * nonlinear device. Only the stamp pattern is restored, since nothing writes a outside it
+ * (the linear solver leaves a unchanged).
+ */
+function assemble(plan: Plan, s: NewtonSettings, st: IterationState, init: boolean): void {
+  const { n, a, b, x, aStatic, bSource, isNodeRow, nonlinear, target, pattern } = plan;
+  for (let t = 0; t < pattern.length; t++) {
+    const idx = pattern[t]!;
+    a[idx] = aStatic[idx]!;
+  }
+  const scale = s.sourceScale;
+  for (let i = 0; i < n; i++) b[i] = scale * bSource[i]!;
   if (s.gmin > 0) for (let i = 0; i < n; i++) if (isNodeRow[i]) a[i * n + i]! += s.gmin;
-  st.init = false;
+  st.init = init;
   st.limited = false;
   for (let d = 0; d < nonlinear.length; d++) nonlinear[d]!.stampNonlinear!(x, target, st);
-  return st.limited;
 }
 
 /** One extra Newton step from a converged plan.x (whose stamp is in a, b); see `polish`. */
@@ -175,7 +177,7 @@ function polishStep(plan: Plan, solver: LinearSolver, s: NewtonSettings, rec: Ne
  * sum of device currents leaving each node. Records the largest node-row residual.
  */
 function residualOk(plan: Plan, rec: NewtonRecord): boolean {
-  const { n, a, b, x, isNodeRow } = plan;
+  const { n, a, b, x, isNodeRow, pattern, patternRowStart } = plan;
   let ok = true;
   let maxNode = 0;
   let worst = 0;
@@ -183,10 +185,13 @@ function residualOk(plan: Plan, rec: NewtonRecord): boolean {
     const row = i * n;
     let r = -b[i]!;
     let scale = Math.abs(b[i]!);
-    for (let j = 0; j < n; j++) {
-      const aij = a[row + j]!;
+    // The row's pattern entries in ascending column order, as a full scan would meet them.
+    const end = patternRowStart[i + 1]!;
+    for (let p = patternRowStart[i]!; p < end; p++) {
+      const idx = pattern[p]!;
+      const aij = a[idx]!;
       if (aij === 0) continue;
-      const t = aij * x[j]!;
+      const t = aij * x[idx - row]!;
       r += t;
       const at = Math.abs(t);
       if (at > scale) scale = at;

@@ -43,6 +43,8 @@ export interface Plan {
   readonly xSpare: Float64Array;
   /** Flat indices of every matrix entry the stamps can make non-zero (static, devices, gmin diagonal). */
   readonly pattern: Int32Array;
+  /** Row i's entries of `pattern` are pattern[patternRowStart[i] … patternRowStart[i+1]). */
+  readonly patternRowStart: Int32Array;
   /** 1 for a KCL row, 0 for a branch-equation row. */
   readonly isNodeRow: Uint8Array;
   readonly target: StampTarget;
@@ -151,6 +153,11 @@ export function compilePlan(circuit: Circuit): CompileResult {
   const isNodeRow = new Uint8Array(n);
   for (let i = 0; i < n; i++) isNodeRow[i] = unknowns[i]!.kind === "branch" ? 0 : 1;
   const pattern = stampPattern(n, aStatic, isNodeRow, devices);
+  const patternRowStart = new Int32Array(n + 1);
+  for (let t = 0; t < pattern.length; t++) patternRowStart[Math.floor(pattern[t]! / n) + 1]!++;
+  for (let i = 0; i < n; i++) patternRowStart[i + 1]! += patternRowStart[i]!;
+  // The Newton loop restores only the pattern of a, so everything else starts (and stays) zero.
+  a.set(aStatic);
   return {
     ok: true,
     plan: {
@@ -168,6 +175,7 @@ export function compilePlan(circuit: Circuit): CompileResult {
       xNew,
       xSpare,
       pattern,
+      patternRowStart,
       isNodeRow,
       target: { a, b, n },
     },
