@@ -22,8 +22,10 @@ export function formatNumber(value: number): string {
 }
 
 function trimZeros(text: string): string {
-  if (!text.includes(".")) return text;
-  return text.replace(/0+$/, "").replace(/\.$/, "");
+  // Only the mantissa: "2.50e-25" must not lose the exponent's digits.
+  const [mantissa, exponent] = text.split(/(?=e)/i) as [string, string | undefined];
+  if (!mantissa.includes(".")) return text;
+  return mantissa.replace(/0+$/, "").replace(/\.$/, "") + (exponent ?? "");
 }
 
 /** "6.8 mA", "4.7 kΩ", "0.98 V/V"; a null value prints as "—". */

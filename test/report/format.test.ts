@@ -15,6 +15,11 @@ describe("formatQuantity", () => {
     expect(formatQuantity(-0.25, "V")).toBe("-250 mV");
     expect(formatQuantity(3e-15, "A")).toBe("3 fA");
   });
+  it("keeps the exponent of values beyond the prefix table", () => {
+    // Below the smallest prefix the number itself carries an exponent; trimming zeros must not eat it.
+    expect(formatQuantity(2.5e-25, "A")).not.toMatch(/e-1 /);
+    expect(formatQuantity(2.5e-25, "A")).toMatch(/e-/);
+  });
   it("carries a rounded 1000 to the next prefix", () => {
     expect(formatQuantity(999.96e-3, "V")).toBe("1 V");
     expect(formatQuantity(0.99996, "mA" as string)).toBe("1 mA");
