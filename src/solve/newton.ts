@@ -132,15 +132,12 @@ function stampAt(plan: Plan, s: NewtonSettings, st: IterationState): boolean {
 
 /**
  * Builds a and b at plan.x: the static part, the scaled sources, the gmin shunt, then every
- * nonlinear device. Only the stamp pattern is restored, since nothing writes a outside it
- * (the linear solver leaves a unchanged).
+ * nonlinear device. The whole of a is restored (one block copy is cheaper than restoring only
+ * the stamp pattern, and the linear solver may have factored a in place).
  */
 function assemble(plan: Plan, s: NewtonSettings, st: IterationState, init: boolean): void {
-  const { n, a, b, x, aStatic, bSource, isNodeRow, nonlinear, target, pattern } = plan;
-  for (let t = 0; t < pattern.length; t++) {
-    const idx = pattern[t]!;
-    a[idx] = aStatic[idx]!;
-  }
+  const { n, a, b, x, aStatic, bSource, isNodeRow, nonlinear, target } = plan;
+  a.set(aStatic);
   const scale = s.sourceScale;
   for (let i = 0; i < n; i++) b[i] = scale * bSource[i]!;
   if (s.gmin > 0) for (let i = 0; i < n; i++) if (isNodeRow[i]) a[i * n + i]! += s.gmin;

@@ -150,14 +150,11 @@ export function compilePlan(circuit: Circuit): CompileResult {
     d.stampStatic?.(staticTarget);
     d.stampSource?.(bSource);
   }
-  const isNodeRow = new Uint8Array(n);
+  // Borrowed like the rest: allocating even a small typed array costs about a Newton iteration.
+  const isNodeRow = scratchUint8("plan-node-rows", n);
   for (let i = 0; i < n; i++) isNodeRow[i] = unknowns[i]!.kind === "branch" ? 0 : 1;
-  const pattern = stampPattern(n, aStatic, isNodeRow, devices);
-  const patternRowStart = new Int32Array(n + 1);
-  for (let t = 0; t < pattern.length; t++) patternRowStart[Math.floor(pattern[t]! / n) + 1]!++;
-  for (let i = 0; i < n; i++) patternRowStart[i + 1]! += patternRowStart[i]!;
-  // The Newton loop restores only the pattern of a, so everything else starts (and stays) zero.
-  a.set(aStatic);
+  const patternRowStart = scratchInt32("plan-pattern-rows", n + 1);
+  const pattern = stampPattern(n, aStatic, isNodeRow, devices, patternRowStart);
   return {
     ok: true,
     plan: {
@@ -182,7 +179,8 @@ export function compilePlan(circuit: Circuit): CompileResult {
   };
 }
 
-function stampPattern(n: number, aStatic: Float64Array, isNodeRow: Uint8Array, devices: readonly DeviceInstance[]): Int32Array {
+/** The pattern in ascending flat-index order; rowStart[i] receives where row i begins in it. */
+function stampPattern(n: number, aStatic: Float64Array, isNodeRow: Uint8Array, devices: readonly DeviceInstance[], rowStart: Int32Array): Int32Array {
   const nn = n * n;
   const mark = scratchUint8("pattern-mark", nn);
   mark.fill(0);
@@ -194,7 +192,12 @@ function stampPattern(n: number, aStatic: Float64Array, isNodeRow: Uint8Array, d
   }
   const found = scratchInt32("pattern", nn);
   let count = 0;
-  for (let i = 0; i < nn; i++) if (mark[i] || aStatic[i] !== 0) found[count++] = i;
+  for (let i = 0; i < n; i++) {
+    rowStart[i] = count;
+    const row = i * n;
+    for (let idx = row; idx < row + n; idx++) if (mark[idx] || aStatic[idx] !== 0) found[count++] = idx;
+  }
+  rowStart[n] = count;
   return found.subarray(0, count);
 }
 
