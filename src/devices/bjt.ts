@@ -13,7 +13,8 @@ import type { BjtPoint, BjtRegion } from "../solve/types.js";
 import { criticalVoltage, limitJunction } from "../solve/limiting.js";
 import {
   DeviceSetupError,
-  stampPins,
+  pinOffsets,
+  stampPinsAt,
   terminal,
   volt,
   type DeviceInstance,
@@ -56,12 +57,17 @@ export function bjt(c: Bjt, ctx: SetupContext): DeviceInstance {
   const vcrit = criticalVoltage(vt, is);
   const gl = JUNCTION_LEAK_CONDUCTANCE;
   const idx: number[] = [col.index, base.index, emi.index];
-  // Plain arrays: a handful of doubles is cheaper to create than a typed array per device.
+  // Pin Jacobian and companion currents as plain arrays (a typed array of more than 64 bytes
+  // costs far more to create, once per device per solve); the matrix offsets of the Jacobian
+  // (for matrix size offN) and the limiting state as small typed arrays, so the Newton loop
+  // stores no boxed doubles.
   const g: number[] = new Array<number>(9).fill(0);
   const ieq: number[] = new Array<number>(3).fill(0);
+  const off = new Int32Array(9);
+  let offN = -1;
   const e: BjtEval = { ic: 0, ib: 0, icVbe: 0, icVbc: 0, ibVbe: 0, ibVbc: 0 };
-  let vbeLast = vcrit;
-  let vbcLast = 0;
+  /** [0] vbe and [1] vbc of the last evaluation (limiting reference). */
+  const last = Float64Array.of(vcrit, 0);
 
   const evaluate = (vbe: number, vbc: number): void => {
     junction(vbe, is, vt);
@@ -108,8 +114,8 @@ export function bjt(c: Bjt, ctx: SetupContext): DeviceInstance {
     ],
     voltageLinks: [],
     reset() {
-      vbeLast = vcrit;
-      vbcLast = 0;
+      last[0] = vcrit;
+      last[1] = 0;
     },
     stampNonlinear(x: Float64Array, mt: StampTarget, st: IterationState) {
       let vbe: number;
@@ -121,12 +127,12 @@ export function bjt(c: Bjt, ctx: SetupContext): DeviceInstance {
         const vb = volt(x, base.index);
         const vbeNew = p * (vb - volt(x, emi.index));
         const vbcNew = p * (vb - volt(x, col.index));
-        vbe = limitJunction(vbeNew, vbeLast, vt, vcrit);
-        vbc = limitJunction(vbcNew, vbcLast, vt, vcrit);
+        vbe = limitJunction(vbeNew, last[0]!, vt, vcrit);
+        vbc = limitJunction(vbcNew, last[1]!, vt, vcrit);
         if (vbe !== vbeNew || vbc !== vbcNew) st.limited = true;
       }
-      vbeLast = vbe;
-      vbcLast = vbc;
+      last[0] = vbe;
+      last[1] = vbc;
       evaluate(vbe, vbc);
       fillJacobian();
       const ic = p * (e.ic - e.icVbe * vbe - e.icVbc * vbc);
@@ -134,7 +140,11 @@ export function bjt(c: Bjt, ctx: SetupContext): DeviceInstance {
       ieq[0] = ic;
       ieq[1] = ib;
       ieq[2] = -(ic + ib);
-      stampPins(mt, idx, g, ieq);
+      if (offN !== mt.n) {
+        pinOffsets(idx, mt.n, off);
+        offN = mt.n;
+      }
+      stampPinsAt(mt, idx, off, g, ieq);
     },
     point(x): BjtPoint {
       const vb = volt(x, base.index);

@@ -103,21 +103,38 @@ export function volt(x: Float64Array, i: number): number {
 }
 
 /**
- * Stamps a nonlinear device given, over its k pins (unknown indices idx), the pin Jacobian
- * g[i·k+j] = ∂I(pin i, into the device)/∂V(pin j) and the companion current ieq[i]
- * (the current into pin i at the linearisation point minus g·v there).
+ * Flat matrix offsets of a k-pin device's entries for an n×n system: off[i·k+j] is where
+ * ∂I(pin i)/∂V(pin j) goes, −1 where either pin is ground. Worked out once per matrix size so
+ * the stamp in the Newton loop is a plain indexed add.
  */
-export function stampPins(m: StampTarget, idx: readonly number[], g: readonly number[], ieq: readonly number[]): void {
+export function pinOffsets(idx: readonly number[], n: number, off: Int32Array): void {
+  const k = idx.length;
+  for (let i = 0; i < k; i++) {
+    const r = idx[i]!;
+    for (let j = 0; j < k; j++) {
+      const c = idx[j]!;
+      off[i * k + j] = r >= 0 && c >= 0 ? r * n + c : -1;
+    }
+  }
+}
+
+/**
+ * Stamps a nonlinear device given, over its k pins (unknown indices idx, matrix offsets off
+ * from pinOffsets), the pin Jacobian g[i·k+j] = ∂I(pin i, into the device)/∂V(pin j) and the
+ * companion current ieq[i] (the current into pin i at the linearisation point minus g·v there).
+ */
+export function stampPinsAt(m: StampTarget, idx: readonly number[], off: Int32Array, g: readonly number[], ieq: readonly number[]): void {
+  const a = m.a;
+  const b = m.b;
   const k = idx.length;
   for (let i = 0; i < k; i++) {
     const r = idx[i]!;
     if (r < 0) continue;
-    const row = r * m.n;
     for (let j = 0; j < k; j++) {
-      const c = idx[j]!;
-      if (c >= 0) m.a[row + c]! += g[i * k + j]!;
+      const o = off[i * k + j]!;
+      if (o >= 0) a[o]! += g[i * k + j]!;
     }
-    m.b[r]! -= ieq[i]!;
+    b[r]! -= ieq[i]!;
   }
 }
 

@@ -8,7 +8,8 @@ import { criticalVoltage, limitJunction } from "../solve/limiting.js";
 import {
   DeviceSetupError,
   stampConductance,
-  stampPins,
+  pinOffsets,
+  stampPinsAt,
   terminal,
   volt,
   type DeviceInstance,
@@ -35,10 +36,14 @@ export function diode(c: Diode, ctx: SetupContext): DeviceInstance {
   const is = saturationCurrentAt(model.saturationCurrent.typ, ctx.temperature, model.energyGap, model.saturationCurrentExponent);
   const vcrit = criticalVoltage(nvt, is);
   const idx: number[] = [inner, cathode.index];
-  // Plain arrays: a handful of doubles is cheaper to create than a typed array per device.
+  // Pin Jacobian and companion currents as plain arrays (cheapest to create); their matrix
+  // offsets (for matrix size offN) and [0] the last junction voltage as small typed arrays, so
+  // the Newton loop stores no boxed doubles.
   const g: number[] = new Array<number>(4).fill(0);
   const ieq: number[] = new Array<number>(2).fill(0);
-  let vLast = vcrit;
+  const off = new Int32Array(4);
+  let offN = -1;
+  const last = Float64Array.of(vcrit);
 
   const evaluate = (v: number): void => {
     junction(v, is, nvt);
@@ -58,14 +63,14 @@ export function diode(c: Diode, ctx: SetupContext): DeviceInstance {
       if (rs > 0) stampConductance(m, anode.index, inner, 1 / rs);
     },
     reset() {
-      vLast = vcrit;
+      last[0] = vcrit;
     },
     stampNonlinear(x: Float64Array, m: StampTarget, st: IterationState) {
       let v = st.init ? vcrit : volt(x, inner) - volt(x, cathode.index);
-      const vl = limitJunction(v, vLast, nvt, vcrit);
+      const vl = limitJunction(v, last[0]!, nvt, vcrit);
       if (vl !== v) st.limited = true;
       v = vl;
-      vLast = v;
+      last[0] = v;
       evaluate(v);
       const i = junctionOut[0]!;
       const gd = junctionOut[1]!;
@@ -75,7 +80,11 @@ export function diode(c: Diode, ctx: SetupContext): DeviceInstance {
       g[3] = gd;
       ieq[0] = i - gd * v;
       ieq[1] = -ieq[0]!;
-      stampPins(m, idx, g, ieq);
+      if (offN !== m.n) {
+        pinOffsets(idx, m.n, off);
+        offN = m.n;
+      }
+      stampPinsAt(m, idx, off, g, ieq);
     },
     point(x): DiodePoint {
       const vj = volt(x, inner) - volt(x, cathode.index);

@@ -18,7 +18,8 @@ import {
 } from "../solve/limiting.js";
 import {
   DeviceSetupError,
-  stampPins,
+  pinOffsets,
+  stampPinsAt,
   terminal,
   volt,
   type DeviceInstance,
@@ -64,12 +65,17 @@ export function mosfet(c: Mosfet, ctx: SetupContext): DeviceInstance {
   const phi2 = Math.max(m.surfacePotential, 0);
   const sqrtPhi2 = Math.sqrt(phi2);
   const idx: number[] = [dr.index, gt.index, sr.index, bd.index];
-  // Plain arrays: a handful of doubles is cheaper to create than a typed array per device.
+  // Pin Jacobian (rows G and B stay zero: no gate or body current) and companion currents as
+  // plain arrays (a typed array of more than 64 bytes costs far more to create, once per device
+  // per solve); the matrix offsets (for matrix size offN) and the step-limiting state as small
+  // typed arrays, so the Newton loop stores no boxed doubles.
   const g: number[] = new Array<number>(16).fill(0);
   const ieq: number[] = new Array<number>(4).fill(0);
+  const off = new Int32Array(16);
+  let offN = -1;
   const e: MosEval = { id: 0, gm: 0, gds: 0, gmb: 0, vt: 0, vov: 0, region: "cutoff" };
-  let vgsLast = 0;
-  let vdsLast = 0;
+  /** [0] vgs and [1] vds of the last evaluation (limiting reference). */
+  const last = new Float64Array(2);
 
   /** Square law in the forward orientation (vds ≥ 0). */
   const forward = (vgs: number, vds: number, vbs: number): void => {
@@ -130,7 +136,6 @@ export function mosfet(c: Mosfet, ctx: SetupContext): DeviceInstance {
   /** Pin Jacobian over (D, G, S, B); only drain and source carry current. */
   const fillJacobian = (): void => {
     const gs = -(e.gm + e.gds + e.gmb);
-    g.fill(0);
     g[0] = e.gds;
     g[1] = e.gm;
     g[2] = gs;
@@ -150,8 +155,8 @@ export function mosfet(c: Mosfet, ctx: SetupContext): DeviceInstance {
     dcLinks: [[dr, sr]],
     voltageLinks: [],
     reset() {
-      vgsLast = 0;
-      vdsLast = 0;
+      last[0] = 0;
+      last[1] = 0;
     },
     stampNonlinear(x: Float64Array, mt: StampTarget, st: IterationState) {
       const vs = volt(x, sr.index);
@@ -159,14 +164,16 @@ export function mosfet(c: Mosfet, ctx: SetupContext): DeviceInstance {
       let vds = st.init ? 0 : p * (volt(x, dr.index) - vs);
       const vbs = st.init ? 0 : p * (volt(x, bd.index) - vs);
       if (!st.init) {
+        const vgsLast = last[0]!;
+        const vdsLast = last[1]!;
         const vgsL = limitStep(vgs, vgsLast, vgsLast - vt0, MOS_VGS_STEP_MIN, MOS_VGS_STEP_RELATIVE);
         const vdsL = limitStep(vds, vdsLast, vdsLast, MOS_VDS_STEP_MIN, MOS_VDS_STEP_RELATIVE);
         if (vgsL !== vgs || vdsL !== vds) st.limited = true;
         vgs = vgsL;
         vds = vdsL;
       }
-      vgsLast = vgs;
-      vdsLast = vds;
+      last[0] = vgs;
+      last[1] = vds;
       evaluate(vgs, vds, vbs);
       fillJacobian();
       const id = p * (e.id - e.gm * vgs - e.gds * vds - e.gmb * vbs);
@@ -174,7 +181,11 @@ export function mosfet(c: Mosfet, ctx: SetupContext): DeviceInstance {
       ieq[1] = 0;
       ieq[2] = -id;
       ieq[3] = 0;
-      stampPins(mt, idx, g, ieq);
+      if (offN !== mt.n) {
+        pinOffsets(idx, mt.n, off);
+        offN = mt.n;
+      }
+      stampPinsAt(mt, idx, off, g, ieq);
     },
     point(x): MosPoint {
       const vs = volt(x, sr.index);
