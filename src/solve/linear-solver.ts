@@ -7,7 +7,6 @@ import {
   createLuSymbolic,
   createLuWorkspace,
   degreeOrder,
-  factorColumnScales,
   luFactor,
   luFactorScaled,
   luRefactor,
@@ -34,11 +33,11 @@ export type LinearSolverFactory = (n: number, pattern?: Int32Array) => LinearSol
 /**
  * From this many unknowns on, the unknowns are put in a fill-reducing order and factorisations
  * after the first follow the stored structure of the last pivot sequence. Setting that up costs
- * a few full scans of the n² matrix per solve, which a small system's factorisations (a few µs
- * each) do not earn back: on the bench chains it is slightly slower at 32 unknowns, ~20 %
- * faster per solve at 101 and twice as fast at 302.
+ * a few scans of the n² matrix per solve, which a small system's factorisations (under a µs
+ * each) do not earn back. Measured on the bench chains: a few % slower at 11 unknowns, ~5 %
+ * faster per solve at 32, ~20 % at 101, twice as fast at 302.
  */
-export const STRUCTURED_MIN_UNKNOWNS = 48;
+export const STRUCTURED_MIN_UNKNOWNS = 24;
 
 export const denseLu: LinearSolverFactory = (n, pattern) => {
   const ws = createLuWorkspace(n, { int32: scratchInt32, float64: scratchFloat64 });
@@ -75,33 +74,32 @@ export const denseLu: LinearSolverFactory = (n, pattern) => {
   }
   const y = scratchFloat64("lu-rhs", n);
   const unknownOf = (col: number): number => (col < 0 ? col : order[col]!);
-  const scatter = (a: Float64Array): void => {
-    for (let t = 0; t < pattern.length; t++) m[into[t]!] = a[pattern[t]!]!;
-  };
-  const solve = (x: Float64Array): void => {
-    for (let k = 0; k < n; k++) y[k] = x[order[k]!]!;
-    luSolve(m, ws, y);
-    for (let k = 0; k < n; k++) x[order[k]!] = y[k]!;
+  const colScale = ws.colScale;
+  /** m = a in elimination order, and the column scales; `zero` first clears m's fill entries (or all of m). */
+  const load = (a: Float64Array, zero: Int32Array | null): void => {
+    if (zero) for (let t = 0; t < zero.length; t++) m[zero[t]!] = 0;
+    else m.fill(0);
+    colScale.fill(0);
+    for (let t = 0; t < pattern.length; t++) {
+      const v = a[pattern[t]!]!;
+      m[into[t]!] = v;
+      const av = Math.abs(v);
+      const j = cols[t]!;
+      if (av > colScale[j]!) colScale[j] = av;
+    }
   };
   const sym = createLuSymbolic(n, { int32: scratchInt32 });
   // ws.pivots holds a complete pivot sequence from the last factorisation.
   let havePivots = false;
-  // m is zero outside sym.touched.
+  // m is zero outside the pattern and sym.fill.
   let zeroed = false;
   return {
     factor(a) {
       if (!sym.valid && havePivots) {
-        buildSymbolic(n, into, ws.pivots, sym, scratchUint8("lu-mark", n * n), scratchInt32("lu-touched", n * n));
+        buildSymbolic(n, into, ws.pivots, sym, scratchUint8("lu-mark", n * n), scratchInt32("lu-fill", n * n));
         zeroed = false;
       }
-      factorColumnScales(a, ws, pattern, cols);
-      if (zeroed) {
-        const touched = sym.touched;
-        for (let t = 0; t < touched.length; t++) m[touched[t]!] = 0;
-      } else {
-        m.fill(0);
-      }
-      scatter(a);
+      load(a, zeroed ? sym.fill : null);
       if (!sym.valid) {
         zeroed = false;
         const col = luFactorScaled(m, ws);
@@ -117,6 +115,10 @@ export const denseLu: LinearSolverFactory = (n, pattern) => {
       }
       return unknownOf(col);
     },
-    solve,
+    solve(x) {
+      for (let k = 0; k < n; k++) y[k] = x[order[k]!]!;
+      luSolve(m, ws, y);
+      for (let k = 0; k < n; k++) x[order[k]!] = y[k]!;
+    },
   };
 };

@@ -173,8 +173,8 @@ export interface LuSymbolic {
   /** Columns right of the diagonal that can be non-zero in row k after its exchange (ascending). */
   readonly rowCols: Int32Array;
   readonly rowStart: Int32Array;
-  /** Every flat index a refactorisation can write (pattern, fill and exchanged entries). */
-  touched: Int32Array;
+  /** Flat indices outside the pattern that a refactorisation can write (fill, exchanged entries). */
+  fill: Int32Array;
 }
 
 export function createLuSymbolic(n: number, borrow?: { int32(slot: string, length: number): Int32Array }): LuSymbolic {
@@ -191,20 +191,20 @@ export function createLuSymbolic(n: number, borrow?: { int32(slot: string, lengt
     swapStart: take(n + 1),
     rowCols: take(n * n),
     rowStart: take(n + 1),
-    touched: i32.subarray(0, 0),
+    fill: i32.subarray(0, 0),
   };
 }
 
 /**
  * Builds `sym` for the pivot sequence `pivots` on the entries `pattern` (flat indices of every
  * possibly non-zero entry): the factorisation simulated on booleans, fill included. `mark` is
- * n² bytes of scratch; `touched` receives the written entries (n² Int32 of room).
+ * n² bytes of scratch; `fill` receives the entries outside the pattern it writes (n² Int32 of room).
  */
-export function buildSymbolic(n: number, pattern: Int32Array, pivots: Int32Array, sym: LuSymbolic, mark: Uint8Array, touched: Int32Array): void {
+export function buildSymbolic(n: number, pattern: Int32Array, pivots: Int32Array, sym: LuSymbolic, mark: Uint8Array, fill: Int32Array): void {
   const { colRows, colStart, swapCols, swapStart, rowCols, rowStart } = sym;
-  // Bit 1: can be non-zero now; bit 2: written at some point.
+  // Bit 1: can be non-zero now; bit 2: written at some point; bit 4: in the pattern.
   mark.fill(0, 0, n * n);
-  for (let t = 0; t < pattern.length; t++) mark[pattern[t]!] = 3;
+  for (let t = 0; t < pattern.length; t++) mark[pattern[t]!] = 7;
   let cc = 0;
   let sc = 0;
   let rc = 0;
@@ -222,8 +222,8 @@ export function buildSymbolic(n: number, pattern: Int32Array, pivots: Int32Array
         const mp = mark[rp + j]!;
         if ((mk | mp) & 1) {
           swapCols[sc++] = j;
-          mark[rk + j] = (mp & 1) | 2;
-          mark[rp + j] = (mk & 1) | 2;
+          mark[rk + j] = (mp & 1) | 2 | (mk & 4);
+          mark[rp + j] = (mk & 1) | 2 | (mp & 4);
         }
       }
     }
@@ -242,15 +242,15 @@ export function buildSymbolic(n: number, pattern: Int32Array, pivots: Int32Array
         r = p;
       }
       const ri = r * n;
-      for (let u = r0; u < rc; u++) mark[ri + rowCols[u]!] = 3;
+      for (let u = r0; u < rc; u++) mark[ri + rowCols[u]!]! |= 3;
     }
   }
   colStart[n] = cc;
   swapStart[n] = sc;
   rowStart[n] = rc;
   let count = 0;
-  for (let i = 0; i < n * n; i++) if (mark[i]! & 2) touched[count++] = i;
-  sym.touched = touched.subarray(0, count);
+  for (let i = 0; i < n * n; i++) if ((mark[i]! & 6) === 2) fill[count++] = i;
+  sym.fill = fill.subarray(0, count);
   sym.valid = true;
 }
 
@@ -258,8 +258,7 @@ export function buildSymbolic(n: number, pattern: Int32Array, pivots: Int32Array
  * Factors `a` in place with the pivots `sym` was built for, visiting only the entries it lists,
  * as long as each pivot stays acceptable (PIVOT_KEEP_THRESHOLD); at the first step where one
  * does not, `sym` is marked invalid and the remaining steps pick pivots as luFactor does.
- * Entries of `a` outside sym.touched must be zero. Column scales must already be in ws (see
- * factorColumnScales).
+ * Entries of `a` outside the pattern and sym.fill must be zero. Column scales must already be in ws.colScale.
  */
 export function luRefactor(a: Float64Array, ws: LuWorkspace, sym: LuSymbolic): number {
   const { n, pivots, colScale, lRows, lStart, uCols, uStart } = ws;
@@ -327,20 +326,6 @@ export function luRefactor(a: Float64Array, ws: LuWorkspace, sym: LuSymbolic): n
   return -1;
 }
 
-/**
- * Column scales of `a` over `pattern` into ws, for luRefactor; `patternCols[t]` is the column of
- * pattern[t] (worked out once: an integer remainder per entry costs more than the whole scan).
- */
-export function factorColumnScales(a: Float64Array, ws: LuWorkspace, pattern: Int32Array, patternCols: Int32Array): void {
-  const colScale = ws.colScale;
-  colScale.fill(0);
-  for (let t = 0; t < pattern.length; t++) {
-    const j = patternCols[t]!;
-    const v = Math.abs(a[pattern[t]!]!);
-    if (v > colScale[j]!) colScale[j] = v;
-  }
-}
-
 /** Solves L·U·x = P·b in place on `x` (which holds b on entry), using a factored `a`. */
 export function luSolve(a: Float64Array, ws: LuWorkspace, x: Float64Array): void {
   const { n, pivots, lRows, lStart, uCols, uStart } = ws;
@@ -392,7 +377,7 @@ export function degreeOrder(n: number, pattern: Int32Array, order: Int32Array, d
   for (let i = 0; i < n; i++) order[count[degree[i]!]!++] = i;
 }
 
-/** luFactor for a matrix whose column scales are already in ws (see factorColumnScales). */
+/** luFactor for a matrix whose column scales are already in ws.colScale. */
 export function luFactorScaled(a: Float64Array, ws: LuWorkspace): number {
   return eliminateDense(a, ws, 0, 0, 0);
 }
