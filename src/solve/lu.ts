@@ -1,7 +1,9 @@
 // Dense LU factorisation with partial pivoting, in place on a row-major Float64Array, and the
 // matching forward/back substitution. Storage is dense; the work skips the zeros an MNA matrix
-// is mostly made of. The workspace is allocated once per circuit and reused by every Newton
-// iteration: nothing here allocates.
+// is mostly made of. For larger systems there is also a fill-reducing order of the unknowns and
+// a refactorisation that follows the structure of the last pivot sequence (visiting only the
+// entries that can be non-zero) while its pivots stay acceptable. The workspace is allocated
+// once per circuit and reused by every Newton iteration: nothing here allocates.
 
 /**
  * A pivot smaller than this fraction of the largest entry originally in its column is taken as
