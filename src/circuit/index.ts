@@ -4,7 +4,7 @@ import { extname } from "node:path";
 import { readFileSync } from "node:fs";
 import { schemaPath } from "../paths.js";
 import { ResolveContext } from "./fields.js";
-import { describeCircuitPath, rewriteCircuitError } from "./messages.js";
+import { circuitSubject, describeCircuitPath, rewriteCircuitError } from "./messages.js";
 import { MAX_FILE_BYTES, parseDocumentWithPositions } from "./parse.js";
 import { resolveCircuit } from "./resolve.js";
 import { checkTopology } from "./topology.js";
@@ -46,7 +46,7 @@ export function loadCircuitText(text: string, file: string): LoadResult {
     const errs = validateWithSchema({ type: "object", required: ["format"], properties: { format: { const: "opgate-circuit/1" } } }, root, pos, { describe: describeCircuitPath });
     if (errs.length) return { ok: false, errors: errs.map((e) => ({ ...e, hint: "circuit files start with `format: opgate-circuit/1`" })) };
   }
-  const schemaErrors = validateWithSchema(loadCircuitSchema(), root, parsed.positioned, { describe: describeCircuitPath, rewrite: rewriteCircuitError });
+  const schemaErrors = validateWithSchema(loadCircuitSchema(), root, parsed.positioned, { describe: describeCircuitPath, rewrite: rewriteCircuitError, subject: circuitSubject });
   if (schemaErrors.length) return { ok: false, errors: [...schemaErrors].sort(byPosition) };
   const ctx = new ResolveContext(parsed.positioned);
   const circuit = resolveCircuit(ctx, root);

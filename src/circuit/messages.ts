@@ -35,6 +35,22 @@ function componentName(root: unknown, index: number): string {
   return typeof id === "string" ? `component ${id}` : `component #${index + 1}`;
 }
 
+/** The id of the component, model or gain spec a path points into: the subject of its finding. */
+export function circuitSubject(path: readonly PathSegment[], root: unknown): string | undefined {
+  const [a, b, c] = path;
+  if (a === "components" && typeof b === "number") {
+    const id = get(get(get(root, "components"), b), "id");
+    return typeof id === "string" ? id : undefined;
+  }
+  if (a === "models" && typeof b === "string") return b;
+  if (a === "specs" && b === "gains" && typeof c === "number") {
+    const name = get(get(get(get(root, "specs"), "gains"), c), "name");
+    return typeof name === "string" ? name : undefined;
+  }
+  if (a === "specs" && b === "devices" && typeof c === "string") return c;
+  return undefined;
+}
+
 /** Names the item a path points into, plus the field within it. */
 export const describeCircuitPath: DescribePath = (path, root) => {
   let item: string | undefined;

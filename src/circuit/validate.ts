@@ -18,6 +18,8 @@ export type RewriteError = (
 export interface ValidateOptions {
   readonly describe?: DescribePath;
   readonly rewrite?: RewriteError;
+  /** The id of the item a path points into (a component, model or spec), reported as the error's part. */
+  readonly subject?: (path: readonly PathSegment[], root: unknown) => string | undefined;
   /** Cap on reported errors, so a wholly wrong file gives a readable list. */
   readonly maxErrors?: number;
 }
@@ -176,7 +178,8 @@ export function validateWithSchema(
       continue;
     }
     seen.set(text.message, out.length);
-    out.push({ file: positioned.file, line: pos.line, column: pos.column, message: text.message, ...(text.hint ? { hint: text.hint } : {}) });
+    const part = options.subject?.(path, value);
+    out.push({ file: positioned.file, line: pos.line, column: pos.column, message: text.message, ...(text.hint ? { hint: text.hint } : {}), ...(part ? { parts: [part] } : {}) });
     if (out.length >= (options.maxErrors ?? DEFAULT_MAX_ERRORS)) break;
   }
   return out;

@@ -46,7 +46,7 @@ describe("the example boards under the Tidewater policy (corners, −20…60 °C
   it("the broken file is an input error at its line and column, and does not stop the others", async () => {
     const r = await check("wind-vane-heater-broken.yaml");
     expect(r.status).toBe("error");
-    expect(r.findings[0]).toMatchObject({ rule: "input", line: 19, column: 51 });
+    expect(r.findings[0]).toMatchObject({ rule: "input", subject: "RB", line: 19, column: 51 });
     expect(r.findings[0]!.message).toContain("vaule");
   });
 });
