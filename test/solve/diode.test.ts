@@ -93,3 +93,17 @@ describe("diode and resistor", () => {
     expect((op.devices.D1 as DiodePoint).id).toBeCloseTo(-1e-9 - 5e-12, 14);
   });
 });
+
+describe("textbook worked examples", () => {
+  it("a silicon diode in series with 1 kΩ across 5 V carries about 4.3 mA (from memory: the usual first diode example, solved by iterating VD ≈ 0.7 V)", () => {
+    const c = circuit().diodeModel("si", { saturationCurrent: 1e-14 }).v("V1", "a", "gnd", 5).r("R1", "a", "k", 1000).d("D1", "k", "gnd", "si").build();
+    const op = solved(solveOperatingPoint(c));
+    const d = op.devices.D1 as DiodePoint;
+    // The iterative hand method converges to VD ≈ 0.68–0.72 V and I = (5 − VD)/1 kΩ ≈ 4.3 mA.
+    expect(d.vd).toBeGreaterThan(0.66);
+    expect(d.vd).toBeLessThan(0.74);
+    expect(d.id / 4.3e-3).toBeCloseTo(1, 1);
+    // and the solver's own point is self-consistent with Ohm's law on the resistor
+    expect(Math.abs((5 - d.vd) / 1000 - d.id)).toBeLessThan(1e-12);
+  });
+});
