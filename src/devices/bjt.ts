@@ -21,6 +21,7 @@ import {
   type IterationState,
   type SetupContext,
   type StampTarget,
+  type Terminal,
 } from "./device.js";
 import { JUNCTION_LEAK_CONDUCTANCE, junction, junctionOut } from "./junction.js";
 import { powerLawAt, saturationCurrentAt, thermalVoltage } from "./thermal.js";
@@ -28,14 +29,168 @@ import { powerLawAt, saturationCurrentAt, thermalVoltage } from "./thermal.js";
 /** A junction is taken as conducting at or above this polarity-normalised voltage (DESIGN.md §3, common practice). */
 export const BJT_CONDUCTION_VOLTAGE = 0.4;
 
-/** Scratch for one evaluation: currents and partial derivatives in normalised terms. */
-interface BjtEval {
-  ic: number;
-  ib: number;
-  icVbe: number; // ∂IC/∂vbe
-  icVbc: number; // ∂IC/∂vbc
-  ibVbe: number;
-  ibVbc: number;
+/**
+ * One transistor of a plan. A class with shared prototype methods rather than an object of
+ * closures: a plan builds every device afresh on each solve, and this makes that one
+ * allocation plus its small arrays. The evaluation scratch lives in fields (ic … ibVbc).
+ */
+class BjtInstance implements DeviceInstance {
+  readonly nonlinear = true;
+  readonly terminals: readonly Terminal[];
+  readonly stampIndices: readonly number[];
+  readonly dcLinks: readonly (readonly [Terminal, Terminal])[];
+  readonly voltageLinks: readonly (readonly [Terminal, Terminal])[] = [];
+  // Pin Jacobian and companion currents as plain arrays (a typed array of more than 64 bytes
+  // costs far more to create, once per device per solve); the matrix offsets of the Jacobian
+  // (for matrix size offN) and the limiting state as small typed arrays, so the Newton loop
+  // stores no boxed doubles.
+  private readonly g: number[] = [0, 0, 0, 0, 0, 0, 0, 0, 0];
+  private readonly ieq: number[] = [0, 0, 0];
+  private readonly off = new Int32Array(9);
+  private offN = -1;
+  /** [0] vbe and [1] vbc of the last evaluation (limiting reference). */
+  private readonly last: Float64Array;
+  // Scratch of one evaluation: currents and partial derivatives in normalised terms.
+  private ic = 0;
+  private ib = 0;
+  private icVbe = 0; // ∂IC/∂vbe
+  private icVbc = 0; // ∂IC/∂vbc
+  private ibVbe = 0;
+  private ibVbc = 0;
+
+  constructor(
+    readonly id: string,
+    readonly kind: Bjt["kind"],
+    private readonly p: number,
+    private readonly col: Terminal,
+    private readonly base: Terminal,
+    private readonly emi: Terminal,
+    private readonly saturationEdge: number,
+    private readonly vt: number,
+    private readonly is: number,
+    private readonly betaF: number,
+    private readonly betaR: number,
+    private readonly va: number,
+    private readonly vcrit: number,
+  ) {
+    this.terminals = [col, base, emi];
+    this.stampIndices = [col.index, base.index, emi.index];
+    this.dcLinks = [
+      [base, emi],
+      [base, col],
+    ];
+    this.last = Float64Array.of(vcrit, 0);
+  }
+
+  private evaluate(vbe: number, vbc: number): void {
+    const { is, vt, va, betaF, betaR } = this;
+    const gl = JUNCTION_LEAK_CONDUCTANCE;
+    junction(vbe, is, vt);
+    const iF = junctionOut[0]!;
+    const gF = junctionOut[1]!;
+    junction(vbc, is, vt);
+    const iR = junctionOut[0]!;
+    const gR = junctionOut[1]!;
+    const early = 1 - vbc / va;
+    const kR = 1 + 1 / betaR;
+    this.ic = iF * early - iR * kR - gl * vbc;
+    this.ib = iF / betaF + iR / betaR + gl * (vbe + vbc);
+    this.icVbe = gF * early;
+    this.icVbc = -iF / va - gR * kR - gl;
+    this.ibVbe = gF / betaF + gl;
+    this.ibVbc = gR / betaR + gl;
+  }
+
+  /** Pin Jacobian (C, B, E) from the normalised partials; vbe = VB − VE, vbc = VB − VC. */
+  private fillJacobian(): void {
+    const g = this.g;
+    // row C
+    g[0] = -this.icVbc;
+    g[1] = this.icVbe + this.icVbc;
+    g[2] = -this.icVbe;
+    // row B
+    g[3] = -this.ibVbc;
+    g[4] = this.ibVbe + this.ibVbc;
+    g[5] = -this.ibVbe;
+    // row E = −(C + B)
+    g[6] = -(g[0]! + g[3]!);
+    g[7] = -(g[1]! + g[4]!);
+    g[8] = -(g[2]! + g[5]!);
+  }
+
+  reset(): void {
+    this.last[0] = this.vcrit;
+    this.last[1] = 0;
+  }
+
+  stampNonlinear(x: Float64Array, mt: StampTarget, st: IterationState): void {
+    const { p, last, vt, vcrit } = this;
+    let vbe: number;
+    let vbc: number;
+    if (st.init) {
+      vbe = vcrit;
+      vbc = 0;
+    } else {
+      const vb = volt(x, this.base.index);
+      const vbeNew = p * (vb - volt(x, this.emi.index));
+      const vbcNew = p * (vb - volt(x, this.col.index));
+      vbe = limitJunction(vbeNew, last[0]!, vt, vcrit);
+      vbc = limitJunction(vbcNew, last[1]!, vt, vcrit);
+      if (vbe !== vbeNew || vbc !== vbcNew) st.limited = true;
+    }
+    last[0] = vbe;
+    last[1] = vbc;
+    this.evaluate(vbe, vbc);
+    this.fillJacobian();
+    const ic = p * (this.ic - this.icVbe * vbe - this.icVbc * vbc);
+    const ib = p * (this.ib - this.ibVbe * vbe - this.ibVbc * vbc);
+    const ieq = this.ieq;
+    ieq[0] = ic;
+    ieq[1] = ib;
+    ieq[2] = -(ic + ib);
+    if (this.offN !== mt.n) {
+      pinOffsets(this.stampIndices, mt.n, this.off);
+      this.offN = mt.n;
+    }
+    stampPinsAt(mt, this.stampIndices, this.off, this.g, ieq);
+  }
+
+  point(x: Float64Array): BjtPoint {
+    const { p, col, base, emi, saturationEdge } = this;
+    const vb = volt(x, base.index);
+    const vbeRaw = vb - volt(x, emi.index);
+    const vceRaw = volt(x, col.index) - volt(x, emi.index);
+    const vbcRaw = vb - volt(x, col.index);
+    this.evaluate(p * vbeRaw, p * vbcRaw);
+    this.fillJacobian();
+    const ic = this.ic;
+    const ib = this.ib;
+    const ie = ic + ib;
+    const vbeN = p * vbeRaw;
+    const vbcN = p * vbcRaw;
+    const vceN = p * vceRaw;
+    // Hybrid-π at the point, VCE held constant (so dvbc = dvbe): textbook definitions.
+    const gm = this.icVbe + this.icVbc; // ∂IC/∂VBE at constant VCE
+    const gpi = this.ibVbe + this.ibVbc; // ∂IB/∂VBE at constant VCE
+    const go = -this.icVbc; // ∂IC/∂VCE at constant VBE
+    return {
+      kind: this.kind,
+      ic,
+      ib,
+      ie,
+      vbe: vbeRaw,
+      vce: vceRaw,
+      region: bjtRegion(vbeN, vbcN, vceN, saturationEdge),
+      headroom: Math.abs(vceRaw) - saturationEdge,
+      // Σ V·I over the pins with the emitter as reference (normalised terms are polarity-free).
+      power: vceN * ic + vbeN * ib,
+      gm,
+      rpi: 1 / gpi,
+      re: 1 / (gm + gpi),
+      ro: 1 / go,
+      linear: { pins: [col.node, base.node, emi.node], y: this.g.slice() },
+    };
+  }
 }
 
 export function bjt(c: Bjt, ctx: SetupContext): DeviceInstance {
@@ -52,136 +207,8 @@ export function bjt(c: Bjt, ctx: SetupContext): DeviceInstance {
   const vt = thermalVoltage(t);
   const is = saturationCurrentAt(m.saturationCurrent.typ, t, m.energyGap, m.saturationCurrentExponent);
   const betaF = powerLawAt(m.beta.typ, t, m.betaExponent);
-  const betaR = m.reverseBeta.typ;
-  const va = m.earlyVoltage.typ;
   const vcrit = criticalVoltage(vt, is);
-  const gl = JUNCTION_LEAK_CONDUCTANCE;
-  const idx: number[] = [col.index, base.index, emi.index];
-  // Pin Jacobian and companion currents as plain arrays (a typed array of more than 64 bytes
-  // costs far more to create, once per device per solve); the matrix offsets of the Jacobian
-  // (for matrix size offN) and the limiting state as small typed arrays, so the Newton loop
-  // stores no boxed doubles.
-  const g: number[] = new Array<number>(9).fill(0);
-  const ieq: number[] = new Array<number>(3).fill(0);
-  const off = new Int32Array(9);
-  let offN = -1;
-  const e: BjtEval = { ic: 0, ib: 0, icVbe: 0, icVbc: 0, ibVbe: 0, ibVbc: 0 };
-  /** [0] vbe and [1] vbc of the last evaluation (limiting reference). */
-  const last = Float64Array.of(vcrit, 0);
-
-  const evaluate = (vbe: number, vbc: number): void => {
-    junction(vbe, is, vt);
-    const iF = junctionOut[0]!;
-    const gF = junctionOut[1]!;
-    junction(vbc, is, vt);
-    const iR = junctionOut[0]!;
-    const gR = junctionOut[1]!;
-    const early = 1 - vbc / va;
-    const kR = 1 + 1 / betaR;
-    e.ic = iF * early - iR * kR - gl * vbc;
-    e.ib = iF / betaF + iR / betaR + gl * (vbe + vbc);
-    e.icVbe = gF * early;
-    e.icVbc = -iF / va - gR * kR - gl;
-    e.ibVbe = gF / betaF + gl;
-    e.ibVbc = gR / betaR + gl;
-  };
-
-  /** Pin Jacobian (C, B, E) from the normalised partials; vbe = VB − VE, vbc = VB − VC. */
-  const fillJacobian = (): void => {
-    // row C
-    g[0] = -e.icVbc;
-    g[1] = e.icVbe + e.icVbc;
-    g[2] = -e.icVbe;
-    // row B
-    g[3] = -e.ibVbc;
-    g[4] = e.ibVbe + e.ibVbc;
-    g[5] = -e.ibVbe;
-    // row E = −(C + B)
-    g[6] = -(g[0]! + g[3]!);
-    g[7] = -(g[1]! + g[4]!);
-    g[8] = -(g[2]! + g[5]!);
-  };
-
-  return {
-    id: c.id,
-    kind: c.kind,
-    terminals: [col, base, emi],
-    nonlinear: true,
-    stampIndices: idx,
-    dcLinks: [
-      [base, emi],
-      [base, col],
-    ],
-    voltageLinks: [],
-    reset() {
-      last[0] = vcrit;
-      last[1] = 0;
-    },
-    stampNonlinear(x: Float64Array, mt: StampTarget, st: IterationState) {
-      let vbe: number;
-      let vbc: number;
-      if (st.init) {
-        vbe = vcrit;
-        vbc = 0;
-      } else {
-        const vb = volt(x, base.index);
-        const vbeNew = p * (vb - volt(x, emi.index));
-        const vbcNew = p * (vb - volt(x, col.index));
-        vbe = limitJunction(vbeNew, last[0]!, vt, vcrit);
-        vbc = limitJunction(vbcNew, last[1]!, vt, vcrit);
-        if (vbe !== vbeNew || vbc !== vbcNew) st.limited = true;
-      }
-      last[0] = vbe;
-      last[1] = vbc;
-      evaluate(vbe, vbc);
-      fillJacobian();
-      const ic = p * (e.ic - e.icVbe * vbe - e.icVbc * vbc);
-      const ib = p * (e.ib - e.ibVbe * vbe - e.ibVbc * vbc);
-      ieq[0] = ic;
-      ieq[1] = ib;
-      ieq[2] = -(ic + ib);
-      if (offN !== mt.n) {
-        pinOffsets(idx, mt.n, off);
-        offN = mt.n;
-      }
-      stampPinsAt(mt, idx, off, g, ieq);
-    },
-    point(x): BjtPoint {
-      const vb = volt(x, base.index);
-      const vbeRaw = vb - volt(x, emi.index);
-      const vceRaw = volt(x, col.index) - volt(x, emi.index);
-      const vbcRaw = vb - volt(x, col.index);
-      evaluate(p * vbeRaw, p * vbcRaw);
-      fillJacobian();
-      const ic = e.ic;
-      const ib = e.ib;
-      const ie = ic + ib;
-      const vbeN = p * vbeRaw;
-      const vbcN = p * vbcRaw;
-      const vceN = p * vceRaw;
-      // Hybrid-π at the point, VCE held constant (so dvbc = dvbe): textbook definitions.
-      const gm = e.icVbe + e.icVbc; // ∂IC/∂VBE at constant VCE
-      const gpi = e.ibVbe + e.ibVbc; // ∂IB/∂VBE at constant VCE
-      const go = -e.icVbc; // ∂IC/∂VCE at constant VBE
-      return {
-        kind: c.kind,
-        ic,
-        ib,
-        ie,
-        vbe: vbeRaw,
-        vce: vceRaw,
-        region: bjtRegion(vbeN, vbcN, vceN, m.saturationEdge),
-        headroom: Math.abs(vceRaw) - m.saturationEdge,
-        // Σ V·I over the pins with the emitter as reference (normalised terms are polarity-free).
-        power: vceN * ic + vbeN * ib,
-        gm,
-        rpi: 1 / gpi,
-        re: 1 / (gm + gpi),
-        ro: 1 / go,
-        linear: { pins: [col.node, base.node, emi.node], y: g.slice() },
-      };
-    },
-  };
+  return new BjtInstance(c.id, c.kind, p, col, base, emi, m.saturationEdge, vt, is, betaF, m.reverseBeta.typ, m.earlyVoltage.typ, vcrit);
 }
 
 /** Region on polarity-normalised voltages (DESIGN.md §3). */

@@ -26,6 +26,7 @@ import {
   type IterationState,
   type SetupContext,
   type StampTarget,
+  type Terminal,
 } from "./device.js";
 import { MODEL_TEMPERATURE, powerLawAt } from "./thermal.js";
 
@@ -35,14 +36,188 @@ import { MODEL_TEMPERATURE, powerLawAt } from "./thermal.js";
  */
 export const MOS_LEAK_CONDUCTANCE = 1e-12;
 
-interface MosEval {
-  id: number; // normalised current into the drain
-  gm: number; // ∂ID/∂vgs
-  gds: number; // ∂ID/∂vds
-  gmb: number; // ∂ID/∂vbs
-  vt: number; // normalised threshold in the effective orientation
-  vov: number;
-  region: MosRegion;
+/**
+ * One transistor of a plan. A class with shared prototype methods rather than an object of
+ * closures: a plan builds every device afresh on each solve, and this makes that one
+ * allocation plus its small arrays. The evaluation scratch lives in fields (id … region).
+ */
+class MosInstance implements DeviceInstance {
+  readonly nonlinear = true;
+  readonly terminals: readonly Terminal[];
+  readonly stampIndices: readonly number[];
+  readonly dcLinks: readonly (readonly [Terminal, Terminal])[];
+  readonly voltageLinks: readonly (readonly [Terminal, Terminal])[] = [];
+  // Pin Jacobian (rows G and B stay zero: no gate or body current) and companion currents as
+  // plain arrays (a typed array of more than 64 bytes costs far more to create, once per device
+  // per solve); the matrix offsets (for matrix size offN) and the step-limiting state as small
+  // typed arrays, so the Newton loop stores no boxed doubles.
+  private readonly g: number[] = [0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0];
+  private readonly ieq: number[] = [0, 0, 0, 0];
+  private readonly off = new Int32Array(16);
+  private offN = -1;
+  /** [0] vgs and [1] vds of the last evaluation (limiting reference). */
+  private readonly last = new Float64Array(2);
+  // Scratch of one evaluation.
+  private id_ = 0; // normalised current into the drain
+  private gm = 0; // ∂ID/∂vgs
+  private gds = 0; // ∂ID/∂vds
+  private gmb = 0; // ∂ID/∂vbs
+  private vt = 0; // normalised threshold in the effective orientation
+  private vov = 0;
+  private region: MosRegion = "cutoff";
+
+  constructor(
+    readonly id: string,
+    readonly kind: Mosfet["kind"],
+    private readonly p: number,
+    private readonly dr: Terminal,
+    private readonly gt: Terminal,
+    private readonly sr: Terminal,
+    private readonly bd: Terminal,
+    private readonly vt0: number,
+    private readonly beta: number,
+    private readonly lambda: number,
+    private readonly gamma: number,
+    private readonly phi2: number,
+    private readonly sqrtPhi2: number,
+  ) {
+    this.terminals = [dr, gt, sr, bd];
+    this.stampIndices = [dr.index, gt.index, sr.index, bd.index];
+    this.dcLinks = [[dr, sr]];
+  }
+
+  /** Square law in the forward orientation (vds ≥ 0). */
+  private forward(vgs: number, vds: number, vbs: number): void {
+    const { beta, lambda, gamma } = this;
+    const arg = this.phi2 - vbs;
+    let vt = this.vt0;
+    let dVtdVbs = 0;
+    if (gamma !== 0) {
+      const s = Math.sqrt(Math.max(arg, 0));
+      vt = this.vt0 + gamma * (s - this.sqrtPhi2);
+      dVtdVbs = s > 0 ? -gamma / (2 * s) : 0;
+    }
+    const vov = vgs - vt;
+    this.vt = vt;
+    this.vov = vov;
+    if (vov <= 0) {
+      this.id_ = 0;
+      this.gm = 0;
+      this.gds = 0;
+      this.region = "cutoff";
+    } else {
+      const clm = 1 + lambda * vds;
+      if (vds < vov) {
+        const core = vov * vds - 0.5 * vds * vds;
+        this.id_ = beta * core * clm;
+        this.gm = beta * vds * clm;
+        this.gds = beta * ((vov - vds) * clm + core * lambda);
+        this.region = "triode";
+      } else {
+        const core = 0.5 * vov * vov;
+        this.id_ = beta * core * clm;
+        this.gm = beta * vov * clm;
+        this.gds = beta * core * lambda;
+        this.region = "saturation";
+      }
+    }
+    this.gmb = -this.gm * dVtdVbs;
+  }
+
+  /** Either orientation; partials always with respect to the pin-referred vgs, vds, vbs. */
+  private evaluate(vgs: number, vds: number, vbs: number): void {
+    if (vds >= 0) {
+      this.forward(vgs, vds, vbs);
+    } else {
+      // Source and drain swap: I(vgs, vds, vbs) = −f(vgs − vds, −vds, vbs − vds).
+      this.forward(vgs - vds, -vds, vbs - vds);
+      const fg = this.gm;
+      const fd = this.gds;
+      const fb = this.gmb;
+      this.id_ = -this.id_;
+      this.gm = -fg;
+      this.gmb = -fb;
+      this.gds = fg + fd + fb;
+    }
+    this.id_ += MOS_LEAK_CONDUCTANCE * vds;
+    this.gds += MOS_LEAK_CONDUCTANCE;
+  }
+
+  /** Pin Jacobian over (D, G, S, B); only drain and source carry current. */
+  private fillJacobian(): void {
+    const g = this.g;
+    const gs = -(this.gm + this.gds + this.gmb);
+    g[0] = this.gds;
+    g[1] = this.gm;
+    g[2] = gs;
+    g[3] = this.gmb;
+    g[8] = -this.gds;
+    g[9] = -this.gm;
+    g[10] = -gs;
+    g[11] = -this.gmb;
+  }
+
+  reset(): void {
+    this.last[0] = 0;
+    this.last[1] = 0;
+  }
+
+  stampNonlinear(x: Float64Array, mt: StampTarget, st: IterationState): void {
+    const { p, last } = this;
+    const vs = volt(x, this.sr.index);
+    let vgs = st.init ? 0 : p * (volt(x, this.gt.index) - vs);
+    let vds = st.init ? 0 : p * (volt(x, this.dr.index) - vs);
+    const vbs = st.init ? 0 : p * (volt(x, this.bd.index) - vs);
+    if (!st.init) {
+      const vgsLast = last[0]!;
+      const vdsLast = last[1]!;
+      const vgsL = limitStep(vgs, vgsLast, vgsLast - this.vt0, MOS_VGS_STEP_MIN, MOS_VGS_STEP_RELATIVE);
+      const vdsL = limitStep(vds, vdsLast, vdsLast, MOS_VDS_STEP_MIN, MOS_VDS_STEP_RELATIVE);
+      if (vgsL !== vgs || vdsL !== vds) st.limited = true;
+      vgs = vgsL;
+      vds = vdsL;
+    }
+    last[0] = vgs;
+    last[1] = vds;
+    this.evaluate(vgs, vds, vbs);
+    this.fillJacobian();
+    const id = p * (this.id_ - this.gm * vgs - this.gds * vds - this.gmb * vbs);
+    const ieq = this.ieq;
+    ieq[0] = id;
+    ieq[1] = 0;
+    ieq[2] = -id;
+    ieq[3] = 0;
+    if (this.offN !== mt.n) {
+      pinOffsets(this.stampIndices, mt.n, this.off);
+      this.offN = mt.n;
+    }
+    stampPinsAt(mt, this.stampIndices, this.off, this.g, ieq);
+  }
+
+  point(x: Float64Array): MosPoint {
+    const { p, dr, gt, sr, bd } = this;
+    const vs = volt(x, sr.index);
+    const vgsRaw = volt(x, gt.index) - vs;
+    const vdsRaw = volt(x, dr.index) - vs;
+    const vbsRaw = volt(x, bd.index) - vs;
+    this.evaluate(p * vgsRaw, p * vdsRaw, p * vbsRaw);
+    this.fillJacobian();
+    return {
+      kind: this.kind,
+      id: this.id_,
+      vgs: vgsRaw,
+      vds: vdsRaw,
+      vov: this.vov,
+      vth: p * this.vt,
+      region: this.region,
+      headroom: Math.abs(vdsRaw) - Math.abs(this.vov), // |VDS| − |Vov| (DESIGN.md §3)
+      power: p * vdsRaw * this.id_,
+      gm: this.gm,
+      gmb: this.gmb,
+      ro: 1 / this.gds,
+      linear: { pins: [dr.node, gt.node, sr.node, bd.node], y: this.g.slice() },
+    };
+  }
 }
 
 export function mosfet(c: Mosfet, ctx: SetupContext): DeviceInstance {
@@ -60,155 +235,6 @@ export function mosfet(c: Mosfet, ctx: SetupContext): DeviceInstance {
   const t = ctx.temperature;
   const vt0 = p * m.threshold.typ + m.thresholdTempco * (t - MODEL_TEMPERATURE);
   const beta = (powerLawAt(m.kPrime.typ, t, m.kPrimeExponent) * m.width) / m.length;
-  const lambda = m.lambda.typ;
-  const gamma = m.bodyEffect;
   const phi2 = Math.max(m.surfacePotential, 0);
-  const sqrtPhi2 = Math.sqrt(phi2);
-  const idx: number[] = [dr.index, gt.index, sr.index, bd.index];
-  // Pin Jacobian (rows G and B stay zero: no gate or body current) and companion currents as
-  // plain arrays (a typed array of more than 64 bytes costs far more to create, once per device
-  // per solve); the matrix offsets (for matrix size offN) and the step-limiting state as small
-  // typed arrays, so the Newton loop stores no boxed doubles.
-  const g: number[] = new Array<number>(16).fill(0);
-  const ieq: number[] = new Array<number>(4).fill(0);
-  const off = new Int32Array(16);
-  let offN = -1;
-  const e: MosEval = { id: 0, gm: 0, gds: 0, gmb: 0, vt: 0, vov: 0, region: "cutoff" };
-  /** [0] vgs and [1] vds of the last evaluation (limiting reference). */
-  const last = new Float64Array(2);
-
-  /** Square law in the forward orientation (vds ≥ 0). */
-  const forward = (vgs: number, vds: number, vbs: number): void => {
-    const arg = phi2 - vbs;
-    let vt = vt0;
-    let dVtdVbs = 0;
-    if (gamma !== 0) {
-      const s = Math.sqrt(Math.max(arg, 0));
-      vt = vt0 + gamma * (s - sqrtPhi2);
-      dVtdVbs = s > 0 ? -gamma / (2 * s) : 0;
-    }
-    const vov = vgs - vt;
-    e.vt = vt;
-    e.vov = vov;
-    if (vov <= 0) {
-      e.id = 0;
-      e.gm = 0;
-      e.gds = 0;
-      e.region = "cutoff";
-    } else {
-      const clm = 1 + lambda * vds;
-      if (vds < vov) {
-        const core = vov * vds - 0.5 * vds * vds;
-        e.id = beta * core * clm;
-        e.gm = beta * vds * clm;
-        e.gds = beta * ((vov - vds) * clm + core * lambda);
-        e.region = "triode";
-      } else {
-        const core = 0.5 * vov * vov;
-        e.id = beta * core * clm;
-        e.gm = beta * vov * clm;
-        e.gds = beta * core * lambda;
-        e.region = "saturation";
-      }
-    }
-    e.gmb = -e.gm * dVtdVbs;
-  };
-
-  /** Either orientation; partials always with respect to the pin-referred vgs, vds, vbs. */
-  const evaluate = (vgs: number, vds: number, vbs: number): void => {
-    if (vds >= 0) {
-      forward(vgs, vds, vbs);
-    } else {
-      // Source and drain swap: I(vgs, vds, vbs) = −f(vgs − vds, −vds, vbs − vds).
-      forward(vgs - vds, -vds, vbs - vds);
-      const fg = e.gm;
-      const fd = e.gds;
-      const fb = e.gmb;
-      e.id = -e.id;
-      e.gm = -fg;
-      e.gmb = -fb;
-      e.gds = fg + fd + fb;
-    }
-    e.id += MOS_LEAK_CONDUCTANCE * vds;
-    e.gds += MOS_LEAK_CONDUCTANCE;
-  };
-
-  /** Pin Jacobian over (D, G, S, B); only drain and source carry current. */
-  const fillJacobian = (): void => {
-    const gs = -(e.gm + e.gds + e.gmb);
-    g[0] = e.gds;
-    g[1] = e.gm;
-    g[2] = gs;
-    g[3] = e.gmb;
-    g[8] = -e.gds;
-    g[9] = -e.gm;
-    g[10] = -gs;
-    g[11] = -e.gmb;
-  };
-
-  return {
-    id: c.id,
-    kind: c.kind,
-    terminals: [dr, gt, sr, bd],
-    nonlinear: true,
-    stampIndices: idx,
-    dcLinks: [[dr, sr]],
-    voltageLinks: [],
-    reset() {
-      last[0] = 0;
-      last[1] = 0;
-    },
-    stampNonlinear(x: Float64Array, mt: StampTarget, st: IterationState) {
-      const vs = volt(x, sr.index);
-      let vgs = st.init ? 0 : p * (volt(x, gt.index) - vs);
-      let vds = st.init ? 0 : p * (volt(x, dr.index) - vs);
-      const vbs = st.init ? 0 : p * (volt(x, bd.index) - vs);
-      if (!st.init) {
-        const vgsLast = last[0]!;
-        const vdsLast = last[1]!;
-        const vgsL = limitStep(vgs, vgsLast, vgsLast - vt0, MOS_VGS_STEP_MIN, MOS_VGS_STEP_RELATIVE);
-        const vdsL = limitStep(vds, vdsLast, vdsLast, MOS_VDS_STEP_MIN, MOS_VDS_STEP_RELATIVE);
-        if (vgsL !== vgs || vdsL !== vds) st.limited = true;
-        vgs = vgsL;
-        vds = vdsL;
-      }
-      last[0] = vgs;
-      last[1] = vds;
-      evaluate(vgs, vds, vbs);
-      fillJacobian();
-      const id = p * (e.id - e.gm * vgs - e.gds * vds - e.gmb * vbs);
-      ieq[0] = id;
-      ieq[1] = 0;
-      ieq[2] = -id;
-      ieq[3] = 0;
-      if (offN !== mt.n) {
-        pinOffsets(idx, mt.n, off);
-        offN = mt.n;
-      }
-      stampPinsAt(mt, idx, off, g, ieq);
-    },
-    point(x): MosPoint {
-      const vs = volt(x, sr.index);
-      const vgsRaw = volt(x, gt.index) - vs;
-      const vdsRaw = volt(x, dr.index) - vs;
-      const vbsRaw = volt(x, bd.index) - vs;
-      evaluate(p * vgsRaw, p * vdsRaw, p * vbsRaw);
-      fillJacobian();
-      return {
-        kind: c.kind,
-        id: e.id,
-        vgs: vgsRaw,
-        vds: vdsRaw,
-        vov: e.vov,
-        vth: p * e.vt,
-        region: e.region,
-        headroom: Math.abs(vdsRaw) - Math.abs(e.vov), // |VDS| − |Vov| (DESIGN.md §3)
-        power: p * vdsRaw * e.id,
-        gm: e.gm,
-        gmb: e.gmb,
-        ro: 1 / e.gds,
-        linear: { pins: [dr.node, gt.node, sr.node, bd.node], y: g.slice() },
-      };
-    },
-  };
+  return new MosInstance(c.id, c.kind, p, dr, gt, sr, bd, vt0, beta, m.lambda.typ, m.bodyEffect, phi2, Math.sqrt(phi2));
 }

@@ -1,7 +1,36 @@
 // Resistor: a constant conductance between its two pins.
 import type { Resistor } from "../circuit/types.js";
 import type { ResistorPoint } from "../solve/types.js";
-import { DeviceSetupError, stampConductance, terminal, volt, type DeviceInstance, type SetupContext, type StampTarget } from "./device.js";
+import { DeviceSetupError, stampConductance, terminal, volt, type DeviceInstance, type SetupContext, type StampTarget, type Terminal } from "./device.js";
+
+/**
+ * A class, not an object of closures: a plan builds one per resistor on every solve, and
+ * shared prototype methods make that a single small allocation.
+ */
+class ResistorInstance implements DeviceInstance {
+  readonly kind = "resistor" as const;
+  readonly nonlinear = false;
+  readonly terminals: readonly Terminal[];
+  readonly dcLinks: readonly (readonly [Terminal, Terminal])[];
+  readonly voltageLinks: readonly (readonly [Terminal, Terminal])[] = [];
+  constructor(
+    readonly id: string,
+    private readonly a: Terminal,
+    private readonly b: Terminal,
+    private readonly g: number,
+  ) {
+    this.terminals = [a, b];
+    this.dcLinks = [[a, b]];
+  }
+  stampStatic(m: StampTarget): void {
+    stampConductance(m, this.a.index, this.b.index, this.g);
+  }
+  point(x: Float64Array): ResistorPoint {
+    const voltage = volt(x, this.a.index) - volt(x, this.b.index);
+    const current = voltage * this.g;
+    return { kind: "resistor", current, voltage, power: voltage * current };
+  }
+}
 
 export function resistor(c: Resistor, ctx: SetupContext): DeviceInstance {
   const a = terminal(ctx, "a", c.pins.a);
@@ -10,21 +39,5 @@ export function resistor(c: Resistor, ctx: SetupContext): DeviceInstance {
   if (!(r > 0) || !Number.isFinite(r)) {
     throw new DeviceSetupError(`resistor ${c.id} has value ${r} Ω; the DC solve needs a positive, finite resistance`, [c.id]);
   }
-  const g = 1 / r;
-  return {
-    id: c.id,
-    kind: c.kind,
-    terminals: [a, b],
-    nonlinear: false,
-    dcLinks: [[a, b]],
-    voltageLinks: [],
-    stampStatic(m: StampTarget) {
-      stampConductance(m, a.index, b.index, g);
-    },
-    point(x): ResistorPoint {
-      const voltage = volt(x, a.index) - volt(x, b.index);
-      const current = voltage * g;
-      return { kind: "resistor", current, voltage, power: voltage * current };
-    },
-  };
+  return new ResistorInstance(c.id, a, b, 1 / r);
 }
