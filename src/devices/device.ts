@@ -36,6 +36,12 @@ export interface StampTarget {
   readonly a: Float64Array;
   readonly b: Float64Array;
   readonly n: number;
+  /**
+   * When present, addA appends every flat index it writes: the plan learns where the static
+   * stamps can be non-zero without scanning all n² entries (and every static stamp goes
+   * through addA, so none is missed).
+   */
+  readonly touched?: number[];
 }
 
 /** Per-iteration flags shared by all devices during one stamping pass. */
@@ -81,7 +87,11 @@ export interface DeviceInstance {
 
 /** Adds v at (row, col), skipping the eliminated ground row/column. */
 export function addA(m: StampTarget, row: number, col: number, v: number): void {
-  if (row >= 0 && col >= 0) m.a[row * m.n + col]! += v;
+  if (row >= 0 && col >= 0) {
+    const k = row * m.n + col;
+    m.a[k]! += v;
+    m.touched?.push(k);
+  }
 }
 
 /** Adds v to the right-hand side of row, skipping ground. */

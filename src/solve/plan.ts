@@ -145,7 +145,9 @@ export function compilePlan(circuit: Circuit): CompileResult {
   const xSpare = slice(2 * n * n + 4 * n, n);
   aStatic.fill(0);
   bSource.fill(0);
-  const staticTarget: StampTarget = { a: aStatic, b: bSource, n };
+  // Large systems record where the static stamps write (see stampPattern); small ones scan.
+  const touched: number[] | undefined = n >= PATTERN_SCAN_MAX_UNKNOWNS ? [] : undefined;
+  const staticTarget: StampTarget = touched ? { a: aStatic, b: bSource, n, touched } : { a: aStatic, b: bSource, n };
   for (const d of devices) {
     d.stampStatic?.(staticTarget);
     d.stampSource?.(bSource);
@@ -154,7 +156,7 @@ export function compilePlan(circuit: Circuit): CompileResult {
   const isNodeRow = scratchUint8("plan-node-rows", n);
   for (let i = 0; i < n; i++) isNodeRow[i] = unknowns[i]!.kind === "branch" ? 0 : 1;
   const patternRowStart = scratchInt32("plan-pattern-rows", n + 1);
-  const pattern = stampPattern(n, aStatic, isNodeRow, devices, patternRowStart);
+  const pattern = stampPattern(n, aStatic, touched, isNodeRow, devices, patternRowStart);
   return {
     ok: true,
     plan: {
@@ -179,8 +181,98 @@ export function compilePlan(circuit: Circuit): CompileResult {
   };
 }
 
-/** The pattern in ascending flat-index order; rowStart[i] receives where row i begins in it. */
-function stampPattern(n: number, aStatic: Float64Array, isNodeRow: Uint8Array, devices: readonly DeviceInstance[], rowStart: Int32Array): Int32Array {
+/**
+ * Below this many unknowns the stamp pattern is found by scanning all n² entries; from it on,
+ * from the entries the static stamps wrote. Both give the same pattern. Measured on the bench
+ * chains: the scan is ~1 µs cheaper per solve at 11 and 32 unknowns (recording costs more than
+ * scanning a few hundred entries), the candidate list ~15 µs cheaper at 101 and ~130 µs at 302.
+ */
+export const PATTERN_SCAN_MAX_UNKNOWNS = 64;
+
+/**
+ * The pattern in ascending flat-index order; rowStart[i] receives where row i begins in it.
+ * An entry belongs to it when it is a node row's diagonal (gmin), a pair of a nonlinear
+ * device's stamp indices, or a static entry that ended up non-zero. `touched` lists every
+ * entry the static stamps wrote; without it all n² entries are scanned.
+ */
+function stampPattern(
+  n: number,
+  aStatic: Float64Array,
+  touched: readonly number[] | undefined,
+  isNodeRow: Uint8Array,
+  devices: readonly DeviceInstance[],
+  rowStart: Int32Array,
+): Int32Array {
+  if (!touched) return scanPattern(n, aStatic, isNodeRow, devices, rowStart);
+  let bound = n + touched.length;
+  for (let d = 0; d < devices.length; d++) {
+    const k = devices[d]!.stampIndices?.length ?? 0;
+    bound += k * k;
+  }
+  const mark = scratchUint8("pattern-mark", n * n);
+  mark.fill(0);
+  const cand = scratchInt32("pattern-candidates", bound);
+  rowStart.fill(0);
+  let count = 0;
+  // rowStart[r + 1] counts row r's entries for now.
+  for (let i = 0; i < n; i++) {
+    const idx = i * n + i;
+    if (isNodeRow[i] && !mark[idx]) {
+      mark[idx] = 1;
+      cand[count++] = idx;
+      rowStart[i + 1]!++;
+    }
+  }
+  for (let d = 0; d < devices.length; d++) {
+    const idx = devices[d]!.stampIndices;
+    if (!idx) continue;
+    for (let p = 0; p < idx.length; p++) {
+      const r = idx[p]!;
+      if (r < 0) continue;
+      for (let q = 0; q < idx.length; q++) {
+        const c = idx[q]!;
+        if (c < 0) continue;
+        const at = r * n + c;
+        if (mark[at]) continue;
+        mark[at] = 1;
+        cand[count++] = at;
+        rowStart[r + 1]!++;
+      }
+    }
+  }
+  for (let t = 0; t < touched.length; t++) {
+    const at = touched[t]!;
+    if (mark[at] || aStatic[at] === 0) continue;
+    mark[at] = 1;
+    cand[count++] = at;
+    rowStart[Math.floor(at / n) + 1]!++;
+  }
+  for (let i = 0; i < n; i++) rowStart[i + 1]! += rowStart[i]!;
+  const found = scratchInt32("pattern", count);
+  const next = scratchInt32("pattern-next", n);
+  for (let i = 0; i < n; i++) next[i] = rowStart[i]!;
+  for (let t = 0; t < count; t++) {
+    const at = cand[t]!;
+    found[next[Math.floor(at / n)]!++] = at;
+  }
+  // Insertion sort within each row: rows hold a handful of entries.
+  for (let i = 0; i < n; i++) {
+    const end = rowStart[i + 1]!;
+    for (let p = rowStart[i]! + 1; p < end; p++) {
+      const v = found[p]!;
+      let q = p - 1;
+      while (q >= rowStart[i]! && found[q]! > v) {
+        found[q + 1] = found[q]!;
+        q--;
+      }
+      found[q + 1] = v;
+    }
+  }
+  return found;
+}
+
+/** stampPattern by a scan of every entry (cheapest for small systems). */
+function scanPattern(n: number, aStatic: Float64Array, isNodeRow: Uint8Array, devices: readonly DeviceInstance[], rowStart: Int32Array): Int32Array {
   const nn = n * n;
   const mark = scratchUint8("pattern-mark", nn);
   mark.fill(0);
