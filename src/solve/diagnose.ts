@@ -5,6 +5,7 @@
 import { shortestPath } from "../circuit/graph-path.js";
 import type { DeviceInstance, Terminal } from "../devices/device.js";
 import type { Plan } from "./plan.js";
+import { scratchInt32 } from "./scratch.js";
 
 export interface Diagnosis {
   readonly reason: string;
@@ -12,11 +13,15 @@ export interface Diagnosis {
   readonly nodes: readonly string[];
 }
 
-/** Union–find over node unknown indices, with ground as one extra slot (index n). */
+/**
+ * Union–find over node unknown indices, with ground as one extra slot (index n). Its array is
+ * borrowed scratch (see scratch.ts): the check runs on every solve, and creating a typed array
+ * costs about as much as the whole check on a small circuit.
+ */
 class UnionFind {
   private readonly parent: Int32Array;
-  constructor(size: number) {
-    this.parent = new Int32Array(size);
+  constructor(size: number, slot: string) {
+    this.parent = scratchInt32(slot, size);
     for (let i = 0; i < size; i++) this.parent[i] = i;
   }
   find(a: number): number {
@@ -52,8 +57,15 @@ function listWords(items: readonly string[]): string {
 
 /** Nodes with no DC path to ground (through resistors, junctions, channels, sources, inductors). */
 export function findFloatingNodes(plan: Plan): Diagnosis | undefined {
-  const uf = new UnionFind(plan.n + 1);
-  for (const d of plan.devices) for (const [p, q] of d.dcLinks) uf.union(slotOf(plan, p), slotOf(plan, q));
+  const uf = new UnionFind(plan.n + 1, "diagnose-floating");
+  const devices = plan.devices;
+  for (let k = 0; k < devices.length; k++) {
+    const links = devices[k]!.dcLinks;
+    for (let l = 0; l < links.length; l++) {
+      const link = links[l]!;
+      uf.union(slotOf(plan, link[0]), slotOf(plan, link[1]));
+    }
+  }
   const groundRoot = uf.find(plan.n);
   let floating: string[] | undefined;
   for (const [nd, i] of plan.nodeIndex) if (uf.find(i) !== groundRoot) (floating ??= []).push(nd);
@@ -72,9 +84,10 @@ export function findFloatingNodes(plan: Plan): Diagnosis | undefined {
 
 /** A loop made only of voltage-fixing branches (two sources in parallel, a source shorted by an inductor…). */
 export function findVoltageLoop(plan: Plan): Diagnosis | undefined {
-  const uf = new UnionFind(plan.n + 1);
+  const uf = new UnionFind(plan.n + 1, "diagnose-loop");
   const edges: { d: DeviceInstance; p: string; q: string }[] = [];
   for (const d of plan.devices) {
+    if (d.voltageLinks.length === 0) continue;
     for (const [tp, tq] of d.voltageLinks) {
       const p = tp.node;
       const q = tq.node;
