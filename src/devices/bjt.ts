@@ -40,16 +40,17 @@ class BjtInstance implements DeviceInstance {
   readonly stampIndices: readonly number[];
   readonly dcLinks: readonly (readonly [Terminal, Terminal])[];
   readonly voltageLinks: readonly (readonly [Terminal, Terminal])[] = [];
-  // Pin Jacobian and companion currents as plain arrays (a typed array of more than 64 bytes
-  // costs far more to create, once per device per solve); the matrix offsets of the Jacobian
-  // (for matrix size offN) and the limiting state as small typed arrays, so the Newton loop
-  // stores no boxed doubles.
+  // Pin Jacobian, companion currents and the matrix offsets of the Jacobian (for matrix size
+  // offN) as plain arrays: array literals are far cheaper to create than typed arrays, once per
+  // device per solve, and hold their numbers unboxed all the same.
   private readonly g: number[] = [0, 0, 0, 0, 0, 0, 0, 0, 0];
   private readonly ieq: number[] = [0, 0, 0];
-  private readonly off = new Int32Array(9);
+  private readonly off: number[] = [-1, -1, -1, -1, -1, -1, -1, -1, -1];
   private offN = -1;
-  /** [0] vbe and [1] vbc of the last evaluation (limiting reference). */
-  private readonly last: Float64Array;
+  // vbe and vbc of the last evaluation (limiting reference): double fields, which V8 updates in
+  // place (unlike a closure's variables), so the Newton loop allocates nothing.
+  private lastVbe: number;
+  private lastVbc = 0;
   // Scratch of one evaluation: currents and partial derivatives in normalised terms.
   private ic = 0;
   private ib = 0;
@@ -79,7 +80,7 @@ class BjtInstance implements DeviceInstance {
       [base, emi],
       [base, col],
     ];
-    this.last = Float64Array.of(vcrit, 0);
+    this.lastVbe = vcrit;
   }
 
   private evaluate(vbe: number, vbc: number): void {
@@ -119,12 +120,12 @@ class BjtInstance implements DeviceInstance {
   }
 
   reset(): void {
-    this.last[0] = this.vcrit;
-    this.last[1] = 0;
+    this.lastVbe = this.vcrit;
+    this.lastVbc = 0;
   }
 
   stampNonlinear(x: Float64Array, mt: StampTarget, st: IterationState): void {
-    const { p, last, vt, vcrit } = this;
+    const { p, vt, vcrit } = this;
     let vbe: number;
     let vbc: number;
     if (st.init) {
@@ -134,12 +135,12 @@ class BjtInstance implements DeviceInstance {
       const vb = volt(x, this.base.index);
       const vbeNew = p * (vb - volt(x, this.emi.index));
       const vbcNew = p * (vb - volt(x, this.col.index));
-      vbe = limitJunction(vbeNew, last[0]!, vt, vcrit);
-      vbc = limitJunction(vbcNew, last[1]!, vt, vcrit);
+      vbe = limitJunction(vbeNew, this.lastVbe, vt, vcrit);
+      vbc = limitJunction(vbcNew, this.lastVbc, vt, vcrit);
       if (vbe !== vbeNew || vbc !== vbcNew) st.limited = true;
     }
-    last[0] = vbe;
-    last[1] = vbc;
+    this.lastVbe = vbe;
+    this.lastVbc = vbc;
     this.evaluate(vbe, vbc);
     this.fillJacobian();
     const ic = p * (this.ic - this.icVbe * vbe - this.icVbc * vbc);

@@ -117,7 +117,7 @@ export function volt(x: Float64Array, i: number): number {
  * ∂I(pin i)/∂V(pin j) goes, −1 where either pin is ground. Worked out once per matrix size so
  * the stamp in the Newton loop is a plain indexed add.
  */
-export function pinOffsets(idx: readonly number[], n: number, off: Int32Array): void {
+export function pinOffsets(idx: readonly number[], n: number, off: number[]): void {
   const k = idx.length;
   for (let i = 0; i < k; i++) {
     const r = idx[i]!;
@@ -133,7 +133,7 @@ export function pinOffsets(idx: readonly number[], n: number, off: Int32Array): 
  * from pinOffsets), the pin Jacobian g[i·k+j] = ∂I(pin i, into the device)/∂V(pin j) and the
  * companion current ieq[i] (the current into pin i at the linearisation point minus g·v there).
  */
-export function stampPinsAt(m: StampTarget, idx: readonly number[], off: Int32Array, g: readonly number[], ieq: readonly number[]): void {
+export function stampPinsAt(m: StampTarget, idx: readonly number[], off: readonly number[], g: readonly number[], ieq: readonly number[]): void {
   const a = m.a;
   const b = m.b;
   const k = idx.length;

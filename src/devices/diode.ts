@@ -36,12 +36,12 @@ export function diode(c: Diode, ctx: SetupContext): DeviceInstance {
   const is = saturationCurrentAt(model.saturationCurrent.typ, ctx.temperature, model.energyGap, model.saturationCurrentExponent);
   const vcrit = criticalVoltage(nvt, is);
   const idx: number[] = [inner, cathode.index];
-  // Pin Jacobian and companion currents as plain arrays (cheapest to create); their matrix
-  // offsets (for matrix size offN) and [0] the last junction voltage as small typed arrays, so
-  // the Newton loop stores no boxed doubles.
+  // Pin Jacobian, companion currents and their matrix offsets (for matrix size offN) as plain
+  // arrays (cheapest to create); [0] the last junction voltage as a small typed array, so the
+  // Newton loop stores no boxed doubles (a closure variable would box each new value).
   const g: number[] = new Array<number>(4).fill(0);
   const ieq: number[] = new Array<number>(2).fill(0);
-  const off = new Int32Array(4);
+  const off: number[] = [-1, -1, -1, -1];
   let offN = -1;
   const last = Float64Array.of(vcrit);
 

@@ -47,16 +47,17 @@ class MosInstance implements DeviceInstance {
   readonly stampIndices: readonly number[];
   readonly dcLinks: readonly (readonly [Terminal, Terminal])[];
   readonly voltageLinks: readonly (readonly [Terminal, Terminal])[] = [];
-  // Pin Jacobian (rows G and B stay zero: no gate or body current) and companion currents as
-  // plain arrays (a typed array of more than 64 bytes costs far more to create, once per device
-  // per solve); the matrix offsets (for matrix size offN) and the step-limiting state as small
-  // typed arrays, so the Newton loop stores no boxed doubles.
+  // Pin Jacobian (rows G and B stay zero: no gate or body current), companion currents and the
+  // matrix offsets (for matrix size offN) as plain arrays: array literals are far cheaper to
+  // create than typed arrays, once per device per solve, and hold their numbers unboxed all the same.
   private readonly g: number[] = [0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0];
   private readonly ieq: number[] = [0, 0, 0, 0];
-  private readonly off = new Int32Array(16);
+  private readonly off: number[] = [-1, -1, -1, -1, -1, -1, -1, -1, -1, -1, -1, -1, -1, -1, -1, -1];
   private offN = -1;
-  /** [0] vgs and [1] vds of the last evaluation (limiting reference). */
-  private readonly last = new Float64Array(2);
+  // vgs and vds of the last evaluation (limiting reference): double fields, which V8 updates in
+  // place (unlike a closure's variables), so the Newton loop allocates nothing.
+  private lastVgs = 0;
+  private lastVds = 0;
   // Scratch of one evaluation.
   private id_ = 0; // normalised current into the drain
   private gm = 0; // ∂ID/∂vgs
@@ -158,27 +159,27 @@ class MosInstance implements DeviceInstance {
   }
 
   reset(): void {
-    this.last[0] = 0;
-    this.last[1] = 0;
+    this.lastVgs = 0;
+    this.lastVds = 0;
   }
 
   stampNonlinear(x: Float64Array, mt: StampTarget, st: IterationState): void {
-    const { p, last } = this;
+    const p = this.p;
     const vs = volt(x, this.sr.index);
     let vgs = st.init ? 0 : p * (volt(x, this.gt.index) - vs);
     let vds = st.init ? 0 : p * (volt(x, this.dr.index) - vs);
     const vbs = st.init ? 0 : p * (volt(x, this.bd.index) - vs);
     if (!st.init) {
-      const vgsLast = last[0]!;
-      const vdsLast = last[1]!;
+      const vgsLast = this.lastVgs;
+      const vdsLast = this.lastVds;
       const vgsL = limitStep(vgs, vgsLast, vgsLast - this.vt0, MOS_VGS_STEP_MIN, MOS_VGS_STEP_RELATIVE);
       const vdsL = limitStep(vds, vdsLast, vdsLast, MOS_VDS_STEP_MIN, MOS_VDS_STEP_RELATIVE);
       if (vgsL !== vgs || vdsL !== vds) st.limited = true;
       vgs = vgsL;
       vds = vdsL;
     }
-    last[0] = vgs;
-    last[1] = vds;
+    this.lastVgs = vgs;
+    this.lastVds = vds;
     this.evaluate(vgs, vds, vbs);
     this.fillJacobian();
     const id = p * (this.id_ - this.gm * vgs - this.gds * vds - this.gmb * vbs);
