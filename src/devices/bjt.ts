@@ -13,6 +13,7 @@ import type { BjtPoint, BjtRegion } from "../solve/types.js";
 import { criticalVoltage, limitJunction } from "../solve/limiting.js";
 import {
   DeviceSetupError,
+  NO_LINKS,
   pinOffsets,
   stampPinsAt,
   terminal,
@@ -39,7 +40,7 @@ class BjtInstance implements DeviceInstance {
   readonly terminals: readonly Terminal[];
   readonly stampIndices: readonly number[];
   readonly dcLinks: readonly (readonly [Terminal, Terminal])[];
-  readonly voltageLinks: readonly (readonly [Terminal, Terminal])[] = [];
+  readonly voltageLinks = NO_LINKS;
   // Pin Jacobian, companion currents and the matrix offsets of the Jacobian (for matrix size
   // offN) as plain arrays: array literals are far cheaper to create than typed arrays, once per
   // device per solve, and hold their numbers unboxed all the same.

@@ -59,6 +59,9 @@ export interface Terminal {
   readonly index: number;
 }
 
+/** The empty link list, shared: most devices fix no voltage, and a plan builds every device per solve. */
+export const NO_LINKS: readonly (readonly [Terminal, Terminal])[] = Object.freeze([]);
+
 export interface DeviceInstance {
   readonly id: string;
   readonly kind: Component["kind"];

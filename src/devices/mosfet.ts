@@ -18,6 +18,7 @@ import {
 } from "../solve/limiting.js";
 import {
   DeviceSetupError,
+  NO_LINKS,
   pinOffsets,
   stampPinsAt,
   terminal,
@@ -46,7 +47,7 @@ class MosInstance implements DeviceInstance {
   readonly terminals: readonly Terminal[];
   readonly stampIndices: readonly number[];
   readonly dcLinks: readonly (readonly [Terminal, Terminal])[];
-  readonly voltageLinks: readonly (readonly [Terminal, Terminal])[] = [];
+  readonly voltageLinks = NO_LINKS;
   // Pin Jacobian (rows G and B stay zero: no gate or body current), companion currents and the
   // matrix offsets (for matrix size offN) as plain arrays: array literals are far cheaper to
   // create than typed arrays, once per device per solve, and hold their numbers unboxed all the same.

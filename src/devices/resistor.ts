@@ -1,7 +1,7 @@
 // Resistor: a constant conductance between its two pins.
 import type { Resistor } from "../circuit/types.js";
 import type { ResistorPoint } from "../solve/types.js";
-import { DeviceSetupError, stampConductance, terminal, volt, type DeviceInstance, type SetupContext, type StampTarget, type Terminal } from "./device.js";
+import { DeviceSetupError, NO_LINKS, stampConductance, terminal, volt, type DeviceInstance, type SetupContext, type StampTarget, type Terminal } from "./device.js";
 
 /**
  * A class, not an object of closures: a plan builds one per resistor on every solve, and
@@ -12,15 +12,17 @@ class ResistorInstance implements DeviceInstance {
   readonly nonlinear = false;
   readonly terminals: readonly Terminal[];
   readonly dcLinks: readonly (readonly [Terminal, Terminal])[];
-  readonly voltageLinks: readonly (readonly [Terminal, Terminal])[] = [];
+  readonly voltageLinks = NO_LINKS;
   constructor(
     readonly id: string,
     private readonly a: Terminal,
     private readonly b: Terminal,
     private readonly g: number,
   ) {
-    this.terminals = [a, b];
-    this.dcLinks = [[a, b]];
+    // One array serves as the pin list and as the single DC link.
+    const pins: readonly [Terminal, Terminal] = [a, b];
+    this.terminals = pins;
+    this.dcLinks = [pins];
   }
   stampStatic(m: StampTarget): void {
     stampConductance(m, this.a.index, this.b.index, this.g);
