@@ -101,6 +101,25 @@ function columnScales(a: Float64Array, ws: LuWorkspace, pattern: Int32Array | un
  * Steps k0… of the factorisation, scanning whole columns and rows for non-zeros; lCount and
  * uCount are the list lengths left by steps before k0 (so a refactorisation can hand over here).
  */
+/**
+ * One elimination step shared by the dense and the structured factorisation: the rows below the
+ * pivot that have an entry in column k (lRows[lCount, lCount + nrows)) get their multiplier
+ * stored in place and the pivot row's non-zeros (uCols[uCount, uCount + nnz)) subtracted.
+ */
+function eliminateColumn(a: Float64Array, n: number, k: number, lRows: Int32Array, lCount: number, nrows: number, uCols: Int32Array, uCount: number, nnz: number): void {
+  const rk = k * n;
+  const inv = 1 / a[rk + k]!;
+  for (let r = lCount; r < lCount + nrows; r++) {
+    const ri = lRows[r]! * n;
+    const l = a[ri + k]! * inv;
+    a[ri + k] = l;
+    for (let t = uCount; t < uCount + nnz; t++) {
+      const j = uCols[t]!;
+      a[ri + j]! -= l * a[rk + j]!;
+    }
+  }
+}
+
 function eliminateDense(a: Float64Array, ws: LuWorkspace, k0: number, lCount: number, uCount: number): number {
   const { n, pivots, colScale, lRows, lStart, uCols, uStart } = ws;
   for (let k = k0; k < n; k++) {
@@ -139,16 +158,7 @@ function eliminateDense(a: Float64Array, ws: LuWorkspace, k0: number, lCount: nu
     }
     let nnz = 0;
     for (let j = k + 1; j < n; j++) if (a[rk + j] !== 0) uCols[uCount + nnz++] = j;
-    const inv = 1 / a[rk + k]!;
-    for (let r = lCount; r < lCount + nrows; r++) {
-      const ri = lRows[r]! * n;
-      const l = a[ri + k]! * inv;
-      a[ri + k] = l;
-      for (let t = uCount; t < uCount + nnz; t++) {
-        const j = uCols[t]!;
-        a[ri + j]! -= l * a[rk + j]!;
-      }
-    }
+    eliminateColumn(a, n, k, lRows, lCount, nrows, uCols, uCount, nnz);
     lCount += nrows;
     uCount += nnz;
   }
@@ -310,16 +320,7 @@ export function luRefactor(a: Float64Array, ws: LuWorkspace, sym: LuSymbolic): n
       const j = rowCols[t]!;
       if (a[rk + j] !== 0) uCols[uCount + nnz++] = j;
     }
-    const inv = 1 / a[rk + k]!;
-    for (let r = lCount; r < lCount + nrows; r++) {
-      const ri = lRows[r]! * n;
-      const l = a[ri + k]! * inv;
-      a[ri + k] = l;
-      for (let t = uCount; t < uCount + nnz; t++) {
-        const j = uCols[t]!;
-        a[ri + j]! -= l * a[rk + j]!;
-      }
-    }
+    eliminateColumn(a, n, k, lRows, lCount, nrows, uCols, uCount, nnz);
     lCount += nrows;
     uCount += nnz;
   }
