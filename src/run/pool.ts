@@ -110,6 +110,10 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
       } catch (err) {
         finish(i, internalErrorResult(file, `the check stopped: ${err instanceof Error ? err.message : String(err)}`));
       }
+      // A check never waits on I/O (files are read synchronously), so its awaits only run
+      // microtasks: without this turn of the event loop, workers' results and requests for more
+      // files would wait until this lane had checked every file itself.
+      await new Promise<void>((resume) => setImmediate(resume));
     }
   };
 
