@@ -28,6 +28,9 @@ export interface Plan {
   readonly n: number;
   readonly unknowns: readonly Unknown[];
   readonly nodeIndex: ReadonlyMap<string, number>;
+  /** nodeIndex as two parallel arrays in its order (cheaper to walk than the Map's iterator). */
+  readonly nodeNames: readonly string[];
+  readonly nodeSlots: readonly number[];
   readonly devices: readonly DeviceInstance[];
   readonly nonlinear: readonly DeviceInstance[];
   /** Linear part of the Jacobian, stamped once. */
@@ -86,9 +89,13 @@ function instantiate(c: Component, ctx: SetupContext): DeviceInstance {
 export function compilePlan(circuit: Circuit): CompileResult {
   const unknowns: Unknown[] = [];
   const nodeIndex = new Map<string, number>();
+  const nodeNames: string[] = [];
+  const nodeSlots: number[] = [];
   for (const name of circuit.nodes) {
     if (name === circuit.ground || nodeIndex.has(name)) continue;
     nodeIndex.set(name, unknowns.length);
+    nodeNames.push(name);
+    nodeSlots.push(unknowns.length);
     unknowns.push({ kind: "node", name });
   }
   const ctx: SetupContext = {
@@ -101,6 +108,8 @@ export function compilePlan(circuit: Circuit): CompileResult {
         // A pin on a node the loader did not list: still solvable, so give it an unknown.
         i = unknowns.length;
         nodeIndex.set(name, i);
+        nodeNames.push(name);
+        nodeSlots.push(i);
         unknowns.push({ kind: "node", name });
       }
       return i;
@@ -164,6 +173,8 @@ export function compilePlan(circuit: Circuit): CompileResult {
       n,
       unknowns,
       nodeIndex,
+      nodeNames,
+      nodeSlots,
       devices,
       nonlinear: devices.filter((d) => d.nonlinear),
       aStatic,

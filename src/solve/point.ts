@@ -12,13 +12,12 @@ export function readOperatingPoint(plan: Plan, stats: SolveStats): OperatingPoin
   const x = plan.x;
   for (let i = 0; i < plan.n; i++) if (!Number.isFinite(x[i]!)) return { bad: describeUnknown(plan.unknowns[i]!) };
   const nodes: Record<string, number> = { [plan.circuit.ground]: 0 };
-  for (const [name, i] of plan.nodeIndex) {
-    const v = x[i]!;
-    nodes[name] = v;
-  }
+  const { nodeNames, nodeSlots, devices: all } = plan;
+  for (let k = 0; k < nodeNames.length; k++) nodes[nodeNames[k]!] = x[nodeSlots[k]!]!;
   const sources: Record<string, SourcePoint> = {};
   const devices: Record<string, DevicePoint> = {};
-  for (const d of plan.devices) {
+  for (let k = 0; k < all.length; k++) {
+    const d = all[k]!;
     const pt = d.point(x);
     if (d.kind === "voltage-source" || d.kind === "current-source") sources[d.id] = pt as SourcePoint;
     else devices[d.id] = pt as DevicePoint;
