@@ -15,7 +15,6 @@ import {
   DeviceSetupError,
   NO_LINKS,
   pinOffsets,
-  stampPinsAt,
   terminal,
   volt,
   type DeviceInstance,
@@ -127,15 +126,18 @@ class BjtInstance implements DeviceInstance {
 
   stampNonlinear(x: Float64Array, mt: StampTarget, st: IterationState): void {
     const { p, vt, vcrit } = this;
+    const ci = this.col.index;
+    const bi = this.base.index;
+    const ei = this.emi.index;
     let vbe: number;
     let vbc: number;
     if (st.init) {
       vbe = vcrit;
       vbc = 0;
     } else {
-      const vb = volt(x, this.base.index);
-      const vbeNew = p * (vb - volt(x, this.emi.index));
-      const vbcNew = p * (vb - volt(x, this.col.index));
+      const vb = bi >= 0 ? x[bi]! : 0;
+      const vbeNew = p * (vb - (ei >= 0 ? x[ei]! : 0));
+      const vbcNew = p * (vb - (ci >= 0 ? x[ci]! : 0));
       vbe = limitJunction(vbeNew, this.lastVbe, vt, vcrit);
       vbc = limitJunction(vbcNew, this.lastVbc, vt, vcrit);
       if (vbe !== vbeNew || vbc !== vbcNew) st.limited = true;
@@ -143,18 +145,38 @@ class BjtInstance implements DeviceInstance {
     this.lastVbe = vbe;
     this.lastVbc = vbc;
     this.evaluate(vbe, vbc);
-    this.fillJacobian();
-    const ic = p * (this.ic - this.icVbe * vbe - this.icVbc * vbc);
-    const ib = p * (this.ib - this.ibVbe * vbe - this.ibVbc * vbc);
-    const ieq = this.ieq;
-    ieq[0] = ic;
-    ieq[1] = ib;
-    ieq[2] = -(ic + ib);
+    // The pin Jacobian of fillJacobian, in locals (the record's copy is made by point()).
+    const { icVbe, icVbc, ibVbe, ibVbc } = this;
+    const g0 = -icVbc;
+    const g1 = icVbe + icVbc;
+    const g2 = -icVbe;
+    const g3 = -ibVbc;
+    const g4 = ibVbe + ibVbc;
+    const g5 = -ibVbe;
+    const ic = p * (this.ic - icVbe * vbe - icVbc * vbc);
+    const ib = p * (this.ib - ibVbe * vbe - ibVbc * vbc);
     if (this.offN !== mt.n) {
       pinOffsets(this.stampIndices, mt.n, this.off);
       this.offN = mt.n;
     }
-    stampPinsAt(mt, this.stampIndices, this.off, this.g, ieq);
+    // stampPinsAt unrolled: the same additions in the same order (row by row, column by
+    // column), so pins sharing a node sum exactly as before.
+    const a = mt.a;
+    const off = this.off;
+    let o = off[0]!;
+    if (o >= 0) a[o]! += g0;
+    if ((o = off[1]!) >= 0) a[o]! += g1;
+    if ((o = off[2]!) >= 0) a[o]! += g2;
+    if ((o = off[3]!) >= 0) a[o]! += g3;
+    if ((o = off[4]!) >= 0) a[o]! += g4;
+    if ((o = off[5]!) >= 0) a[o]! += g5;
+    if ((o = off[6]!) >= 0) a[o]! += -(g0 + g3);
+    if ((o = off[7]!) >= 0) a[o]! += -(g1 + g4);
+    if ((o = off[8]!) >= 0) a[o]! += -(g2 + g5);
+    const b = mt.b;
+    if (ci >= 0) b[ci]! -= ic;
+    if (bi >= 0) b[bi]! -= ib;
+    if (ei >= 0) b[ei]! -= -(ic + ib);
   }
 
   point(x: Float64Array): BjtPoint {

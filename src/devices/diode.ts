@@ -9,7 +9,6 @@ import {
   DeviceSetupError,
   stampConductance,
   pinOffsets,
-  stampPinsAt,
   terminal,
   volt,
   type DeviceInstance,
@@ -36,11 +35,9 @@ export function diode(c: Diode, ctx: SetupContext): DeviceInstance {
   const is = saturationCurrentAt(model.saturationCurrent.typ, ctx.temperature, model.energyGap, model.saturationCurrentExponent);
   const vcrit = criticalVoltage(nvt, is);
   const idx: number[] = [inner, cathode.index];
-  // Pin Jacobian, companion currents and their matrix offsets (for matrix size offN) as plain
-  // arrays (cheapest to create); [0] the last junction voltage as a small typed array, so the
+  // Matrix offsets of the pin Jacobian (for matrix size offN) as a plain array (cheapest to
+  // create); [0] the last junction voltage as a small typed array, so the
   // Newton loop stores no boxed doubles (a closure variable would box each new value).
-  const g: number[] = new Array<number>(4).fill(0);
-  const ieq: number[] = new Array<number>(2).fill(0);
   const off: number[] = [-1, -1, -1, -1];
   let offN = -1;
   const last = Float64Array.of(vcrit);
@@ -74,17 +71,20 @@ export function diode(c: Diode, ctx: SetupContext): DeviceInstance {
       evaluate(v);
       const i = junctionOut[0]!;
       const gd = junctionOut[1]!;
-      g[0] = gd;
-      g[1] = -gd;
-      g[2] = -gd;
-      g[3] = gd;
-      ieq[0] = i - gd * v;
-      ieq[1] = -ieq[0]!;
+      const ieq = i - gd * v;
       if (offN !== m.n) {
         pinOffsets(idx, m.n, off);
         offN = m.n;
       }
-      stampPinsAt(m, idx, off, g, ieq);
+      // stampPinsAt unrolled over g = [gd, −gd; −gd, gd]: the same additions in the same order.
+      const a = m.a;
+      let o = off[0]!;
+      if (o >= 0) a[o]! += gd;
+      if ((o = off[1]!) >= 0) a[o]! += -gd;
+      if ((o = off[2]!) >= 0) a[o]! += -gd;
+      if ((o = off[3]!) >= 0) a[o]! += gd;
+      if (inner >= 0) m.b[inner]! -= ieq;
+      if (cathode.index >= 0) m.b[cathode.index]! -= -ieq;
     },
     point(x): DiodePoint {
       const vj = volt(x, inner) - volt(x, cathode.index);

@@ -20,7 +20,6 @@ import {
   DeviceSetupError,
   NO_LINKS,
   pinOffsets,
-  stampPinsAt,
   terminal,
   volt,
   type DeviceInstance,
@@ -166,10 +165,14 @@ class MosInstance implements DeviceInstance {
 
   stampNonlinear(x: Float64Array, mt: StampTarget, st: IterationState): void {
     const p = this.p;
-    const vs = volt(x, this.sr.index);
-    let vgs = st.init ? 0 : p * (volt(x, this.gt.index) - vs);
-    let vds = st.init ? 0 : p * (volt(x, this.dr.index) - vs);
-    const vbs = st.init ? 0 : p * (volt(x, this.bd.index) - vs);
+    const di = this.dr.index;
+    const si = this.sr.index;
+    const gi = this.gt.index;
+    const bi = this.bd.index;
+    const vs = si >= 0 ? x[si]! : 0;
+    let vgs = st.init ? 0 : p * ((gi >= 0 ? x[gi]! : 0) - vs);
+    let vds = st.init ? 0 : p * ((di >= 0 ? x[di]! : 0) - vs);
+    const vbs = st.init ? 0 : p * ((bi >= 0 ? x[bi]! : 0) - vs);
     if (!st.init) {
       const vgsLast = this.lastVgs;
       const vdsLast = this.lastVds;
@@ -182,18 +185,31 @@ class MosInstance implements DeviceInstance {
     this.lastVgs = vgs;
     this.lastVds = vds;
     this.evaluate(vgs, vds, vbs);
-    this.fillJacobian();
-    const id = p * (this.id_ - this.gm * vgs - this.gds * vds - this.gmb * vbs);
-    const ieq = this.ieq;
-    ieq[0] = id;
-    ieq[1] = 0;
-    ieq[2] = -id;
-    ieq[3] = 0;
+    // The drain row of fillJacobian in locals; the source row is its negation and the gate and
+    // body rows are zero (adding +0 changes no entry: stamped entries are never −0).
+    const { gm, gds, gmb } = this;
+    const gs = -(gm + gds + gmb);
+    const id = p * (this.id_ - gm * vgs - gds * vds - gmb * vbs);
     if (this.offN !== mt.n) {
       pinOffsets(this.stampIndices, mt.n, this.off);
       this.offN = mt.n;
     }
-    stampPinsAt(mt, this.stampIndices, this.off, this.g, ieq);
+    // The non-zero part of stampPinsAt unrolled: the same additions in the same order, so pins
+    // sharing a node (body on source) sum exactly as before.
+    const a = mt.a;
+    const off = this.off;
+    let o = off[0]!;
+    if (o >= 0) a[o]! += gds;
+    if ((o = off[1]!) >= 0) a[o]! += gm;
+    if ((o = off[2]!) >= 0) a[o]! += gs;
+    if ((o = off[3]!) >= 0) a[o]! += gmb;
+    if ((o = off[8]!) >= 0) a[o]! += -gds;
+    if ((o = off[9]!) >= 0) a[o]! += -gm;
+    if ((o = off[10]!) >= 0) a[o]! += -gs;
+    if ((o = off[11]!) >= 0) a[o]! += -gmb;
+    const b = mt.b;
+    if (di >= 0) b[di]! -= id;
+    if (si >= 0) b[si]! -= -id;
   }
 
   point(x: Float64Array): MosPoint {
