@@ -1,6 +1,8 @@
 // Benchmark of a whole repository run: 2,000 circuit files generated from the examples (resistor
-// values varied ±10 %, names made unique), checked by the built CLI with --jobs 1 and --jobs 2
-// side by side in one run. Reports the wall times, their ratio and the per-file cost.
+// values varied ±10 %, names made unique), checked by the built CLI with --jobs 1 and --jobs 2,
+// interleaved over several rounds in one run. Reports the wall times, their ratios and the
+// per-file cost, beside what the machine itself gives in parallel at that moment (this shared
+// machine's spare capacity changes from minute to minute) and how many cores one job really uses.
 // Needs the built dist/ (`npm run build`): it runs dist/src/cli/bin.js as CI would.
 // Run alone with `npx tsx bench/repo.ts`; `npm run bench` calls benchRepo().
 import { spawnSync } from "node:child_process";
@@ -76,14 +78,21 @@ export function generateRepository(dir: string, files = REPO_FILES): number {
 
 interface Timed {
   readonly seconds: number;
+  /** CPU seconds the whole CLI process used (every thread: lanes, V8's compiler and collector). */
+  readonly cpuSeconds: number;
   readonly exitCode: number | null;
   readonly json: string;
 }
 
+/** Preloaded into the timed CLI: reports the process's own CPU time on its last line of stderr. */
+const CPU_PROBE = `process.on("exit", () => { const u = process.cpuUsage(); process.stderr.write("\\nopgate-bench-cpu " + (u.user + u.system) / 1e6 + "\\n"); });`;
+
 function timeCheck(bin: string, dir: string, jobs: number): Timed {
   const out = join(dir, `results-jobs-${jobs}.json`);
+  const probe = join(dir, "cpu-probe.mjs");
+  if (!existsSync(probe)) writeFileSync(probe, CPU_PROBE);
   const start = process.hrtime.bigint();
-  const r = spawnSync(process.execPath, [bin, "check", "boards", "--jobs", String(jobs), "--quiet", "--json", out], {
+  const r = spawnSync(process.execPath, ["--import", pathToFileURL(probe).href, bin, "check", "boards", "--jobs", String(jobs), "--quiet", "--json", out], {
     cwd: dir,
     env: { ...process.env, CI: "true", NO_COLOR: "1", GITHUB_ACTIONS: "" },
     encoding: "utf8",
@@ -91,7 +100,8 @@ function timeCheck(bin: string, dir: string, jobs: number): Timed {
   });
   const seconds = Number(process.hrtime.bigint() - start) / 1e9;
   if (r.status !== 0 && r.status !== 1 && r.status !== 2) throw new Error(`opgate check failed: ${r.stderr}`);
-  return { seconds, exitCode: r.status, json: existsSync(out) ? readFileSync(out, "utf8") : "" };
+  const cpu = /opgate-bench-cpu ([\d.]+)/.exec(r.stderr);
+  return { seconds, cpuSeconds: cpu ? Number(cpu[1]) : NaN, exitCode: r.status, json: existsSync(out) ? readFileSync(out, "utf8") : "" };
 }
 
 interface PhaseModules {
@@ -107,62 +117,93 @@ async function phaseModules(): Promise<PhaseModules> {
   return { checkFiles: pool.checkFiles, makeCheckContext: context.makeCheckContext, discoverCircuitFiles: discover.discoverCircuitFiles };
 }
 
-/**
- * The check phase alone, in this process: the pool over every file with 1 and 2 jobs (worker
- * start-up included, process start-up and report writing not). Best of BEST_OF runs each.
- */
-const BEST_OF = 2;
-async function timePhase(dir: string): Promise<{ one: number; two: number }> {
-  const m = await phaseModules();
-  const ctx = await m.makeCheckContext({ cwd: dir });
-  const files = await m.discoverCircuitFiles(["boards"], { cwd: dir, root: dir, include: ctx.config.include, exclude: ctx.config.exclude });
-  const time = async (jobs: number): Promise<number> => {
-    let best = Infinity;
-    for (let i = 0; i < BEST_OF; i++) {
-      const start = process.hrtime.bigint();
-      await m.checkFiles(files, { jobs, context: { cwd: dir }, ctx });
-      best = Math.min(best, Number(process.hrtime.bigint() - start) / 1e9);
-    }
-    return best;
-  };
-  await time(1); // warm the JIT of this process, as a long CLI run is warm for most of its files
-  return { one: await time(1), two: await time(2) };
+interface Phase {
+  /** --jobs 1: wall seconds, and CPU seconds of this process over the same span (all its threads). */
+  readonly one: number;
+  readonly oneCpu: number;
+  /** --jobs 2 with worker threads, and with child processes (lane.ts). */
+  readonly twoThreads: number;
+  readonly twoProcesses: number;
 }
 
 /**
- * What the machine gives in parallel right now: the same pure arithmetic loop on 1 and on 2
- * worker threads. On an idle 2-core machine the ratio is near 2; on a shared, loaded one it
- * is lower, and the check's own ratio cannot exceed it.
+ * The check phase alone, in this process (warm, as a long CLI run is for most of its files):
+ * the pool over every file with 1 job and with 2 jobs on either kind of worker (their start-up
+ * included; process start-up and report writing not).
  */
-const REFERENCE_LOOP = 2e8;
-async function machineParallelism(): Promise<number> {
+async function timePhase(dir: string): Promise<Phase> {
+  const m = await phaseModules();
+  const ctx = await m.makeCheckContext({ cwd: dir });
+  const files = await m.discoverCircuitFiles(["boards"], { cwd: dir, root: dir, include: ctx.config.include, exclude: ctx.config.exclude });
+  const time = async (jobs: number, lanes: "thread" | "process" = "thread"): Promise<{ wall: number; cpu: number }> => {
+    const cpu = process.cpuUsage();
+    const start = process.hrtime.bigint();
+    await m.checkFiles(files, { jobs, context: { cwd: dir }, ctx, lanes });
+    const used = process.cpuUsage(cpu);
+    return { wall: Number(process.hrtime.bigint() - start) / 1e9, cpu: (used.user + used.system) / 1e6 };
+  };
+  await time(1); // warm-up
+  const one = await time(1);
+  return { one: one.wall, oneCpu: one.cpu, twoThreads: (await time(2, "thread")).wall, twoProcesses: (await time(2, "process")).wall };
+}
+
+/**
+ * What the machine gives in parallel right now: the same loop on 1 and on 2 worker threads, as
+ * the speed-up 2·t1/t2 (two threads do twice the work). Two loops: pure arithmetic, which only
+ * needs the cores, and one that allocates and serialises small objects like the check does,
+ * which also needs the caches and memory bus the two cores share. The check's own ratio cannot
+ * exceed the second.
+ */
+const REFERENCE_LOOPS = {
+  arithmetic: "let x = 0; for (let i = 0; i < 2e8; i++) x += Math.sqrt(i);",
+  allocation: "let x = 0; for (let i = 0; i < 1.5e6; i++) { const o = { a: i, b: [i, i + 1, String(i)], c: { d: i * 2 } }; x += JSON.stringify(o).length; }",
+} as const;
+async function machineParallelism(loop: keyof typeof REFERENCE_LOOPS): Promise<number> {
   const { Worker } = await import("node:worker_threads");
-  const code = `const { parentPort } = require("node:worker_threads"); let x = 0; for (let i = 0; i < ${REFERENCE_LOOP}; i++) x += Math.sqrt(i); parentPort.postMessage(x);`;
+  const code = `const { parentPort } = require("node:worker_threads"); ${REFERENCE_LOOPS[loop]} parentPort.postMessage(x);`;
   const run = async (threads: number): Promise<number> => {
     const start = process.hrtime.bigint();
-    await Promise.all(
-      Array.from({ length: threads }, () => new Promise((done) => new Worker(code, { eval: true }).once("message", done))),
-    );
+    await Promise.all(Array.from({ length: threads }, () => new Promise((done) => new Worker(code, { eval: true }).once("message", done))));
     return Number(process.hrtime.bigint() - start) / 1e9;
   };
   const one = await run(1);
-  const two = await run(2);
-  // Two threads did twice the work: the speed-up is 2·t1/t2.
-  return (2 * one) / two;
+  return (2 * one) / (await run(2));
+}
+
+/** Interleaved rounds: each measures the machine, then --jobs 1 and --jobs 2 back to back. */
+const ROUNDS = 3;
+
+interface Round {
+  readonly arithmetic: number;
+  readonly allocation: number;
+  readonly one: Timed;
+  readonly two: Timed;
 }
 
 export interface RepoBenchResult {
   readonly files: number;
   readonly cores: number;
-  readonly jobs1Seconds: number;
-  readonly jobs2Seconds: number;
-  readonly speedup: number;
+  readonly rounds: readonly {
+    readonly jobs1Seconds: number;
+    readonly jobs2Seconds: number;
+    readonly speedup: number;
+    /** CPU seconds over wall seconds of each run: the cores it kept busy. */
+    readonly jobs1Cores: number;
+    readonly jobs2Cores: number;
+    readonly arithmetic: number;
+    readonly allocation: number;
+  }[];
+  readonly medianSpeedup: number;
+  readonly medianJobs2Seconds: number;
   readonly perFileMillis: number;
   readonly identical: boolean;
-  readonly phaseJobs1Seconds: number;
-  readonly phaseJobs2Seconds: number;
-  readonly phaseSpeedup: number;
-  readonly machineSpeedup: number;
+  readonly phase: Phase;
+}
+
+function median(values: readonly number[]): number {
+  const sorted = [...values].sort((a, b) => a - b);
+  const mid = sorted.length >> 1;
+  return sorted.length % 2 ? sorted[mid]! : (sorted[mid - 1]! + sorted[mid]!) / 2;
 }
 
 export async function benchRepo(): Promise<RepoBenchResult> {
@@ -171,36 +212,49 @@ export async function benchRepo(): Promise<RepoBenchResult> {
   const dir = mkdtempSync(join(tmpdir(), "opgate-bench-repo-"));
   try {
     const files = generateRepository(dir);
-    const machineBefore = await machineParallelism();
-    // One untimed run warms the file cache, so neither timed run pays for cold disk reads.
+    // One untimed run warms the file cache, so no timed run pays for cold disk reads.
     timeCheck(bin, dir, 1);
-    const one = timeCheck(bin, dir, 1);
-    const two = timeCheck(bin, dir, 2);
+    const rounds: Round[] = [];
+    for (let r = 0; r < ROUNDS; r++) {
+      const arithmetic = await machineParallelism("arithmetic");
+      const allocation = await machineParallelism("allocation");
+      rounds.push({ arithmetic, allocation, one: timeCheck(bin, dir, 1), two: timeCheck(bin, dir, 2) });
+    }
     const phase = await timePhase(dir);
-    const machineSpeedup = (machineBefore + (await machineParallelism())) / 2;
+    const json = rounds[0]!.one.json;
     const result: RepoBenchResult = {
       files,
       cores: availableParallelism(),
-      jobs1Seconds: one.seconds,
-      jobs2Seconds: two.seconds,
-      speedup: one.seconds / two.seconds,
-      perFileMillis: (one.seconds * 1000) / files,
-      identical: one.json === two.json && one.json.length > 0,
-      phaseJobs1Seconds: phase.one,
-      phaseJobs2Seconds: phase.two,
-      phaseSpeedup: phase.one / phase.two,
-      machineSpeedup,
+      rounds: rounds.map((r) => ({
+        jobs1Seconds: r.one.seconds,
+        jobs2Seconds: r.two.seconds,
+        speedup: r.one.seconds / r.two.seconds,
+        jobs1Cores: r.one.cpuSeconds / r.one.seconds,
+        jobs2Cores: r.two.cpuSeconds / r.two.seconds,
+        arithmetic: r.arithmetic,
+        allocation: r.allocation,
+      })),
+      medianSpeedup: median(rounds.map((r) => r.one.seconds / r.two.seconds)),
+      medianJobs2Seconds: median(rounds.map((r) => r.two.seconds)),
+      perFileMillis: (median(rounds.map((r) => r.one.seconds)) * 1000) / files,
+      identical: json.length > 0 && rounds.every((r) => r.one.json === json && r.two.json === json),
+      phase,
     };
-    console.log(`repository run: ${files} circuit files, ${result.cores} cores`);
-    console.log(`  machine reference: a pure arithmetic loop runs ${machineSpeedup.toFixed(2)}x faster on 2 threads than on 1 (mean of before and after)`);
-    console.log(`  --jobs 1: ${one.seconds.toFixed(2)} s (${result.perFileMillis.toFixed(2)} ms per file, start-up included)`);
-    console.log(`  --jobs 2: ${two.seconds.toFixed(2)} s`);
-    console.log(`  speed-up --jobs 2 / --jobs 1: ${result.speedup.toFixed(2)}x (target >= ${SPEEDUP_TARGET}x on 2 cores)`);
-    console.log(`  under ${WALL_TARGET_SECONDS} s with --jobs 2: ${two.seconds < WALL_TARGET_SECONDS ? "yes" : "no"}`);
-    console.log(`  results identical for both job counts: ${result.identical ? "yes" : "NO"}`);
+    console.log(`repository run: ${files} circuit files, ${result.cores} cores, ${ROUNDS} interleaved rounds of the built CLI`);
+    console.log(`  round   --jobs 1 (cores busy)   --jobs 2 (cores busy)   speed-up   machine 2-thread speed-up: arithmetic / allocating loop`);
+    result.rounds.forEach((r, i) =>
+      console.log(
+        `  ${String(i + 1).padStart(5)} ${r.jobs1Seconds.toFixed(2).padStart(8)} s (${r.jobs1Cores.toFixed(2)})     ${r.jobs2Seconds.toFixed(2).padStart(8)} s (${r.jobs2Cores.toFixed(2)})` +
+          `  ${r.speedup.toFixed(2).padStart(8)}x   ${r.arithmetic.toFixed(2)}x / ${r.allocation.toFixed(2)}x`,
+      ),
+    );
+    console.log(`  median speed-up --jobs 2 / --jobs 1: ${result.medianSpeedup.toFixed(2)}x (target >= ${SPEEDUP_TARGET}x on 2 cores)`);
+    console.log(`  per file with --jobs 1: ${result.perFileMillis.toFixed(2)} ms (median run, process start-up included)`);
+    console.log(`  under ${WALL_TARGET_SECONDS} s with --jobs 2: ${result.medianJobs2Seconds < WALL_TARGET_SECONDS ? "yes" : "no"} (median ${result.medianJobs2Seconds.toFixed(2)} s)`);
+    console.log(`  results identical for every run and job count: ${result.identical ? "yes" : "NO"}`);
     console.log(
-      `  check phase alone (in-process, worker start-up included): --jobs 1 ${phase.one.toFixed(2)} s, --jobs 2 ${phase.two.toFixed(2)} s, ` +
-        `speed-up ${result.phaseSpeedup.toFixed(2)}x`,
+      `  check phase alone (in-process, warm): --jobs 1 ${phase.one.toFixed(2)} s (${(phase.oneCpu / phase.one).toFixed(2)} cores busy); --jobs 2 on threads ${phase.twoThreads.toFixed(2)} s (${(phase.one / phase.twoThreads).toFixed(2)}x), ` +
+        `on child processes ${phase.twoProcesses.toFixed(2)} s (${(phase.one / phase.twoProcesses).toFixed(2)}x)`,
     );
     return result;
   } finally {

@@ -1,14 +1,12 @@
-// Checks files on worker threads (`--jobs N`), or in this thread for one job. Results are placed
-// by file position, so their order never depends on scheduling. A worker that dies takes only
-// the file it was checking with it: that file gets an `internal` error result, the worker is
-// replaced, and the run goes on. If workers cannot start at all, this thread checks the rest.
-import { Worker } from "node:worker_threads";
-import { createRequire } from "node:module";
-import { dirname, join } from "node:path";
-import { fileURLToPath, pathToFileURL } from "node:url";
+// Checks files on workers (`--jobs N`: worker threads by default, see lane.ts), or in this
+// process alone for one job. Results are placed by file position, so their order never depends on
+// scheduling. A worker that dies takes only the file it was checking with it: that file gets an
+// `internal` error result, the worker is replaced, and the run goes on. If workers cannot start
+// at all, this process checks the rest.
 import { checkFile, type CheckContext, type CheckContextOptions } from "../pipeline/check-file.js";
 import type { CircuitResult } from "../report/document.js";
 import type { CircuitFile } from "./discover.js";
+import { startLane, type Lane, type LaneKind } from "./lane.js";
 import type { FromWorker, ToWorker, WorkerStart } from "./protocol.js";
 
 /**
@@ -24,6 +22,9 @@ export const MIN_FILES_PER_WORKER = 64;
  * shares stay even at the end of a run.
  */
 export const PREFETCH = 4;
+
+/** Workers are threads unless asked otherwise (see lane.ts for why). */
+export const DEFAULT_LANE: LaneKind = "thread";
 
 /** Replacements allowed per job slot before giving up on threads (a crash loop would never end). */
 export const RESPAWNS_PER_JOB = 3;
@@ -41,8 +42,10 @@ export interface PoolOptions {
   readonly crashOn?: string;
   /** Default MIN_FILES_PER_WORKER; tests use 1 to run workers on a handful of files. */
   readonly minFilesPerWorker?: number;
-  /** Default true. Tests set false so that every file goes through a worker thread. */
+  /** Default true. Tests set false so that every file goes through a worker. */
   readonly mainThreadLane?: boolean;
+  /** What a worker is (lane.ts); default DEFAULT_LANE. */
+  readonly lanes?: LaneKind;
 }
 
 export function internalErrorResult(file: CircuitFile, message: string): CircuitResult {
@@ -72,20 +75,6 @@ export function internalErrorResult(file: CircuitFile, message: string): Circuit
     ],
     passed: [],
   };
-}
-
-/**
- * The worker next to this module: worker.js from dist/; worker.ts under the test runner, through a
- * small bootstrap that registers tsx's loader first (`--import tsx` in a worker's execArgv does
- * not reach the worker's own entry module on Node 20).
- */
-function workerEntry(): { entry: URL | string; eval: boolean } {
-  const here = fileURLToPath(import.meta.url);
-  if (!here.endsWith(".ts")) return { entry: new URL("./worker.js", import.meta.url), eval: false };
-  const cjsApi = createRequire(import.meta.url).resolve("tsx/esm/api");
-  const api = pathToFileURL(join(dirname(cjsApi), "index.mjs")).href;
-  const worker = new URL("./worker.ts", import.meta.url).href;
-  return { entry: `import { register } from ${JSON.stringify(api)};\nregister();\nawait import(${JSON.stringify(worker)});\n`, eval: true };
 }
 
 export async function checkFiles(files: readonly CircuitFile[], options: PoolOptions): Promise<CircuitResult[]> {
@@ -127,9 +116,9 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
   // This thread is one of the lanes: it is warm already, while a worker first has to load the
   // whole pipeline. So `--jobs N` runs N − 1 workers beside it.
   await new Promise<void>((resolveAll) => {
-    const entry = workerEntry();
+    const kind = options.lanes ?? DEFAULT_LANE;
     const start: WorkerStart = { context: options.context, ...(options.crashOn !== undefined ? { crashOn: options.crashOn } : {}) };
-    const live = new Set<Worker>();
+    const live = new Set<Lane>();
     const mainLane = options.mainThreadLane ?? true;
     let respawns = 0;
     let noticed = false;
@@ -137,7 +126,7 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
     const checkDone = (): void => {
       if (done === total && !resolved) {
         resolved = true;
-        for (const w of live) void w.terminate();
+        for (const lane of live) lane.stop();
         live.clear();
         resolveAll();
       }
@@ -145,16 +134,16 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
     const giveUp = (why: string): void => {
       if (noticed) return;
       noticed = true;
-      options.onNotice?.(`worker threads are unavailable (${why}); this thread checks the remaining files`);
+      options.onNotice?.(`workers are unavailable (${why}); this process checks the remaining files`);
       if (!mainLane) void inProcess().then(checkDone);
     };
     const spawn = (): void => {
-      const worker = new Worker(entry.entry, { workerData: start, eval: entry.eval });
-      live.add(worker);
       /** Sent and not yet answered, in the order the worker checks them (the first is in progress). */
       const inFlight: number[] = [];
       let ready = false;
       let lastError = "";
+      // Assigned once, right after the callbacks below that refer to it are defined.
+      let lane: Lane;
       const fill = (): void => {
         while (inFlight.length < PREFETCH) {
           const i = take();
@@ -162,21 +151,21 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
           inFlight.push(i);
           const f = files[i]!;
           const message: ToWorker = { type: "check", id: i, abs: f.abs, display: f.display };
-          worker.postMessage(message);
+          lane.send(message);
         }
         if (inFlight.length === 0) {
-          live.delete(worker);
-          void worker.terminate();
+          live.delete(lane);
+          lane.stop();
           checkDone();
         }
       };
-      worker.on("message", (m: FromWorker) => {
+      const onMessage = (m: FromWorker): void => {
         if (m.type === "ready") {
           ready = true;
           fill();
         } else if (m.type === "fatal") {
           lastError = m.message;
-          void worker.terminate();
+          lane.stop();
         } else {
           const at = inFlight.indexOf(m.id);
           if (at < 0) return;
@@ -184,31 +173,30 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
           finish(m.id, m.type === "result" ? m.result : internalErrorResult(files[m.id]!, `the check stopped: ${m.message}`));
           fill();
         }
-      });
-      worker.on("error", (err) => {
-        lastError = err.message;
-      });
-      worker.on("exit", (code) => {
-        if (!live.has(worker)) return;
-        live.delete(worker);
+      };
+      const onExit = (code: number | null): void => {
+        if (!live.has(lane)) return;
+        live.delete(lane);
         const [dying, ...untouched] = inFlight;
         if (dying !== undefined) {
           const f = files[dying]!;
-          finish(dying, internalErrorResult(f, `the check of this file stopped unexpectedly (its worker thread exited with code ${code}${lastError ? `: ${lastError}` : ""})`));
-          options.onNotice?.(`a worker thread died while checking ${f.display}; it was replaced`);
+          finish(dying, internalErrorResult(f, `the check of this file stopped unexpectedly (its worker exited with ${code === null ? "a signal" : `code ${code}`}${lastError ? `: ${lastError}` : ""})`));
+          options.onNotice?.(`a worker died while checking ${f.display}; it was replaced`);
         }
         // The files queued behind the one that crashed were never started: someone else takes them.
         requeued.push(...untouched);
         inFlight.length = 0;
         const workLeft = requeued.length > 0 || next < total;
-        if (!ready) giveUp(lastError || `exit code ${code}`);
+        if (!ready) giveUp(lastError || (code === null ? "killed by a signal" : `exit code ${code}`));
         else if (workLeft) {
           if (respawns++ < RESPAWNS_PER_JOB * jobs) spawn();
           else giveUp("too many worker crashes");
         }
         if (workLeft && mainLane && requeued.length > 0 && live.size === 0) void inProcess().then(checkDone);
         checkDone();
-      });
+      };
+      lane = startLane(kind, start, { message: onMessage, error: (message) => void (lastError = message), exit: onExit });
+      live.add(lane);
     };
     for (let k = 0; k < (mainLane ? jobs - 1 : jobs); k++) spawn();
     if (mainLane) void inProcess().then(checkDone);

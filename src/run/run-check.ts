@@ -4,6 +4,7 @@ import type { CheckContext, CheckContextOptions } from "../pipeline/check-file.j
 import { buildDocument } from "../report/build.js";
 import type { ResultsDocument } from "../report/document.js";
 import type { CircuitFile } from "./discover.js";
+import type { LaneKind } from "./lane.js";
 import { checkFiles } from "./pool.js";
 import { selectShard, type Shard } from "./shard.js";
 import { toolVersion } from "./version.js";
@@ -21,6 +22,8 @@ export interface RunOptions {
   readonly crashOn?: string;
   readonly minFilesPerWorker?: number;
   readonly mainThreadLane?: boolean;
+  /** What a worker is; default the pool's DEFAULT_LANE. */
+  readonly lanes?: LaneKind;
 }
 
 export async function runCheck(allFiles: readonly CircuitFile[], options: RunOptions): Promise<ResultsDocument> {
@@ -34,6 +37,7 @@ export async function runCheck(allFiles: readonly CircuitFile[], options: RunOpt
     ...(options.crashOn !== undefined ? { crashOn: options.crashOn } : {}),
     ...(options.minFilesPerWorker !== undefined ? { minFilesPerWorker: options.minFilesPerWorker } : {}),
     ...(options.mainThreadLane !== undefined ? { mainThreadLane: options.mainThreadLane } : {}),
+    ...(options.lanes !== undefined ? { lanes: options.lanes } : {}),
   });
   const { config, rules } = options.ctx;
   return buildDocument(circuits, {

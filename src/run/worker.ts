@@ -1,17 +1,32 @@
-// Worker thread: builds its own CheckContext from the plain options it was started with, then
-// checks the files it is sent, one at a time, and posts back plain CircuitResults.
+// A lane of the pool (lane.ts), as a worker thread or as a child process: builds its own
+// CheckContext from the plain options it was started with, then checks the files it is sent, one
+// at a time, and sends back plain CircuitResults.
 import { parentPort, workerData } from "node:worker_threads";
 import { checkFile } from "../pipeline/check-file.js";
 import { makeCheckContext } from "./context.js";
+import { START_ENV } from "./lane.js";
 import type { FromWorker, ToWorker, WorkerStart } from "./protocol.js";
 
-const port = parentPort;
-if (!port) throw new Error("opgate: src/run/worker is meant to run as a worker thread");
-const start = workerData as WorkerStart;
-
-function send(message: FromWorker): void {
-  port!.postMessage(message);
+interface Transport {
+  readonly start: WorkerStart;
+  send(message: FromWorker): void;
+  onMessage(handler: (message: ToWorker) => void): void;
 }
+
+function transport(): Transport {
+  const port = parentPort;
+  if (port) {
+    return { start: workerData as WorkerStart, send: (m) => port.postMessage(m), onMessage: (h) => void port.on("message", h) };
+  }
+  const toParent = process.send?.bind(process);
+  const raw = process.env[START_ENV];
+  if (!toParent || raw === undefined) throw new Error("opgate: src/run/worker is started by the pool, not run directly");
+  // The pool going away (it finished, or it crashed) ends this lane too.
+  process.on("disconnect", () => process.exit(0));
+  return { start: JSON.parse(raw) as WorkerStart, send: (m) => void toParent(m), onMessage: (h) => void process.on("message", h) };
+}
+
+const lane = transport();
 
 // Files are checked strictly one after another, in the order sent: the pool sends a few ahead,
 // and a crash must take only the file in progress with it.
@@ -22,24 +37,24 @@ async function drain(ctx: Awaited<ReturnType<typeof makeCheckContext>>): Promise
   if (busy) return;
   busy = true;
   for (let message = queue.shift(); message; message = queue.shift()) {
-    if (start.crashOn !== undefined && message.display === start.crashOn) process.exit(70);
+    if (lane.start.crashOn !== undefined && message.display === lane.start.crashOn) process.exit(70);
     try {
-      send({ type: "result", id: message.id, result: await checkFile(message.abs, ctx, message.display) });
+      lane.send({ type: "result", id: message.id, result: await checkFile(message.abs, ctx, message.display) });
     } catch (err) {
-      send({ type: "failed", id: message.id, message: err instanceof Error ? err.message : String(err) });
+      lane.send({ type: "failed", id: message.id, message: err instanceof Error ? err.message : String(err) });
     }
   }
   busy = false;
 }
 
 try {
-  const ctx = await makeCheckContext(start.context);
-  port.on("message", (message: ToWorker) => {
+  const ctx = await makeCheckContext(lane.start.context);
+  lane.onMessage((message) => {
     if (message.type !== "check") return;
     queue.push(message);
     void drain(ctx);
   });
-  send({ type: "ready" });
+  lane.send({ type: "ready" });
 } catch (err) {
-  send({ type: "fatal", message: err instanceof Error ? err.message : String(err) });
+  lane.send({ type: "fatal", message: err instanceof Error ? err.message : String(err) });
 }

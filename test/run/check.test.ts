@@ -46,7 +46,7 @@ describe("opgate check", () => {
     expect(read("out/j2.json")).toBe(read("out/j1.json"));
     expect(two.stdout).toBe(one.stdout);
     // Seven files are too few for a worker to pay back its start-up: force workers (and keep
-    // this thread out of it) so that every file really crosses a thread boundary.
+    // this process out of it) so that every file really crosses a process or thread boundary.
     const { runCheck } = await import("../../src/run/run-check.js");
     const { makeCheckContext } = await import("../../src/run/context.js");
     const { discoverCircuitFiles } = await import("../../src/run/discover.js");
@@ -55,14 +55,16 @@ describe("opgate check", () => {
     const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude });
     const notices: string[] = [];
     const onNotice = (m: string): void => void notices.push(m);
-    const threaded = await runCheck(files, { ctx, contextOptions: { cwd: repo.dir }, jobs: 2, minFilesPerWorker: 1, mainThreadLane: false, onNotice });
     const single = await runCheck(files, { ctx, contextOptions: { cwd: repo.dir }, jobs: 1 });
-    expect(notices).toEqual([]);
-    expect(renderJson(threaded)).toBe(renderJson(single));
     expect(renderJson(single)).toBe(read("out/j1.json"));
+    for (const lanes of ["process", "thread"] as const) {
+      const workers = await runCheck(files, { ctx, contextOptions: { cwd: repo.dir }, jobs: 2, minFilesPerWorker: 1, mainThreadLane: false, lanes, onNotice });
+      expect(notices).toEqual([]);
+      expect(renderJson(workers)).toBe(renderJson(single));
+    }
   }, 120_000);
 
-  it("reports a dead worker as an error for its file and finishes the rest", async () => {
+  it.each(["process", "thread"] as const)("reports a dead worker (%s) as an error for its file and finishes the rest", async (lanes) => {
     const { checkFiles } = await import("../../src/run/pool.js");
     const { makeCheckContext } = await import("../../src/run/context.js");
     const { discoverCircuitFiles } = await import("../../src/run/discover.js");
@@ -70,12 +72,12 @@ describe("opgate check", () => {
     const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude });
     const victim = files[1]!.display;
     const notices: string[] = [];
-    const results = await checkFiles(files, { jobs: 2, minFilesPerWorker: 1, mainThreadLane: false, context: { cwd: repo.dir }, ctx, crashOn: victim, onNotice: (m) => notices.push(m) });
+    const results = await checkFiles(files, { jobs: 2, minFilesPerWorker: 1, mainThreadLane: false, context: { cwd: repo.dir }, ctx, crashOn: victim, lanes, onNotice: (m) => notices.push(m) });
     expect(results.map((r) => r.file)).toEqual(files.map((f) => f.display));
     const dead = results[1]!;
     expect(dead.status).toBe("error");
     expect(dead.findings[0]!.rule).toBe("internal");
-    expect(dead.findings[0]!.message).toMatch(/worker thread exited with code 70/);
+    expect(dead.findings[0]!.message).toMatch(/worker exited with code 70/);
     expect(results.filter((r) => r.findings.some((f) => f.rule === "internal"))).toHaveLength(1);
     expect(notices.some((m) => m.includes(victim))).toBe(true);
   }, 120_000);
