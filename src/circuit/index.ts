@@ -1,10 +1,10 @@
 // Public entry of the circuit stage: file or text → validated, resolved, topology-checked Circuit.
 import { extname } from "node:path";
 import { readFileSync, statSync } from "node:fs";
-import { schemaPath } from "../paths.js";
 import { ResolveContext } from "./fields.js";
 import { circuitSubject, describeCircuitPath, rewriteCircuitError } from "./messages.js";
 import { MAX_FILE_BYTES, parseDocumentWithPositions } from "./parse.js";
+import { loadShippedSchema } from "./precompile.js";
 import { resolveCircuit } from "./resolve.js";
 import { checkTopology } from "./topology.js";
 import type { Circuit, InputError, LoadResult } from "./types.js";
@@ -23,7 +23,7 @@ export const CIRCUIT_EXTENSIONS: readonly string[] = [".json", ".yaml", ".yml"];
 let circuitSchema: object | undefined;
 /** The circuit schema, read once from schemas/circuit.schema.json. */
 export function loadCircuitSchema(): object {
-  circuitSchema ??= JSON.parse(readFileSync(schemaPath("circuit"), "utf8")) as object;
+  circuitSchema ??= loadShippedSchema("circuit");
   return circuitSchema;
 }
 

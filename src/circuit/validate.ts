@@ -29,15 +29,26 @@ export const DEFAULT_MAX_ERRORS = 20;
 
 const compiled = new WeakMap<object, ValidateFunction>();
 
-/** Compiles (once per schema object) with every error collected and the failing schema attached. */
+/**
+ * How every file schema is compiled: every error collected, the failing schema attached (the
+ * messages read it). precompile.ts generates the shipped validators with the same options.
+ */
+export const VALIDATOR_OPTIONS = { allErrors: true, verbose: true, strict: true, allowUnionTypes: true } as const;
+
+/** Compiles (once per schema object) with VALIDATOR_OPTIONS. */
 export function compileSchema(schema: object): ValidateFunction {
   let v = compiled.get(schema);
   if (!v) {
-    const ajv = new Ajv2020({ allErrors: true, verbose: true, strict: true, allowUnionTypes: true });
+    const ajv = new Ajv2020({ ...VALIDATOR_OPTIONS });
     v = ajv.compile(schema);
     compiled.set(schema, v);
   }
   return v;
+}
+
+/** Uses `validate` for `schema` from now on (a validator generated from it ahead of time). */
+export function useCompiled(schema: object, validate: ValidateFunction): void {
+  compiled.set(schema, validate);
 }
 
 function pathText(path: readonly PathSegment[]): string {

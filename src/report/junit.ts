@@ -4,14 +4,20 @@
 // input and internal findings, and the solve finding of a circuit with no operating point (the
 // circuit could not be checked), are <error>s. Checks that
 // passed are passing cases. A report never has zero cases.
-import junitReportBuilder, { type Builder } from "junit-report-builder";
+import { createRequire } from "node:module";
+import type { Builder } from "junit-report-builder";
 import { ERROR_RULES, reaches } from "./build.js";
 import type { CircuitResult, Finding, PassedCheck, ResultsDocument } from "./document.js";
 import { findingLocation, measuredVsLimit } from "./format.js";
 
-// The package is CommonJS: at run time the default import is the builder itself, while its
-// declarations (read under nodenext) describe a namespace around it.
-const builder = junitReportBuilder as unknown as Builder;
+// Loaded on first use: the library and its XML writer cost ~70 ms to load, which every
+// `opgate check` without --junit (and every worker) would otherwise pay. The package is
+// CommonJS: what require returns is the builder itself.
+let builder: Builder | undefined;
+function junitBuilder(): Builder {
+  builder ??= createRequire(import.meta.url)("junit-report-builder") as Builder;
+  return builder;
+}
 
 /** CDATA cannot contain its own terminator. */
 function cdataSafe(text: string): string {
@@ -41,7 +47,7 @@ function uniqueNamer(): (name: string) => string {
 }
 
 export function renderJunit(doc: ResultsDocument): string {
-  const report = builder.newBuilder().name("opgate");
+  const report = junitBuilder().newBuilder().name("opgate");
   const failOn = doc.summary.failOn;
   for (const c of doc.circuits) {
     const suite = report.testSuite().name(c.file);

@@ -7,9 +7,9 @@ import { dirname, extname, isAbsolute, join, relative, resolve } from "node:path
 import { parseDocumentWithPositions } from "../circuit/parse.js";
 import { positionOf, type PositionedDocument } from "../circuit/positions.js";
 import type { InputError, SourcePos } from "../circuit/types.js";
+import { loadShippedSchema } from "../circuit/precompile.js";
 import { validateWithSchema } from "../circuit/validate.js";
 import { parseValue } from "../circuit/values.js";
-import { schemaPath } from "../paths.js";
 import type { Severity } from "../report/document.js";
 import type { VariationSettings } from "../variation/types.js";
 import type { ResolvedConfig, RuleSetting } from "./config-types.js";
@@ -65,7 +65,7 @@ function fromInput(e: InputError): ConfigProblem {
 
 let configSchema: object | undefined;
 function schema(): object {
-  configSchema ??= JSON.parse(readFileSync(schemaPath("config"), "utf8")) as object;
+  configSchema ??= loadShippedSchema("config");
   return configSchema;
 }
 
