@@ -7,6 +7,7 @@ import { initCommand } from "./init.js";
 import { rulesCommand } from "./rules.js";
 import { inspectCommand } from "./inspect.js";
 import { mergeCommand } from "./merge.js";
+import { toolVersion } from "../run/version.js";
 
 export type CommandHandler = (args: Record<string, unknown>, io: CliIo) => Promise<number>;
 
@@ -31,7 +32,9 @@ export async function run(argv: readonly string[], io: CliIo): Promise<number> {
     .recommendCommands()
     .help()
     .alias("h", "help")
-    .version(false)
+    // The version of this package, as results documents record it (a CI log should show which
+    // gate ran).
+    .version(toolVersion())
     .wrap(Math.min(100, process.stdout.columns ?? 100))
     .exitProcess(false)
     .fail((msg, err) => {

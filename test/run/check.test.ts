@@ -4,6 +4,7 @@ import { mkdirSync, readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { documentProblems } from "../../src/report/validate.js";
+import { PACKAGE_ROOT } from "../../src/paths.js";
 import { cli, exampleFiles, makeRepo } from "./repo.js";
 
 const BROKEN_YAML = "format: opgate-circuit/1\nname: broken-one\ncomponents: [\n";
@@ -168,5 +169,9 @@ describe("opgate check", () => {
     const help = await cli(["check", "--help"], repo.dir);
     expect(help.code).toBe(0);
     expect(help.stdout).toContain("--shard 2/4 --json results-2.json");
+    // A CI log shows which gate ran: the package's version, the one results documents record.
+    const version = await cli(["--version"], repo.dir);
+    expect(version.code).toBe(0);
+    expect(version.stdout.trim()).toBe(JSON.parse(readFileSync(join(PACKAGE_ROOT, "package.json"), "utf8")).version);
   });
 });
