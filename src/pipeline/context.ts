@@ -46,5 +46,5 @@ export async function createCheckContext(options: CheckContextOptions): Promise<
       source: c.source,
     }))]
     .sort((a, b) => (a.id < b.id ? -1 : a.id > b.id ? 1 : 0));
-  return { config, rules, configured: configured.filter((c) => c.severity !== "off"), root: config.root };
+  return { config, rules, configured: Object.freeze(configured.filter((c) => c.severity !== "off").map((c) => Object.freeze(c))), root: config.root };
 }

@@ -1,7 +1,7 @@
 // The rule engine: crash isolation, time limit, option validation, worst scenario, overrides,
 // determinism. Hand-built analyses so every measured value is exact.
 import { describe, expect, it } from "vitest";
-import { marginOf, runRules, type ConfiguredRule } from "../../src/review/engine.js";
+import { marginOf, runRules, validateRuleOptions, type ConfiguredRule } from "../../src/review/engine.js";
 import { ConfigError } from "../../src/review/errors.js";
 import { defineRule, type Rule } from "../../src/review/rule.js";
 import headroom from "../../rules/headroom.js";
@@ -94,6 +94,18 @@ describe("option validation", () => {
     expect(err.problems[0]!.message).toBe('option `bjt` of rule `headroom` must be number, got "half a volt"');
     expect(err.problems[1]!.message).toBe("option `mos` of rule `headroom` must be >= 0, got -1");
     expect(err.message).toContain("opgate.config.yaml:8:7: error:");
+  });
+
+  it("validates a frozen rule list once, and a list that may still change every time", () => {
+    const frozen = Object.freeze([Object.freeze(builtin(headroom, { bjt: 0.7 }))]);
+    const first = validateRuleOptions(frozen);
+    expect(validateRuleOptions(frozen)).toBe(first);
+    expect(first[0]!.options).toMatchObject({ bjt: 0.7 });
+    // An open list is checked again, so a later edit is still caught.
+    const open = [builtin(headroom, { bjt: 0.7 })];
+    validateRuleOptions(open);
+    open[0] = builtin(headroom, { bjt: "half a volt" });
+    expect(() => validateRuleOptions(open)).toThrow(ConfigError);
   });
 
   it("fills in defaults without touching the caller's object", async () => {
