@@ -41,7 +41,21 @@ export interface StampTarget {
    * stamps can be non-zero without scanning all n² entries (and every static stamp goes
    * through addA, so none is missed).
    */
-  readonly touched?: number[];
+  readonly touched?: TouchedList;
+}
+
+/** Flat indices written by static stamps, in a typed array that grows as needed (no boxing, no array growth per push). */
+export class TouchedList {
+  count = 0;
+  constructor(public list: Int32Array) {}
+  add(k: number): void {
+    if (this.count === this.list.length) {
+      const bigger = new Int32Array(2 * this.list.length + 16);
+      bigger.set(this.list);
+      this.list = bigger;
+    }
+    this.list[this.count++] = k;
+  }
 }
 
 /** Per-iteration flags shared by all devices during one stamping pass. */
@@ -93,7 +107,7 @@ export function addA(m: StampTarget, row: number, col: number, v: number): void 
   if (row >= 0 && col >= 0) {
     const k = row * m.n + col;
     m.a[k]! += v;
-    m.touched?.push(k);
+    m.touched?.add(k);
   }
 }
 

@@ -50,17 +50,16 @@ export interface LuWorkspace {
 
 export function createLuWorkspace(n: number, borrow?: { int32(slot: string, length: number): Int32Array; float64(slot: string, length: number): Float64Array }): LuWorkspace {
   // Every array is fully written by luFactor before luSolve reads it, so borrowed memory is safe.
-  const i32 = borrow ? borrow.int32("lu", 2 * n * n + 3 * n + 2) : new Int32Array(2 * n * n + 3 * n + 2);
-  let at = 0;
-  const take = (length: number): Int32Array => i32.subarray(at, (at += length));
+  // One borrowed slot per array: a solve of the same size gets the same views back.
+  const i32 = (slot: string, length: number): Int32Array => (borrow ? borrow.int32(slot, length) : new Int32Array(length));
   return {
     n,
-    pivots: take(n),
+    pivots: i32("lu-pivots", n),
     colScale: borrow ? borrow.float64("lu-scale", n) : new Float64Array(n),
-    lRows: take(n * n),
-    lStart: take(n + 1),
-    uCols: take(n * n),
-    uStart: take(n + 1),
+    lRows: i32("lu-l-rows", n * n),
+    lStart: i32("lu-l-start", n + 1),
+    uCols: i32("lu-u-cols", n * n),
+    uStart: i32("lu-u-start", n + 1),
   };
 }
 
@@ -190,22 +189,22 @@ export interface LuSymbolic {
 }
 
 export function createLuSymbolic(n: number, borrow?: { int32(slot: string, length: number): Int32Array }): LuSymbolic {
-  const size = 4 * n * n + 4 * n + 3;
-  const i32 = borrow ? borrow.int32("lu-symbolic", size) : new Int32Array(size);
-  let at = 0;
-  const take = (length: number): Int32Array => i32.subarray(at, (at += length));
+  const i32 = (slot: string, length: number): Int32Array => (borrow ? borrow.int32(slot, length) : new Int32Array(length));
   return {
     valid: false,
-    pivots: take(n),
-    colRows: take(n * n),
-    colStart: take(n + 1),
-    swapCols: take(2 * n * n),
-    swapStart: take(n + 1),
-    rowCols: take(n * n),
-    rowStart: take(n + 1),
-    fill: i32.subarray(0, 0),
+    pivots: i32("lu-symbolic-pivots", n),
+    colRows: i32("lu-symbolic-col-rows", n * n),
+    colStart: i32("lu-symbolic-col-start", n + 1),
+    swapCols: i32("lu-symbolic-swap-cols", 2 * n * n),
+    swapStart: i32("lu-symbolic-swap-start", n + 1),
+    rowCols: i32("lu-symbolic-row-cols", n * n),
+    rowStart: i32("lu-symbolic-row-start", n + 1),
+    fill: EMPTY_FILL,
   };
 }
+
+/** The empty fill list of a symbolic structure not yet built. */
+const EMPTY_FILL = new Int32Array(0);
 
 /**
  * Builds `sym` for the pivot sequence `pivots` on the entries `pattern` (flat indices of every

@@ -5,7 +5,7 @@ import { bjt } from "../devices/bjt.js";
 import { capacitor } from "../devices/capacitor.js";
 import { currentControlled, voltageControlled } from "../devices/controlled.js";
 import { currentSource } from "../devices/current-source.js";
-import { DeviceSetupError, type DeviceInstance, type SetupContext, type StampTarget } from "../devices/device.js";
+import { DeviceSetupError, TouchedList, type DeviceInstance, type SetupContext, type StampTarget } from "../devices/device.js";
 import { diode } from "../devices/diode.js";
 import { inductor } from "../devices/inductor.js";
 import { mosfet } from "../devices/mosfet.js";
@@ -141,21 +141,20 @@ export function compilePlan(circuit: Circuit): CompileResult {
     if (msg !== undefined) return { ok: false, reason: msg, parts: [d.id] };
   }
   const n = unknowns.length;
-  // Every working array of the plan in one borrowed buffer (see scratch.ts); the static parts
-  // are zeroed here, the rest is written before it is read.
-  const buffer = scratchFloat64("plan", 2 * n * n + 5 * n);
-  const slice = (start: number, length: number): Float64Array => buffer.subarray(start, start + length);
-  const aStatic = slice(0, n * n);
-  const a = slice(n * n, n * n);
-  const bSource = slice(2 * n * n, n);
-  const b = slice(2 * n * n + n, n);
-  const x = slice(2 * n * n + 2 * n, n);
-  const xNew = slice(2 * n * n + 3 * n, n);
-  const xSpare = slice(2 * n * n + 4 * n, n);
+  // Every working array of the plan is borrowed (see scratch.ts; a solve of the same size gets
+  // the same views back); the static parts are zeroed here, the rest is written before it is read.
+  const aStatic = scratchFloat64("plan-a-static", n * n);
+  const a = scratchFloat64("plan-a", n * n);
+  const bSource = scratchFloat64("plan-b-source", n);
+  const b = scratchFloat64("plan-b", n);
+  const x = scratchFloat64("plan-x", n);
+  const xNew = scratchFloat64("plan-x-new", n);
+  const xSpare = scratchFloat64("plan-x-spare", n);
   aStatic.fill(0);
   bSource.fill(0);
   // Large systems record where the static stamps write (see stampPattern); small ones scan.
-  const touched: number[] | undefined = n >= PATTERN_SCAN_MAX_UNKNOWNS ? [] : undefined;
+  // Room for the usual four entries per device; a device kind with more makes the list grow.
+  const touched = n >= PATTERN_SCAN_MAX_UNKNOWNS ? new TouchedList(scratchInt32("plan-touched", 4 * devices.length + 16)) : undefined;
   const staticTarget: StampTarget = touched ? { a: aStatic, b: bSource, n, touched } : { a: aStatic, b: bSource, n };
   for (const d of devices) {
     d.stampStatic?.(staticTarget);
@@ -196,7 +195,8 @@ export function compilePlan(circuit: Circuit): CompileResult {
  * Below this many unknowns the stamp pattern is found by scanning all n² entries; from it on,
  * from the entries the static stamps wrote. Both give the same pattern. Measured on the bench
  * chains: the scan is ~1 µs cheaper per solve at 11 and 32 unknowns (recording costs more than
- * scanning a few hundred entries), the candidate list ~15 µs cheaper at 101 and ~130 µs at 302.
+ * scanning a few hundred entries; with the record in a typed list the two are about even
+ * there), the candidate list ~15 µs cheaper at 101 and ~130 µs at 302.
  */
 export const PATTERN_SCAN_MAX_UNKNOWNS = 64;
 
@@ -209,13 +209,15 @@ export const PATTERN_SCAN_MAX_UNKNOWNS = 64;
 function stampPattern(
   n: number,
   aStatic: Float64Array,
-  touched: readonly number[] | undefined,
+  touched: TouchedList | undefined,
   isNodeRow: Uint8Array,
   devices: readonly DeviceInstance[],
   rowStart: Int32Array,
 ): Int32Array {
   if (!touched) return scanPattern(n, aStatic, isNodeRow, devices, rowStart);
-  let bound = n + touched.length;
+  const list = touched.list;
+  const listed = touched.count;
+  let bound = n + listed;
   for (let d = 0; d < devices.length; d++) {
     const k = devices[d]!.stampIndices?.length ?? 0;
     bound += k * k;
@@ -251,8 +253,8 @@ function stampPattern(
       }
     }
   }
-  for (let t = 0; t < touched.length; t++) {
-    const at = touched[t]!;
+  for (let t = 0; t < listed; t++) {
+    const at = list[t]!;
     if (mark[at] || aStatic[at] === 0) continue;
     mark[at] = 1;
     cand[count++] = at;
@@ -301,7 +303,8 @@ function scanPattern(n: number, aStatic: Float64Array, isNodeRow: Uint8Array, de
     for (let idx = row; idx < row + n; idx++) if (mark[idx] || aStatic[idx] !== 0) found[count++] = idx;
   }
   rowStart[n] = count;
-  return found.subarray(0, count);
+  // The first `count` entries of the same slot (a view the scratch can hand out again).
+  return scratchInt32("pattern", count);
 }
 
 /** Human name of an unknown for messages: "node `b`", "the branch of VCC", "node `D1#junction`". */

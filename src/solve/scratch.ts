@@ -5,18 +5,27 @@
 // view is initialised before it is read — so results do not depend on what a previous solve
 // left behind (re-solves stay bit-identical). Worker threads each get their own module copy.
 
-const float64 = new Map<string, Float64Array>();
-const int32 = new Map<string, Int32Array>();
-const uint8 = new Map<string, Uint8Array>();
+interface Slot<T> {
+  buf: T;
+  /** The last view handed out (views of one length are interchangeable, so it is handed out again). */
+  view: T;
+}
 
-function borrow<T extends Float64Array | Int32Array | Uint8Array>(pool: Map<string, T>, make: (n: number) => T, slot: string, length: number): T {
-  let buf = pool.get(slot);
-  if (!buf || buf.length < length) {
+const float64 = new Map<string, Slot<Float64Array>>();
+const int32 = new Map<string, Slot<Int32Array>>();
+const uint8 = new Map<string, Slot<Uint8Array>>();
+
+function borrow<T extends Float64Array | Int32Array | Uint8Array>(pool: Map<string, Slot<T>>, make: (n: number) => T, slot: string, length: number): T {
+  let s = pool.get(slot);
+  if (s !== undefined && s.view.length === length) return s.view;
+  if (s === undefined || s.buf.length < length) {
     // Grow with headroom so a run over circuits of rising size does not reallocate each time.
-    buf = make(Math.max(length, Math.ceil((buf?.length ?? 0) * 1.5)));
-    pool.set(slot, buf);
+    const buf = make(Math.max(length, Math.ceil((s?.buf.length ?? 0) * 1.5)));
+    s = { buf, view: buf };
+    pool.set(slot, s);
   }
-  return buf.subarray(0, length) as T;
+  s.view = s.buf.subarray(0, length) as T;
+  return s.view;
 }
 
 /** A Float64Array view of `length` from the named slot; contents are unspecified (initialise before reading). */
