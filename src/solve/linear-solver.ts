@@ -3,6 +3,7 @@
 // in a fill-reducing order; on larger systems it refactors along the structure of the last
 // pivot sequence instead of scanning whole rows and columns.
 import {
+  bitWords,
   buildSymbolic,
   createLuSymbolic,
   createLuWorkspace,
@@ -12,7 +13,7 @@ import {
   luRefactor,
   luSolve,
 } from "./lu.js";
-import { scratchFloat64, scratchInt32, scratchUint8 } from "./scratch.js";
+import { scratchFloat64, scratchInt32 } from "./scratch.js";
 
 export interface LinearSolver {
   /**
@@ -96,7 +97,7 @@ export const denseLu: LinearSolverFactory = (n, pattern) => {
   return {
     factor(a) {
       if (!sym.valid && havePivots) {
-        buildSymbolic(n, into, ws.pivots, sym, scratchUint8("lu-mark", n * n), scratchInt32("lu-fill", n * n));
+        buildSymbolic(n, into, ws.pivots, sym, scratchInt32("lu-bits", 4 * n * bitWords(n)), scratchInt32("lu-fill", n * n));
         zeroed = false;
       }
       load(a, zeroed ? sym.fill : null);

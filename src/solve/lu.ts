@@ -206,42 +206,106 @@ export function createLuSymbolic(n: number, borrow?: { int32(slot: string, lengt
 /** The empty fill list of a symbolic structure not yet built. */
 const EMPTY_FILL = new Int32Array(0);
 
+/** 32-bit words of one row (or column) of a bit matrix over n unknowns. */
+export function bitWords(n: number): number {
+  return (n + 31) >>> 5;
+}
+
 /**
  * Builds `sym` for the pivot sequence `pivots` on the entries `pattern` (flat indices of every
- * possibly non-zero entry): the factorisation simulated on booleans, fill included. `mark` is
- * n² bytes of scratch; `fill` receives the entries outside the pattern it writes (n² Int32 of room).
+ * possibly non-zero entry): the factorisation simulated on bit sets, fill included. Each row and
+ * each column of "can be non-zero now" is a bit set, so every list comes from the set bits
+ * (ascending) and the work follows the entries, not the n² matrix. `bits` is scratch of
+ * 4·n·bitWords(n) words; `fill` receives the entries outside the pattern it writes (n² Int32 of room).
  */
-export function buildSymbolic(n: number, pattern: Int32Array, pivots: Int32Array, sym: LuSymbolic, mark: Uint8Array, fill: Int32Array): void {
+export function buildSymbolic(n: number, pattern: Int32Array, pivots: Int32Array, sym: LuSymbolic, bits: Int32Array, fill: Int32Array): void {
   const { colRows, colStart, swapCols, swapStart, rowCols, rowStart } = sym;
-  // Bit 1: can be non-zero now; bit 2: written at some point; bit 4: in the pattern.
-  mark.fill(0, 0, n * n);
-  for (let t = 0; t < pattern.length; t++) mark[pattern[t]!] = 7;
+  const w = bitWords(n);
+  const size = n * w;
+  // Row bit sets: rows[i·w …] can be non-zero now; written[i·w …] written at some point;
+  // inPattern[i·w …] in the pattern. cols[j·w …]: the rows that can be non-zero in column j.
+  const rows = bits.subarray(0, size);
+  const written = bits.subarray(size, 2 * size);
+  const inPattern = bits.subarray(2 * size, 3 * size);
+  const cols = bits.subarray(3 * size, 4 * size);
+  rows.fill(0);
+  cols.fill(0);
+  for (let t = 0; t < pattern.length; t++) {
+    const idx = pattern[t]!;
+    const i = (idx / n) | 0;
+    const j = idx - i * n;
+    rows[i * w + (j >>> 5)]! |= 1 << (j & 31);
+    cols[j * w + (i >>> 5)]! |= 1 << (i & 31);
+  }
+  inPattern.set(rows);
+  written.set(rows);
   let cc = 0;
   let sc = 0;
   let rc = 0;
   for (let k = 0; k < n; k++) {
-    const rk = k * n;
+    const rk = k * w;
+    const kw = k >>> 5;
+    const kb = 1 << (k & 31);
+    // Rows below the diagonal that can be non-zero in column k (before the exchange).
     colStart[k] = cc;
-    for (let i = k + 1; i < n; i++) if (mark[i * n + k]! & 1) colRows[cc++] = i;
+    const ck = k * w;
+    for (let v = kw; v < w; v++) {
+      // Bits above k only (rows k+1…).
+      // (kb << 1) − 1 covers bits 0…k of the word; for bit 31 it is −1, so nothing is kept.
+      let word = cols[ck + v]!;
+      if (v === kw) word &= ~((kb << 1) - 1);
+      while (word !== 0) {
+        const low = word & -word;
+        word ^= low;
+        colRows[cc++] = (v << 5) + 31 - Math.clz32(low);
+      }
+    }
     const p = pivots[k]!;
     sym.pivots[k] = p;
     swapStart[k] = sc;
     if (p !== k) {
-      const rp = p * n;
-      for (let j = k; j < n; j++) {
-        const mk = mark[rk + j]!;
-        const mp = mark[rp + j]!;
-        if ((mk | mp) & 1) {
-          swapCols[sc++] = j;
-          mark[rk + j] = (mp & 1) | 2 | (mk & 4);
-          mark[rp + j] = (mk & 1) | 2 | (mp & 4);
+      const rp = p * w;
+      const pw = p >>> 5;
+      const pb = 1 << (p & 31);
+      for (let v = kw; v < w; v++) {
+        // Columns k… only.
+        const keep = v === kw ? ~(kb - 1) : -1;
+        const mk = rows[rk + v]! & keep;
+        const mp = rows[rp + v]! & keep;
+        let both = mk | mp;
+        written[rk + v]! |= both;
+        written[rp + v]! |= both;
+        while (both !== 0) {
+          const low = both & -both;
+          both ^= low;
+          swapCols[sc++] = (v << 5) + 31 - Math.clz32(low);
         }
+        // The rows exchange these columns: where exactly one had an entry, both column bits flip.
+        let differ = mk ^ mp;
+        while (differ !== 0) {
+          const low = differ & -differ;
+          differ ^= low;
+          const j = (v << 5) + 31 - Math.clz32(low);
+          cols[j * w + kw]! ^= kb;
+          cols[j * w + pw]! ^= pb;
+        }
+        rows[rk + v] = (rows[rk + v]! & ~keep) | mp;
+        rows[rp + v] = (rows[rp + v]! & ~keep) | mk;
       }
     }
+    // Columns right of the diagonal that can be non-zero in row k after its exchange.
     rowStart[k] = rc;
-    for (let j = k + 1; j < n; j++) if (mark[rk + j]! & 1) rowCols[rc++] = j;
+    for (let v = kw; v < w; v++) {
+      let word = rows[rk + v]!;
+      if (v === kw) word &= ~((kb << 1) - 1);
+      while (word !== 0) {
+        const low = word & -word;
+        word ^= low;
+        rowCols[rc++] = (v << 5) + 31 - Math.clz32(low);
+      }
+    }
     // Rows eliminated at this step: the column's candidates, with the exchanged row p standing
-    // for row k when k had an entry in this column.
+    // for row k when k had an entry in this column; each gains the pivot row's columns (fill).
     const r0 = rowStart[k]!;
     for (let t = colStart[k]!; t <= cc; t++) {
       let r: number;
@@ -249,18 +313,39 @@ export function buildSymbolic(n: number, pattern: Int32Array, pivots: Int32Array
         r = colRows[t]!;
         if (r === p) continue;
       } else {
-        if (p === k || !(mark[p * n + k]! & 1)) break;
+        if (p === k || !(rows[p * w + kw]! & kb)) break;
         r = p;
       }
-      const ri = r * n;
-      for (let u = r0; u < rc; u++) mark[ri + rowCols[u]!]! |= 3;
+      const ri = r * w;
+      const rw = r >>> 5;
+      const rb = 1 << (r & 31);
+      for (let u = r0; u < rc; u++) {
+        const j = rowCols[u]!;
+        const at = ri + (j >>> 5);
+        const bit = 1 << (j & 31);
+        written[at]! |= bit;
+        if (!(rows[at]! & bit)) {
+          rows[at]! |= bit;
+          cols[j * w + rw]! |= rb;
+        }
+      }
     }
   }
   colStart[n] = cc;
   swapStart[n] = sc;
   rowStart[n] = rc;
   let count = 0;
-  for (let i = 0; i < n * n; i++) if ((mark[i]! & 6) === 2) fill[count++] = i;
+  for (let i = 0; i < n; i++) {
+    const ri = i * w;
+    for (let v = 0; v < w; v++) {
+      let word = written[ri + v]! & ~inPattern[ri + v]!;
+      while (word !== 0) {
+        const low = word & -word;
+        word ^= low;
+        fill[count++] = i * n + (v << 5) + 31 - Math.clz32(low);
+      }
+    }
+  }
   sym.fill = fill.subarray(0, count);
   sym.valid = true;
 }
