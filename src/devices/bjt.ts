@@ -48,8 +48,10 @@ class BjtInstance implements DeviceInstance {
   private readonly off: number[] = [-1, -1, -1, -1, -1, -1, -1, -1, -1];
   private offN = -1;
   // vbe and vbc of the last evaluation (limiting reference): double fields, which V8 updates in
-  // place (unlike a closure's variables), so the Newton loop allocates nothing.
-  private lastVbe: number;
+  // place (unlike a closure's variables), so the Newton loop allocates nothing. Each starts as
+  // a number: a field declared without a value starts as undefined, and V8 then boxes every
+  // double stored in it (one allocation per stamp).
+  private lastVbe = 0;
   private lastVbc = 0;
   // Scratch of one evaluation: currents and partial derivatives in normalised terms.
   private ic = 0;
