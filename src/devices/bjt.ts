@@ -61,21 +61,41 @@ class BjtInstance implements DeviceInstance {
   private ibVbe = 0;
   private ibVbc = 0;
 
+  // Model constants as fields declared with a number. A parameter property starts as undefined,
+  // so V8 would keep it as a boxed value, and the Newton loop, mixing it with computed doubles
+  // (vbe = vcrit on a first pass), would box a double per stamp.
+  private readonly p: number = 0;
+  private readonly saturationEdge: number = 0;
+  private readonly vt: number = 0;
+  private readonly is: number = 0;
+  private readonly betaF: number = 0;
+  private readonly betaR: number = 0;
+  private readonly va: number = 0;
+  private readonly vcrit: number = 0;
+
   constructor(
     readonly id: string,
     readonly kind: Bjt["kind"],
-    private readonly p: number,
+    p: number,
     private readonly col: Terminal,
     private readonly base: Terminal,
     private readonly emi: Terminal,
-    private readonly saturationEdge: number,
-    private readonly vt: number,
-    private readonly is: number,
-    private readonly betaF: number,
-    private readonly betaR: number,
-    private readonly va: number,
-    private readonly vcrit: number,
+    saturationEdge: number,
+    vt: number,
+    is: number,
+    betaF: number,
+    betaR: number,
+    va: number,
+    vcrit: number,
   ) {
+    this.p = p;
+    this.saturationEdge = saturationEdge;
+    this.vt = vt;
+    this.is = is;
+    this.betaF = betaF;
+    this.betaR = betaR;
+    this.va = va;
+    this.vcrit = vcrit;
     this.terminals = [col, base, emi];
     this.stampIndices = [col.index, base.index, emi.index];
     this.dcLinks = [

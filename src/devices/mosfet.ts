@@ -67,21 +67,39 @@ class MosInstance implements DeviceInstance {
   private vov = 0;
   private region: MosRegion = "cutoff";
 
+  // Model constants as fields declared with a number. A parameter property starts as undefined,
+  // so V8 would keep it as a boxed value, and the Newton loop, mixing it with computed doubles,
+  // may box a double per stamp.
+  private readonly p: number = 0;
+  private readonly vt0: number = 0;
+  private readonly beta: number = 0;
+  private readonly lambda: number = 0;
+  private readonly gamma: number = 0;
+  private readonly phi2: number = 0;
+  private readonly sqrtPhi2: number = 0;
+
   constructor(
     readonly id: string,
     readonly kind: Mosfet["kind"],
-    private readonly p: number,
+    p: number,
     private readonly dr: Terminal,
     private readonly gt: Terminal,
     private readonly sr: Terminal,
     private readonly bd: Terminal,
-    private readonly vt0: number,
-    private readonly beta: number,
-    private readonly lambda: number,
-    private readonly gamma: number,
-    private readonly phi2: number,
-    private readonly sqrtPhi2: number,
+    vt0: number,
+    beta: number,
+    lambda: number,
+    gamma: number,
+    phi2: number,
+    sqrtPhi2: number,
   ) {
+    this.p = p;
+    this.vt0 = vt0;
+    this.beta = beta;
+    this.lambda = lambda;
+    this.gamma = gamma;
+    this.phi2 = phi2;
+    this.sqrtPhi2 = sqrtPhi2;
     this.terminals = [dr, gt, sr, bd];
     this.stampIndices = [dr.index, gt.index, sr.index, bd.index];
     this.dcLinks = [[dr, sr]];
