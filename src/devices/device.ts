@@ -44,17 +44,23 @@ export interface StampTarget {
   readonly touched?: TouchedList;
 }
 
-/** Flat indices written by static stamps, in a typed array that grows as needed (no boxing, no array growth per push). */
+/**
+ * Flat indices written by static stamps, each with its row (pairs [k, row]: the row saves a
+ * division per entry later), in a typed array that grows as needed (no boxing, no array growth per entry).
+ */
 export class TouchedList {
+  /** Entries recorded (pairs). */
   count = 0;
   constructor(public list: Int32Array) {}
-  add(k: number): void {
-    if (this.count === this.list.length) {
-      const bigger = new Int32Array(2 * this.list.length + 16);
+  add(k: number, row: number): void {
+    if (2 * this.count + 2 > this.list.length) {
+      const bigger = new Int32Array(2 * this.list.length + 32);
       bigger.set(this.list);
       this.list = bigger;
     }
-    this.list[this.count++] = k;
+    this.list[2 * this.count] = k;
+    this.list[2 * this.count + 1] = row;
+    this.count++;
   }
 }
 
@@ -107,7 +113,7 @@ export function addA(m: StampTarget, row: number, col: number, v: number): void 
   if (row >= 0 && col >= 0) {
     const k = row * m.n + col;
     m.a[k]! += v;
-    m.touched?.add(k);
+    m.touched?.add(k, row);
   }
 }
 

@@ -152,10 +152,10 @@ export function compilePlan(circuit: Circuit): CompileResult {
   const xSpare = scratchFloat64("plan-x-spare", n);
   aStatic.fill(0);
   bSource.fill(0);
-  // Large systems record where the static stamps write (see stampPattern); small ones scan.
-  // Room for the usual four entries per device; a device kind with more makes the list grow.
-  const touched = n >= PATTERN_SCAN_MAX_UNKNOWNS ? new TouchedList(scratchInt32("plan-touched", 4 * devices.length + 16)) : undefined;
-  const staticTarget: StampTarget = touched ? { a: aStatic, b: bSource, n, touched } : { a: aStatic, b: bSource, n };
+  // The static stamps record where they write (see stampPattern). Room for the usual four
+  // entries per device; a device kind with more makes the list grow.
+  const touched = new TouchedList(scratchInt32("plan-touched", 2 * (4 * devices.length + 16)));
+  const staticTarget: StampTarget = { a: aStatic, b: bSource, n, touched };
   for (const d of devices) {
     d.stampStatic?.(staticTarget);
     d.stampSource?.(bSource);
@@ -164,7 +164,9 @@ export function compilePlan(circuit: Circuit): CompileResult {
   const isNodeRow = scratchUint8("plan-node-rows", n);
   for (let i = 0; i < n; i++) isNodeRow[i] = unknowns[i]!.kind === "branch" ? 0 : 1;
   const patternRowStart = scratchInt32("plan-pattern-rows", n + 1);
-  const pattern = stampPattern(n, aStatic, touched, isNodeRow, devices, patternRowStart);
+  const nonlinear: DeviceInstance[] = [];
+  for (let k = 0; k < devices.length; k++) if (devices[k]!.nonlinear) nonlinear.push(devices[k]!);
+  const pattern = stampPattern(n, aStatic, touched, isNodeRow, nonlinear, patternRowStart);
   return {
     ok: true,
     plan: {
@@ -175,7 +177,7 @@ export function compilePlan(circuit: Circuit): CompileResult {
       nodeNames,
       nodeSlots,
       devices,
-      nonlinear: devices.filter((d) => d.nonlinear),
+      nonlinear,
       aStatic,
       bSource,
       a,
@@ -192,39 +194,32 @@ export function compilePlan(circuit: Circuit): CompileResult {
 }
 
 /**
- * Below this many unknowns the stamp pattern is found by scanning all n² entries; from it on,
- * from the entries the static stamps wrote. Both give the same pattern. Measured on the bench
- * chains: the scan is ~1 µs cheaper per solve at 11 and 32 unknowns (recording costs more than
- * scanning a few hundred entries; with the record in a typed list the two are about even
- * there), the candidate list ~15 µs cheaper at 101 and ~130 µs at 302.
- */
-export const PATTERN_SCAN_MAX_UNKNOWNS = 64;
-
-/**
  * The pattern in ascending flat-index order; rowStart[i] receives where row i begins in it.
  * An entry belongs to it when it is a node row's diagonal (gmin), a pair of a nonlinear
  * device's stamp indices, or a static entry that ended up non-zero. `touched` lists every
- * entry the static stamps wrote; without it all n² entries are scanned.
+ * entry the static stamps wrote, with its row, so the work follows the stamps rather than the
+ * n² entries and needs no division. (A scan of all n² entries was as fast at 11 unknowns and
+ * slower from 32 on.)
  */
 function stampPattern(
   n: number,
   aStatic: Float64Array,
-  touched: TouchedList | undefined,
+  touched: TouchedList,
   isNodeRow: Uint8Array,
-  devices: readonly DeviceInstance[],
+  nonlinear: readonly DeviceInstance[],
   rowStart: Int32Array,
 ): Int32Array {
-  if (!touched) return scanPattern(n, aStatic, isNodeRow, devices, rowStart);
   const list = touched.list;
   const listed = touched.count;
   let bound = n + listed;
-  for (let d = 0; d < devices.length; d++) {
-    const k = devices[d]!.stampIndices?.length ?? 0;
+  for (let d = 0; d < nonlinear.length; d++) {
+    const k = nonlinear[d]!.stampIndices?.length ?? 0;
     bound += k * k;
   }
   const mark = scratchUint8("pattern-mark", n * n);
   mark.fill(0);
   const cand = scratchInt32("pattern-candidates", bound);
+  const candRow = scratchInt32("pattern-candidate-rows", bound);
   rowStart.fill(0);
   let count = 0;
   // rowStart[r + 1] counts row r's entries for now.
@@ -232,12 +227,13 @@ function stampPattern(
     const idx = i * n + i;
     if (isNodeRow[i] && !mark[idx]) {
       mark[idx] = 1;
-      cand[count++] = idx;
+      cand[count] = idx;
+      candRow[count++] = i;
       rowStart[i + 1]!++;
     }
   }
-  for (let d = 0; d < devices.length; d++) {
-    const idx = devices[d]!.stampIndices;
+  for (let d = 0; d < nonlinear.length; d++) {
+    const idx = nonlinear[d]!.stampIndices;
     if (!idx) continue;
     for (let p = 0; p < idx.length; p++) {
       const r = idx[p]!;
@@ -248,33 +244,34 @@ function stampPattern(
         const at = r * n + c;
         if (mark[at]) continue;
         mark[at] = 1;
-        cand[count++] = at;
+        cand[count] = at;
+        candRow[count++] = r;
         rowStart[r + 1]!++;
       }
     }
   }
   for (let t = 0; t < listed; t++) {
-    const at = list[t]!;
+    const at = list[2 * t]!;
     if (mark[at] || aStatic[at] === 0) continue;
+    const r = list[2 * t + 1]!;
     mark[at] = 1;
-    cand[count++] = at;
-    rowStart[Math.floor(at / n) + 1]!++;
+    cand[count] = at;
+    candRow[count++] = r;
+    rowStart[r + 1]!++;
   }
   for (let i = 0; i < n; i++) rowStart[i + 1]! += rowStart[i]!;
   const found = scratchInt32("pattern", count);
   const next = scratchInt32("pattern-next", n);
   for (let i = 0; i < n; i++) next[i] = rowStart[i]!;
-  for (let t = 0; t < count; t++) {
-    const at = cand[t]!;
-    found[next[Math.floor(at / n)]!++] = at;
-  }
+  for (let t = 0; t < count; t++) found[next[candRow[t]!]!++] = cand[t]!;
   // Insertion sort within each row: rows hold a handful of entries.
   for (let i = 0; i < n; i++) {
+    const start = rowStart[i]!;
     const end = rowStart[i + 1]!;
-    for (let p = rowStart[i]! + 1; p < end; p++) {
+    for (let p = start + 1; p < end; p++) {
       const v = found[p]!;
       let q = p - 1;
-      while (q >= rowStart[i]! && found[q]! > v) {
+      while (q >= start && found[q]! > v) {
         found[q + 1] = found[q]!;
         q--;
       }
@@ -282,29 +279,6 @@ function stampPattern(
     }
   }
   return found;
-}
-
-/** stampPattern by a scan of every entry (cheapest for small systems). */
-function scanPattern(n: number, aStatic: Float64Array, isNodeRow: Uint8Array, devices: readonly DeviceInstance[], rowStart: Int32Array): Int32Array {
-  const nn = n * n;
-  const mark = scratchUint8("pattern-mark", nn);
-  mark.fill(0);
-  for (let i = 0; i < n; i++) if (isNodeRow[i]) mark[i * n + i] = 1;
-  for (const d of devices) {
-    const idx = d.stampIndices;
-    if (!idx) continue;
-    for (const r of idx) if (r >= 0) for (const c of idx) if (c >= 0) mark[r * n + c] = 1;
-  }
-  const found = scratchInt32("pattern", nn);
-  let count = 0;
-  for (let i = 0; i < n; i++) {
-    rowStart[i] = count;
-    const row = i * n;
-    for (let idx = row; idx < row + n; idx++) if (mark[idx] || aStatic[idx] !== 0) found[count++] = idx;
-  }
-  rowStart[n] = count;
-  // The first `count` entries of the same slot (a view the scratch can hand out again).
-  return scratchInt32("pattern", count);
 }
 
 /** Human name of an unknown for messages: "node `b`", "the branch of VCC", "node `D1#junction`". */
