@@ -68,7 +68,8 @@ export function findFloatingNodes(plan: Plan): Diagnosis | undefined {
   }
   const groundRoot = uf.find(plan.n);
   let floating: string[] | undefined;
-  for (const [nd, i] of plan.nodeIndex) if (uf.find(i) !== groundRoot) (floating ??= []).push(nd);
+  const { nodeNames, nodeSlots } = plan;
+  for (let k = 0; k < nodeNames.length; k++) if (uf.find(nodeSlots[k]!) !== groundRoot) (floating ??= []).push(nodeNames[k]!);
   if (floating === undefined) return undefined;
   floating.sort();
   const set = new Set(floating);
