@@ -17,8 +17,10 @@ import { scratchFloat64, scratchInt32 } from "./scratch.js";
 
 export interface LinearSolver {
   /**
-   * Factors a (n×n, row-major); may overwrite it (the Newton loop restores a before it stamps
-   * again). Returns −1, or the first column (unknown) found without a pivot.
+   * Factors a (n×n, row-major). Below PATTERN_RESTORE_MIN_UNKNOWNS it may overwrite a (the
+   * Newton loop copies all of a before it stamps again); from there on it must leave a
+   * unchanged (the loop restores only the stamp pattern). Returns −1, or the first column
+   * (unknown) found without a pivot.
    */
   factor(a: Float64Array): number;
   /** Solves with the last factorisation; x holds the right-hand side on entry and the solution on exit. */
@@ -43,7 +45,8 @@ export const STRUCTURED_MIN_UNKNOWNS = 24;
 export const denseLu: LinearSolverFactory = (n, pattern) => {
   const ws = createLuWorkspace(n, { int32: scratchInt32, float64: scratchFloat64 });
   if (!pattern || n < STRUCTURED_MIN_UNKNOWNS) {
-    // Small systems: factored in place in the given order, as scanning n² entries is cheap.
+    // Small systems: factored in place in the given order, as scanning n² entries is cheap
+    // (allowed: n < STRUCTURED_MIN_UNKNOWNS ≤ PATTERN_RESTORE_MIN_UNKNOWNS).
     let factored: Float64Array | undefined;
     return {
       factor(a) {
