@@ -100,13 +100,22 @@ export const mathjsLinearSolver: LinearSolverFactory = (n) => {
 
 /** A batch lasts at least this long, ms, so the clock's resolution does not matter. */
 const BATCH_MS = 2;
+/**
+ * Each measurement first runs its solve for this long, ms, untimed. The engine optimises the
+ * solver's functions only after some thousands of calls (60–100 ms of 10-node solves here, longer
+ * when the other core is busy); timed from the first call, whichever loop is measured first
+ * (ours, at 10 nodes) would have its median taken partly from unoptimised code.
+ */
+const WARMUP_MS = 150;
 
 /**
  * Median over timed batches of the time per call, µs: wall clock, and the process's CPU time
  * (user + system), which other processes on a busy machine inflate much less.
  */
 function medianMicros(run: () => void): { wall: number; cpu: number; best: number; runs: number } {
-  run(); // warm-up (JIT)
+  const warm = performance.now();
+  do run(); // warm-up (JIT), the same for both loops
+  while (performance.now() - warm < WARMUP_MS);
   let batch = 1;
   for (;;) {
     const t0 = performance.now();
