@@ -1,6 +1,7 @@
 // Reading one field of the parsed file: values, expressions, tolerances and spreads, each error
 // placed at the field's line and column.
 import { checkExpression, evaluateChecked, isExpression } from "./expressions.js";
+import { circuitSubject } from "./messages.js";
 import { positionOf, type PathSegment, type PositionedDocument } from "./positions.js";
 import type { InputError, SourcePos, Spread, Toleranced } from "./types.js";
 import { parseFraction, parseSignedPercent, parseValue, type Quantity } from "./values.js";
@@ -11,7 +12,11 @@ export class ResolveContext {
   readonly warnings: InputError[] = [];
   parameters: ReadonlyMap<string, number> = new Map();
 
-  constructor(readonly positioned: PositionedDocument) {}
+  /** `root` is the parsed file: a problem inside a component, model or spec names it as its part. */
+  constructor(
+    readonly positioned: PositionedDocument,
+    private readonly root?: unknown,
+  ) {}
 
   get file(): string {
     return this.positioned.file;
@@ -23,7 +28,8 @@ export class ResolveContext {
 
   private problem(path: readonly PathSegment[], message: string, hint?: string, extra: Partial<InputError> = {}): InputError {
     const p = this.pos(path);
-    return { file: this.file, line: p.line, column: p.column, message, ...(hint ? { hint } : {}), ...extra };
+    const part = extra.parts === undefined && this.root !== undefined ? circuitSubject(path, this.root) : undefined;
+    return { file: this.file, line: p.line, column: p.column, message, ...(hint ? { hint } : {}), ...(part ? { parts: [part] } : {}), ...extra };
   }
 
   error(path: readonly PathSegment[], message: string, hint?: string, extra: Partial<InputError> = {}): void {

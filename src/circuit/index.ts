@@ -47,7 +47,7 @@ export function loadCircuitText(text: string, file: string): LoadResult {
   }
   const schemaErrors = validateWithSchema(loadCircuitSchema(), root, parsed.positioned, { describe: describeCircuitPath, rewrite: rewriteCircuitError, subject: circuitSubject });
   if (schemaErrors.length) return { ok: false, errors: [...schemaErrors].sort(byPosition) };
-  const ctx = new ResolveContext(parsed.positioned);
+  const ctx = new ResolveContext(parsed.positioned, root);
   const circuit = resolveCircuit(ctx, root);
   if (ctx.errors.length) return { ok: false, errors: [...ctx.errors].sort(byPosition) };
   const topo = checkTopology(circuit);

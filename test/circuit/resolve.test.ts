@@ -132,6 +132,12 @@ describe("specs", () => {
 });
 
 describe("positions and immutability", () => {
+  it("a value problem names its component or model as the part (the finding's subject)", () => {
+    const wrongUnit = errorsOf(yaml(`${VCC}  - { id: R2, kind: resistor, pins: [vcc, gnd], value: 10 uF }\n`));
+    expect(wrongUnit[0]).toMatchObject({ line: 5, parts: ["R2"] });
+    const badModel = errorsOf(yaml(BIAS, "models:\n  q: { kind: npn, beta: 200 V, saturationCurrent: 1e-14 A }\n"));
+    expect(badModel[0]!.parts).toEqual(["q"]);
+  });
   it("every component carries its line and column", () => {
     const c = load(yaml(BIAS, NPN), "boards/amp.yaml");
     expect(c.components.map((x) => [x.id, x.pos.line, x.pos.column])).toEqual([
