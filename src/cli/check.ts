@@ -134,11 +134,12 @@ function progressWriter(io: CliIo): (done: number, total: number) => void {
   };
 }
 
-function parseJobs(value: unknown): number {
-  if (value === undefined) return availableParallelism();
+/** `--jobs N` as given, or (auto) one lane per core at most, added only where they pay (pool.ts). */
+function parseJobs(value: unknown): { jobs: number; auto: boolean } {
+  if (value === undefined) return { jobs: availableParallelism(), auto: true };
   const n = Number(value);
   if (!Number.isInteger(n) || n < 1) throw new CliExit(EXIT_INPUT, `--jobs ${String(value)}: expected a whole number of 1 or more`);
-  return n;
+  return { jobs: n, auto: false };
 }
 
 function stringList(value: unknown): string[] {
@@ -179,7 +180,7 @@ export const checkCommand: CommandSpec = {
       .option("markdown", { type: "string", describe: "Write the markdown report to PATH" })
       .option("sarif", { type: "string", describe: "Write SARIF 2.1.0 to PATH (code-scanning upload)" })
       .option("baseline", { type: "string", describe: "Compare with an earlier results document (e.g. from the target branch)" })
-      .option("jobs", { type: "number", describe: "Worker threads (default: the number of cores)" })
+      .option("jobs", { type: "number", describe: "Files are checked by this process and N − 1 worker threads (default: up to one per core, one per 2,000 files)" })
       .option("shard", { type: "string", describe: "Check only slice k of n of the sorted files (k/n, e.g. 2/4)" })
       .option("quiet", { type: "boolean", alias: "q", default: false, describe: "Print only failures and the verdict line" })
       .option("config", { type: "string", describe: "Config file (default: opgate.config.yaml found walking up)" })
@@ -198,7 +199,7 @@ export const checkCommand: CommandSpec = {
       .example("$0 check --baseline main-results.json", "Show what changed against an earlier run")
       .example("$0 check --rule headroom=off --jobs 4", "Turn a rule off and use four threads"),
   handler: async (args, io: CliIo) => {
-    const jobs = parseJobs(args.jobs);
+    const { jobs, auto: autoJobs } = parseJobs(args.jobs);
     let shard: Shard | undefined;
     if (typeof args.shard === "string") {
       const parsed = parseShard(args.shard);
@@ -230,6 +231,7 @@ export const checkCommand: CommandSpec = {
       ctx,
       contextOptions,
       jobs,
+      autoJobs,
       ...(shard ? { shard } : {}),
       ...(args.timestamp === true ? { timestamp: new Date().toISOString() } : {}),
       ...(showProgress ? { onProgress: progressWriter(io) } : {}),

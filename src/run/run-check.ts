@@ -13,6 +13,8 @@ export interface RunOptions {
   readonly ctx: CheckContext;
   readonly contextOptions: CheckContextOptions;
   readonly jobs: number;
+  /** See PoolOptions.autoJobs. */
+  readonly autoJobs?: boolean;
   readonly shard?: Shard;
   /** ISO time to record in the document (only when the user asked for it). */
   readonly timestamp?: string;
@@ -30,6 +32,7 @@ export async function runCheck(allFiles: readonly CircuitFile[], options: RunOpt
   const files = options.shard ? selectShard(allFiles, options.shard) : [...allFiles];
   const circuits = await checkFiles(files, {
     jobs: options.jobs,
+    ...(options.autoJobs ? { autoJobs: true } : {}),
     context: options.contextOptions,
     ctx: options.ctx,
     ...(options.onProgress ? { onProgress: options.onProgress } : {}),

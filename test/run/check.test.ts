@@ -65,6 +65,20 @@ describe("opgate check", () => {
     }
   }, 120_000);
 
+  it("adds workers on its own only where they pay, and always when --jobs asks for them", async () => {
+    const { checkFiles } = await import("../../src/run/pool.js");
+    const { makeCheckContext } = await import("../../src/run/context.js");
+    const { discoverCircuitFiles } = await import("../../src/run/discover.js");
+    const ctx = await makeCheckContext({ cwd: repo.dir });
+    const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude });
+    // A worker would crash on this file: a run in which it checks fine used no worker.
+    const victim = files[1]!.display;
+    const auto = await checkFiles(files, { jobs: 2, autoJobs: true, context: { cwd: repo.dir }, ctx, crashOn: victim });
+    expect(auto.filter((r) => r.findings.some((f) => f.rule === "internal"))).toHaveLength(0);
+    const asked = await checkFiles(files, { jobs: 2, mainThreadLane: false, context: { cwd: repo.dir }, ctx, crashOn: victim });
+    expect(asked[1]!.findings[0]!.rule).toBe("internal");
+  }, 120_000);
+
   it.each(["process", "thread"] as const)("reports a dead worker (%s) as an error for its file and finishes the rest", async (lanes) => {
     const { checkFiles } = await import("../../src/run/pool.js");
     const { makeCheckContext } = await import("../../src/run/context.js");
