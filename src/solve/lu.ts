@@ -212,6 +212,26 @@ export function bitWords(n: number): number {
 }
 
 /**
+ * Appends to `out` (from `at`) the indices above `k` set in the bit set of `w` words at
+ * `set[base…]`, in increasing order; returns the new end. (kb << 1) − 1 covers bits 0…k of k's
+ * word; for bit 31 it is −1, so nothing of that word is kept.
+ */
+function listBitsAfter(set: Int32Array, base: number, k: number, w: number, out: Int32Array, at: number): number {
+  const kw = k >>> 5;
+  const kb = 1 << (k & 31);
+  for (let v = kw; v < w; v++) {
+    let word = set[base + v]!;
+    if (v === kw) word &= ~((kb << 1) - 1);
+    while (word !== 0) {
+      const low = word & -word;
+      word ^= low;
+      out[at++] = (v << 5) + 31 - Math.clz32(low);
+    }
+  }
+  return at;
+}
+
+/**
  * Builds `sym` for the pivot sequence `pivots` on the entries `pattern` (flat indices of every
  * possibly non-zero entry): the factorisation simulated on bit sets, fill included. Each row and
  * each column of "can be non-zero now" is a bit set, so every list comes from the set bits
@@ -248,18 +268,7 @@ export function buildSymbolic(n: number, pattern: Int32Array, pivots: Int32Array
     const kb = 1 << (k & 31);
     // Rows below the diagonal that can be non-zero in column k (before the exchange).
     colStart[k] = cc;
-    const ck = k * w;
-    for (let v = kw; v < w; v++) {
-      // Bits above k only (rows k+1…).
-      // (kb << 1) − 1 covers bits 0…k of the word; for bit 31 it is −1, so nothing is kept.
-      let word = cols[ck + v]!;
-      if (v === kw) word &= ~((kb << 1) - 1);
-      while (word !== 0) {
-        const low = word & -word;
-        word ^= low;
-        colRows[cc++] = (v << 5) + 31 - Math.clz32(low);
-      }
-    }
+    cc = listBitsAfter(cols, k * w, k, w, colRows, cc);
     const p = pivots[k]!;
     sym.pivots[k] = p;
     swapStart[k] = sc;
@@ -295,15 +304,7 @@ export function buildSymbolic(n: number, pattern: Int32Array, pivots: Int32Array
     }
     // Columns right of the diagonal that can be non-zero in row k after its exchange.
     rowStart[k] = rc;
-    for (let v = kw; v < w; v++) {
-      let word = rows[rk + v]!;
-      if (v === kw) word &= ~((kb << 1) - 1);
-      while (word !== 0) {
-        const low = word & -word;
-        word ^= low;
-        rowCols[rc++] = (v << 5) + 31 - Math.clz32(low);
-      }
-    }
+    rc = listBitsAfter(rows, rk, k, w, rowCols, rc);
     // Rows eliminated at this step: the column's candidates, with the exchanged row p standing
     // for row k when k had an entry in this column; each gains the pivot row's columns (fill).
     const r0 = rowStart[k]!;
