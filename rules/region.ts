@@ -1,7 +1,9 @@
 // Rule `region`: every transistor sits in the region its spec names, or in the amplifying
 // region (BJT active, MOSFET saturation) when the spec names none.
 import { defineRule } from "../src/review/rule.js";
-import { intendedRegion, isTransistorKind, REGIONS } from "../src/review/quantities.js";
+import type { BjtPoint, MosPoint } from "../src/solve/types.js";
+import type { Bjt, Mosfet } from "../src/circuit/types.js";
+import { intendedRegion, isTransistorKind, regionMargin, REGIONS } from "../src/review/quantities.js";
 
 export default defineRule({
   id: "region",
@@ -32,10 +34,19 @@ meant to switch, name its region in specs.devices.`,
           hint: `use one of: ${REGIONS[c.kind].join(", ")}`,
           ...(spec ? { pos: spec.pos } : {}),
         });
-      } else if (point.region === wanted) {
-        report.pass(c.id);
       } else {
+        const model = circuit.models.get((c as Bjt | Mosfet).model);
+        const edge = model && (model.kind === "npn" || model.kind === "pnp") ? model.saturationEdge : 0;
+        const margin = regionMargin(point as BjtPoint | MosPoint, wanted, edge);
+        // Signed distance into the wanted region (V), bounded below by 0: the worst scenario of a
+        // region finding is the one deepest outside, not the first one found.
+        const check = margin === null ? {} : { measured: margin, limit: 0, unit: "V", bound: "min" as const };
+        if (point.region === wanted) {
+          report.pass(c.id, check);
+          continue;
+        }
         report.fail({
+          ...check,
           subject: c.id,
           message: `${c.id} (${c.kind}) is in ${point.region}, expected ${wanted}${spec?.region ? " (specs.devices)" : " (its amplifying region)"}`,
           hint: wanted === REGIONS[c.kind][0] ? "re-bias the stage so that it amplifies, or name the intended region in specs.devices" : "re-bias the device into the region its spec names",

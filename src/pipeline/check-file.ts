@@ -1,15 +1,14 @@
-// One circuit file through every stage: load → scenarios → bias solve → small-signal → rules,
+// One circuit file through every stage: load → (streamed) scenarios → bias solve → small-signal → rules,
 // gathered into the file's entry of the results document. Never throws for a bad file.
 import type { CircuitResult, Finding, RuleEntry, Severity } from "../report/document.js";
 import type { ResolvedConfig } from "../review/config-types.js";
 import type { ConfiguredRule } from "../review/engine.js";
-import { runRules } from "../review/engine.js";
+import { quantityKey, RuleSession } from "../review/engine.js";
+import { sensitivityHint } from "../review/hints.js";
+import { sensitivityEntries } from "../variation/sensitivity.js";
+import { BUDGET_RULE, runVariation } from "./variation.js";
 import { loadCircuitFile } from "../circuit/index.js";
 import type { Circuit, InputError } from "../circuit/types.js";
-import { solveOperatingPoint } from "../solve/index.js";
-import { analyseSmallSignal } from "../smallsignal/index.js";
-import { buildScenarios } from "../variation/index.js";
-import type { ScenarioAnalysis } from "./types.js";
 import { gainEntries, operatingPointEntry } from "./entries.js";
 
 /** Everything a check needs besides the file; built once per process (or worker). */
@@ -68,30 +67,58 @@ function errorResult(file: string, name: string | null, findings: Finding[]): Ci
   return { file, name, status: "error", operatingPoint: null, gains: [], scenarios: [], findings, passed: [] };
 }
 
-/** Solves and linearises one scenario; a throw inside a stage becomes a solve failure, not a crash. */
-function analyse(scenario: ScenarioAnalysis["scenario"]): ScenarioAnalysis {
-  try {
-    const solve = solveOperatingPoint(scenario.circuit);
-    const smallSignal = solve.ok ? analyseSmallSignal(scenario.circuit, solve) : null;
-    return { scenario, solve, smallSignal };
-  } catch (err) {
-    const reason = `internal error while solving: ${err instanceof Error ? err.message : String(err)}`;
-    return {
-      scenario,
-      solve: { ok: false, reason, parts: [], nodes: [], stats: { iterations: 0, residual: NaN, aid: "none" } },
-      smallSignal: null,
-    };
+/** The word a hint uses for a rule's quantity. */
+function quantityWord(rule: string, unit: string | null): string {
+  switch (rule) {
+    case "headroom":
+      return "headroom";
+    case "region":
+      return "region margin";
+    case "device-power":
+    case "resistor-power":
+      return "dissipation";
+    case "device-current":
+      return "current";
+    case "supply-budget":
+      return unit === "W" ? "supply power" : "supply current";
+    case "capacitor-voltage":
+      return "voltage";
+    case "gain-window":
+      return "gain";
+    default:
+      return unit === "dB" ? "deviation" : "value";
   }
 }
 
+/** The most sensitivities a finding carries (largest effect first). */
+const FINDING_SENSITIVITIES = 12;
+
 /** Checks an already loaded circuit (also used by tests and the rule tester). */
 export async function checkCircuit(circuit: Circuit, ctx: CheckContext, displayPath: string): Promise<CircuitResult> {
-  const scenarios = buildScenarios(circuit, ctx.config.variation);
-  const analyses = scenarios.map(analyse);
-  const { findings, passed } = await runRules({ circuit, analyses, rules: ctx.configured });
-  const located = [...fileWarningFindings(circuit.warnings, displayPath), ...findings.map((f) => ({ ...f, file: displayPath }))];
-  const nominal = analyses[0]!;
+  const session = new RuleSession({ circuit, rules: ctx.configured });
   const failOn = ctx.config.failOn;
+  const v = await runVariation(circuit, ctx.config.variation, session, SEVERITY_RANK[failOn]);
+  const { findings, passed } = session.finish();
+  const bands = new Map(v.parameters.map((p) => [p.key, p]));
+  const decorated = findings.map((f): Finding => {
+    const corner = v.cornerOf(f.scenario);
+    const key = quantityKey(f.rule, f.subject, f.unit);
+    const entries = v.table ? sensitivityEntries(v.table, key) : [];
+    let hint = f.hint;
+    if (entries.length && f.measured !== null && f.limit !== null) hint = sensitivityHint({ measured: f.measured, limit: f.limit, unit: f.unit, quantity: quantityWord(f.rule, f.unit), entries, bands }) ?? hint;
+    return {
+      ...f,
+      file: displayPath,
+      ...(hint ? { hint } : {}),
+      ...(corner ? { corner } : {}),
+      ...(entries.length ? { sensitivities: entries.slice(0, FINDING_SENSITIVITIES) } : {}),
+    };
+  });
+  const budget = v.budget.map(
+    (b): Finding => ({ rule: BUDGET_RULE, severity: "warning", subject: circuit.name, message: b.message, measured: null, limit: null, unit: null, margin: null, scenario: "nominal", file: displayPath, line: circuit.pos.line, column: circuit.pos.column, hint: b.hint }),
+  );
+  const located = [...fileWarningFindings(circuit.warnings, displayPath), ...budget, ...decorated];
+  const nominal = v.nominal;
   const status = !nominal.solve.ok
     ? "error"
     : located.some((f) => reachesFailOn(f.severity, failOn))
@@ -103,9 +130,11 @@ export async function checkCircuit(circuit: Circuit, ctx: CheckContext, displayP
     status,
     operatingPoint: nominal.solve.ok ? operatingPointEntry(nominal.solve) : null,
     gains: nominal.smallSignal ? gainEntries(circuit, nominal.smallSignal) : [],
-    scenarios: analyses.map((a) => ({ id: a.scenario.id, label: a.scenario.label, converged: a.solve.ok })),
+    scenarios: v.scenarios,
     findings: located,
     passed,
+    ...(v.summary ? { variation: v.summary } : {}),
+    ...(v.monteCarlo ? { monteCarlo: v.monteCarlo } : {}),
   };
 }
 

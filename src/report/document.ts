@@ -20,8 +20,91 @@ export interface Finding {
   readonly file: string;
   readonly line: number;
   readonly column: number;
-  /** How to fix it, from the rule. */
+  /** How to fix it: from the sensitivities when they name a part, else the rule's own advice. */
   readonly hint?: string;
+  /** The worst scenario as its parameter set (when it is a corner or a Monte Carlo sample). */
+  readonly corner?: CornerEntry;
+  /** How the failing quantity moves with each parameter (worst-case mode), largest effect first. */
+  readonly sensitivities?: readonly SensitivityEntry[];
+}
+
+/** One parameter's value in a scenario. */
+export interface ParameterSettingEntry {
+  /** "R1.value", "small-npn.beta", "temperature". */
+  readonly parameter: string;
+  /** "R1", "β(small-npn)", "temperature". */
+  readonly name: string;
+  /** SI (kelvin for temperature). */
+  readonly value: number;
+  readonly at: "min" | "max" | "value";
+  /** Component values: deviation from nominal, %. */
+  readonly percent?: number;
+}
+
+/** A scenario as its parameter set; parameters at nominal are left out. */
+export interface CornerEntry {
+  /** Compactly: "R1 −1 %, R2 +1 %, RC +5 %, β(small-npn) min, 60 °C". */
+  readonly label: string;
+  readonly parameters: readonly ParameterSettingEntry[];
+}
+
+export interface SensitivityEntry {
+  readonly parameter: string;
+  readonly name: string;
+  /** ∂quantity/∂parameter, SI (per kelvin for temperature). */
+  readonly derivative: number;
+  /** % change of the quantity per % of the parameter; null for temperature or a zero quantity. */
+  readonly normalised: number | null;
+  /** Change per °C (temperature only). */
+  readonly perDegree: number | null;
+  /** Linear change of the quantity at the low and high ends of the parameter's band. */
+  readonly low: number;
+  readonly high: number;
+}
+
+/** What the worst-case analysis of a circuit cost. */
+export interface VariationEntry {
+  readonly method: "worst-case";
+  readonly parameters: number;
+  readonly variedParameters: number;
+  readonly quantities: number;
+  /** Every analysis (bias solve + small-signal + rules) run for variation. */
+  readonly analyses: number;
+  readonly sensitivityAnalyses: number;
+  /** Distinct corners judged. */
+  readonly corners: number;
+  readonly refinementAnalyses: number;
+  readonly refinedQuantities: number;
+}
+
+export interface DistributionEntry {
+  readonly rule: string;
+  readonly subject: string;
+  readonly unit: string | null;
+  readonly samples: number;
+  readonly min: number;
+  readonly p1: number;
+  readonly median: number;
+  readonly p99: number;
+  readonly max: number;
+  readonly mean: number;
+  readonly sigma: number;
+}
+
+export interface MonteCarloEntry {
+  readonly samples: number;
+  readonly seed: number;
+  /** Samples with a finding at or above failOn (non-converged samples included). */
+  readonly failed: number;
+  readonly nonConverged: number;
+  /** Fraction of samples without a finding at or above failOn. */
+  readonly yield: number;
+  readonly interval: { readonly method: "Wilson score"; readonly level: number; readonly low: number; readonly high: number };
+  /** Newton iterations over all samples. */
+  readonly iterations: number;
+  /** The sample with the lowest margin of any check. */
+  readonly worstSample: ({ readonly scenario: string; readonly lowestMargin: number | null } & CornerEntry) | null;
+  readonly quantities: readonly DistributionEntry[];
 }
 
 /** A rule × subject that was checked and passed (JUnit keeps passing cases). */
@@ -86,6 +169,10 @@ export interface CircuitResult {
   readonly scenarios: readonly ScenarioEntry[];
   readonly findings: readonly Finding[];
   readonly passed: readonly PassedCheck[];
+  /** Worst-case analysis cost (corners mode). */
+  readonly variation?: VariationEntry;
+  /** Monte Carlo yield and distributions (monte-carlo mode). */
+  readonly monteCarlo?: MonteCarloEntry;
 }
 
 export interface RuleEntry {

@@ -11,8 +11,22 @@ interface Shape {
   readonly children?: Readonly<Record<string, Shape | { readonly items: Shape } | { readonly record: Shape }>>;
 }
 
+const SETTING: Shape = { keys: ["parameter", "name", "value", "at", "percent"] };
+const CORNER: Shape = { keys: ["label", "parameters"], children: { parameters: { items: SETTING } } };
 const FINDING: Shape = {
-  keys: ["rule", "severity", "subject", "message", "measured", "limit", "unit", "margin", "scenario", "file", "line", "column", "hint"],
+  keys: ["rule", "severity", "subject", "message", "measured", "limit", "unit", "margin", "scenario", "file", "line", "column", "hint", "corner", "sensitivities"],
+  children: { corner: CORNER, sensitivities: { items: { keys: ["parameter", "name", "derivative", "normalised", "perDegree", "low", "high"] } } },
+};
+const MONTE_CARLO: Shape = {
+  keys: ["samples", "seed", "failed", "nonConverged", "yield", "interval", "iterations", "worstSample", "quantities"],
+  children: {
+    interval: { keys: ["method", "level", "low", "high"] },
+    worstSample: { keys: ["scenario", "lowestMargin", "label", "parameters"], children: { parameters: { items: SETTING } } },
+    quantities: { items: { keys: ["rule", "subject", "unit", "samples", "min", "p1", "median", "p99", "max", "mean", "sigma"] } },
+  },
+};
+const VARIATION: Shape = {
+  keys: ["method", "parameters", "variedParameters", "quantities", "analyses", "sensitivityAnalyses", "corners", "refinementAnalyses", "refinedQuantities"],
 };
 const PASSED: Shape = { keys: ["rule", "subject", "measured", "limit", "unit", "margin", "scenario"] };
 const POINT: Shape = { keys: ["frequency", "re", "im", "magnitude", "db", "phaseDeg"] };
@@ -30,8 +44,10 @@ const OPERATING_POINT: Shape = {
   },
 };
 const CIRCUIT: Shape = {
-  keys: ["file", "name", "status", "operatingPoint", "gains", "scenarios", "findings", "passed"],
+  keys: ["file", "name", "status", "operatingPoint", "gains", "scenarios", "findings", "passed", "variation", "monteCarlo"],
   children: {
+    variation: VARIATION,
+    monteCarlo: MONTE_CARLO,
     operatingPoint: OPERATING_POINT,
     gains: { items: GAIN },
     scenarios: { items: { keys: ["id", "label", "converged"] } },

@@ -94,6 +94,7 @@ interface Outcome {
   readonly order: number;
   readonly hint?: string;
   readonly pos?: SourcePos;
+  readonly bound?: Bound;
   /** The rule itself broke (threw, timed out): always severity error. */
   readonly broken?: boolean;
 }
@@ -214,84 +215,206 @@ function applyOverrides(
   return { rules: out, errors };
 }
 
+/** A numeric reading one rule gave on one scenario: the raw material of sensitivities and Monte Carlo. */
+export interface Reading {
+  readonly rule: string;
+  readonly subject: string;
+  readonly unit: string | null;
+  readonly measured: number;
+  readonly limit: number | null;
+  readonly bound: Bound | null;
+}
+
+/** What one scenario gave: every numeric reading by quantity key, and how bad it was. */
+export interface ScenarioReadings {
+  /** By quantityKey(rule, subject, unit); the first report of a key in a scenario wins. */
+  readonly values: Map<string, Reading>;
+  /** Highest severity of a failing report in this scenario (-1 when nothing failed). */
+  readonly failRank: number;
+  /** Lowest margin of any bounded report in this scenario (Infinity when none). */
+  readonly lowestMargin: number;
+}
+
+const RANK: Readonly<Record<Severity, number>> = { note: 0, warning: 1, error: 2 };
+
+/** The key of a judged quantity: one rule, one subject, one unit (a rule may bound both ends). */
+export function quantityKey(rule: string, subject: string, unit: string | null): string {
+  return `${rule}\u0000${subject}\u0000${unit ?? ""}`;
+}
+
+interface RuleState {
+  readonly configured: ConfiguredRule;
+  readonly severity: Severity;
+  readonly worst: Map<string, Outcome>;
+  order: number;
+}
+
+/**
+ * The engine over a stream of scenarios: each analysis is judged as it comes and can be dropped
+ * afterwards (only the worst outcome per rule and subject is kept), so memory does not grow with
+ * the number of scenarios. `measure` runs the rules without letting the scenario count as a
+ * judged one (the small steps of a sensitivity).
+ */
+export class RuleSession {
+  readonly #circuit: Circuit;
+  readonly #states: RuleState[] = [];
+  readonly #errors: Finding[];
+  readonly #timeLimitMs: number;
+
+  constructor(input: { circuit: Circuit; rules: readonly ConfiguredRule[]; timeLimitMs?: number }) {
+    this.#circuit = input.circuit;
+    this.#timeLimitMs = input.timeLimitMs ?? RULE_TIME_LIMIT_MS;
+    const validated = validateRuleOptions(input.rules);
+    const { rules, errors } = applyOverrides(input.circuit, validated);
+    this.#errors = errors;
+    for (const configured of rules) {
+      if (configured.severity === "off") continue;
+      this.#states.push({ configured, severity: configured.severity, worst: new Map(), order: 0 });
+    }
+  }
+
+  /** Runs every rule on one scenario and keeps its outcomes (the worst per rule and subject wins). */
+  judge(analysis: ScenarioAnalysis): Promise<ScenarioReadings> {
+    return this.#run(analysis, true);
+  }
+
+  /** Runs every rule on one scenario for its readings only; its outcomes are not kept. */
+  measure(analysis: ScenarioAnalysis): Promise<ScenarioReadings> {
+    return this.#run(analysis, false);
+  }
+
+  async #run(analysis: ScenarioAnalysis, keepOutcomes: boolean): Promise<ScenarioReadings> {
+    const values = new Map<string, Reading>();
+    let failRank = -1;
+    let lowestMargin = Infinity;
+    for (const state of this.#states) {
+      const seen = (o: Outcome): void => {
+        if (o.kind === "fail") failRank = Math.max(failRank, o.broken ? RANK.error : RANK[state.severity]);
+        if (o.margin !== null && o.margin < lowestMargin) lowestMargin = o.margin;
+        if (o.measured === null || !Number.isFinite(o.measured)) return;
+        const key = quantityKey(state.configured.rule.id, o.subject, o.unit);
+        if (!values.has(key)) values.set(key, { rule: state.configured.rule.id, subject: o.subject, unit: o.unit, measured: o.measured, limit: o.limit, bound: o.bound ?? null });
+      };
+      await runOne(state, this.#circuit, analysis, this.#timeLimitMs, keepOutcomes, seen);
+    }
+    return { values, failRank, lowestMargin };
+  }
+
+  /** The findings and passed checks over every judged scenario. */
+  finish(): RuleResults {
+    const circuit = this.#circuit;
+    const findings: Finding[] = [...this.#errors];
+    const passed: PassedCheck[] = [];
+    for (const { configured, severity, worst } of this.#states) {
+      for (const o of worst.values()) {
+        if (o.kind === "pass") {
+          passed.push({ rule: configured.rule.id, subject: o.subject, measured: o.measured, limit: o.limit, unit: o.unit, margin: o.margin, scenario: o.scenario });
+          continue;
+        }
+        const pos = o.pos ?? subjectPos(circuit, o.subject);
+        findings.push({
+          rule: configured.rule.id,
+          severity: o.broken ? "error" : severity,
+          subject: o.subject,
+          message: o.message,
+          measured: o.measured,
+          limit: o.limit,
+          unit: o.unit,
+          margin: o.margin,
+          scenario: o.scenario,
+          file: pos.file,
+          line: pos.line,
+          column: pos.column,
+          ...(o.hint ? { hint: o.hint } : {}),
+        });
+      }
+    }
+    findings.sort(compareFindings);
+    passed.sort((a, b) => cmp(a.rule, b.rule) || cmp(a.subject, b.subject));
+    return { findings, passed };
+  }
+}
+
 async function runOne(
-  configured: ConfiguredRule,
+  state: RuleState,
   circuit: Circuit,
-  analyses: readonly ScenarioAnalysis[],
+  analysis: ScenarioAnalysis,
   timeLimitMs: number,
-): Promise<Map<string, Outcome>> {
+  keepOutcomes: boolean,
+  seen: (o: Outcome) => void,
+): Promise<void> {
+  const { configured, worst } = state;
   const { rule } = configured;
   const options = configured.options ?? {};
-  const worst = new Map<string, Outcome>();
-  let order = 0;
   const keep = (o: Outcome): void => {
+    seen(o);
+    if (!keepOutcomes) return;
     const prev = worst.get(o.subject);
     if (!prev || worseThan(o, prev)) worst.set(o.subject, o);
   };
-  for (const analysis of analyses) {
-    const scenario = analysis.scenario;
-    const view = { circuit: scenario.circuit, specs: scenario.circuit.specs, options, scenario };
-    let open = true;
-    const reporter: Reporter = {
-      fail(f: FailReport) {
-        if (!open) return;
-        keep({
-          kind: "fail",
-          subject: String(f.subject),
-          message: String(f.message),
-          measured: num(f.measured),
-          limit: num(f.limit),
-          unit: f.unit ?? null,
-          margin: marginOf(f.measured, f.limit, f.bound),
-          scenario: scenario.id,
-          order: order++,
-          ...(f.hint ? { hint: f.hint } : {}),
-          ...(f.pos ? { pos: f.pos } : {}),
-        });
-      },
-      pass(subject: string, p: PassReport = {}) {
-        if (!open) return;
-        keep({
-          kind: "pass",
-          subject: String(subject),
-          message: "",
-          measured: num(p.measured),
-          limit: num(p.limit),
-          unit: p.unit ?? null,
-          margin: marginOf(p.measured, p.limit, p.bound),
-          scenario: scenario.id,
-          order: order++,
-        });
-      },
-    };
-    const solve = analysis.solve;
-    const work = solve.ok
-      ? () => rule.check({ ...view, op: solve, smallSignal: analysis.smallSignal }, reporter)
-      : rule.checkFailedSolve
-        ? () => rule.checkFailedSolve!({ ...view, failure: solve }, reporter)
-        : undefined;
-    if (!work) continue;
-    try {
-      await withTimeLimit(work, timeLimitMs, configured.source !== "builtin");
-    } catch (err) {
+  const scenario = analysis.scenario;
+  const view = { circuit: scenario.circuit, specs: scenario.circuit.specs, options, scenario };
+  let open = true;
+  const reporter: Reporter = {
+    fail(f: FailReport) {
+      if (!open) return;
       keep({
         kind: "fail",
-        subject: circuit.name,
-        message: `rule \`${rule.id}\` could not check circuit \`${circuit.name}\` in scenario ${scenario.id}: ${reasonOf(err)}`,
-        measured: null,
-        limit: null,
-        unit: null,
-        margin: null,
+        subject: String(f.subject),
+        message: String(f.message),
+        measured: num(f.measured),
+        limit: num(f.limit),
+        unit: f.unit ?? null,
+        margin: marginOf(f.measured, f.limit, f.bound),
         scenario: scenario.id,
-        order: order++,
-        hint: configured.source === "builtin" ? "this is a bug in opgate; please report it with the circuit file" : `fix the rule in ${configured.source}, or turn it off in the config`,
-        broken: true,
+        order: state.order++,
+        ...(f.bound ? { bound: f.bound } : {}),
+        ...(f.hint ? { hint: f.hint } : {}),
+        ...(f.pos ? { pos: f.pos } : {}),
       });
-    } finally {
-      open = false;
-    }
+    },
+    pass(subject: string, p: PassReport = {}) {
+      if (!open) return;
+      keep({
+        kind: "pass",
+        subject: String(subject),
+        message: "",
+        measured: num(p.measured),
+        limit: num(p.limit),
+        unit: p.unit ?? null,
+        margin: marginOf(p.measured, p.limit, p.bound),
+        scenario: scenario.id,
+        order: state.order++,
+        ...(p.bound ? { bound: p.bound } : {}),
+      });
+    },
+  };
+  const solve = analysis.solve;
+  const work = solve.ok
+    ? () => rule.check({ ...view, op: solve, smallSignal: analysis.smallSignal }, reporter)
+    : rule.checkFailedSolve
+      ? () => rule.checkFailedSolve!({ ...view, failure: solve }, reporter)
+      : undefined;
+  if (!work) return;
+  try {
+    await withTimeLimit(work, timeLimitMs, configured.source !== "builtin");
+  } catch (err) {
+    keep({
+      kind: "fail",
+      subject: circuit.name,
+      message: `rule \`${rule.id}\` could not check circuit \`${circuit.name}\` in scenario ${scenario.id}: ${reasonOf(err)}`,
+      measured: null,
+      limit: null,
+      unit: null,
+      margin: null,
+      scenario: scenario.id,
+      order: state.order++,
+      hint: configured.source === "builtin" ? "this is a bug in opgate; please report it with the circuit file" : `fix the rule in ${configured.source}, or turn it off in the config`,
+      broken: true,
+    });
+  } finally {
+    open = false;
   }
-  return worst;
 }
 
 export function compareFindings(a: Finding, b: Finding): number {
@@ -306,39 +429,7 @@ function cmp(a: string, b: string): number {
 
 /** Runs the rules over one circuit's scenarios. Throws ConfigError (before running anything) on bad options. */
 export async function runRules(input: RunRulesInput): Promise<RuleResults> {
-  const { circuit, analyses } = input;
-  const validated = validateRuleOptions(input.rules);
-  const { rules, errors } = applyOverrides(circuit, validated);
-  const findings: Finding[] = [...errors];
-  const passed: PassedCheck[] = [];
-  for (const configured of rules) {
-    if (configured.severity === "off") continue;
-    const severity: Severity = configured.severity;
-    const outcomes = await runOne(configured, circuit, analyses, input.timeLimitMs ?? RULE_TIME_LIMIT_MS);
-    for (const o of outcomes.values()) {
-      if (o.kind === "pass") {
-        passed.push({ rule: configured.rule.id, subject: o.subject, measured: o.measured, limit: o.limit, unit: o.unit, margin: o.margin, scenario: o.scenario });
-        continue;
-      }
-      const pos = o.pos ?? subjectPos(circuit, o.subject);
-      findings.push({
-        rule: configured.rule.id,
-        severity: o.broken ? "error" : severity,
-        subject: o.subject,
-        message: o.message,
-        measured: o.measured,
-        limit: o.limit,
-        unit: o.unit,
-        margin: o.margin,
-        scenario: o.scenario,
-        file: pos.file,
-        line: pos.line,
-        column: pos.column,
-        ...(o.hint ? { hint: o.hint } : {}),
-      });
-    }
-  }
-  findings.sort(compareFindings);
-  passed.sort((a, b) => cmp(a.rule, b.rule) || cmp(a.subject, b.subject));
-  return { findings, passed };
+  const session = new RuleSession(input);
+  for (const analysis of input.analyses) await session.judge(analysis);
+  return session.finish();
 }

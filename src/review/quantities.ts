@@ -1,6 +1,8 @@
 // Small helpers rules share: numbers for people (SI prefixes), temperatures, intended regions.
 import type { Circuit, ComponentKind } from "../circuit/types.js";
 import { siPrefix, type SiPrefix } from "../units/si-format.js";
+import { BJT_CONDUCTION_VOLTAGE } from "../devices/bjt.js";
+import type { BjtPoint, MosPoint } from "../solve/types.js";
 
 /** Kelvin of 0 °C (SI definition). */
 export const ZERO_CELSIUS_K = 273.15;
@@ -47,4 +49,48 @@ export function deratingFactor(ambientC: number, fullUntil: number, zeroAt: numb
   if (ambientC <= fullUntil) return 1;
   if (ambientC >= zeroAt) return 0;
   return (zeroAt - ambientC) / (zeroAt - fullUntil);
+}
+
+/**
+ * How far (V) a transistor sits inside the region `wanted`: positive inside, negative outside,
+ * zero on its edge. The region tests of the device models, as distances: a BJT conducts when its
+ * polarity-normalised VBE (VBC) reaches BJT_CONDUCTION_VOLTAGE and saturates below
+ * VCE = saturationEdge; a MOSFET conducts when Vov > 0 and is in saturation when VDS ≥ Vov.
+ * The region rule reports it, so a region finding's worst scenario is the one deepest outside.
+ */
+export function regionMargin(point: BjtPoint | MosPoint, wanted: string, saturationEdge: number): number | null {
+  if (point.kind === "npn" || point.kind === "pnp") {
+    const p = point.kind === "npn" ? 1 : -1;
+    const vbe = p * point.vbe;
+    const vce = p * point.vce;
+    const vbc = vbe - vce;
+    const on = vbe - BJT_CONDUCTION_VOLTAGE;
+    const bcOn = vbc - BJT_CONDUCTION_VOLTAGE;
+    switch (wanted) {
+      case "active":
+        return Math.min(on, vce - saturationEdge);
+      case "saturation":
+        return Math.min(on, saturationEdge - vce);
+      case "cutoff":
+        return Math.min(-on, -bcOn);
+      case "reverse":
+        return Math.min(-on, bcOn);
+      default:
+        return null;
+    }
+  }
+  const mos = point as MosPoint;
+  const p = mos.kind === "nmos" ? 1 : -1;
+  const vds = p * mos.vds;
+  const vov = mos.vov;
+  switch (wanted) {
+    case "saturation":
+      return Math.min(vov, vds - vov);
+    case "triode":
+      return Math.min(vov, vov - vds);
+    case "cutoff":
+      return -vov;
+    default:
+      return null;
+  }
 }

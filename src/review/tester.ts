@@ -13,7 +13,8 @@ import { buildScenarios } from "../variation/index.js";
 import type { ScenarioAnalysis } from "../pipeline/types.js";
 import type { Finding, PassedCheck, Severity } from "../report/document.js";
 import type { VariationSettings } from "../variation/types.js";
-import { runRules } from "./engine.js";
+import { runRules, RuleSession } from "./engine.js";
+import { runVariation } from "../pipeline/variation.js";
 import { defaultOptions } from "./options.js";
 import { ruleShapeProblems, type Rule } from "./rule.js";
 
@@ -81,7 +82,11 @@ export function loadCaseCircuit(source: string, caseName: string): Circuit {
   return loaded.circuit;
 }
 
-/** The real pipeline from a loaded circuit: scenarios → bias solve → small-signal, per scenario. */
+/**
+ * The real pipeline from a loaded circuit: scenarios → bias solve → small-signal, per scenario;
+ * nominal or Monte Carlo (worst-case corners follow from the rules' readings, so runRuleCase
+ * runs them through the engine instead).
+ */
 export function analyseCircuit(circuit: Circuit, variation: VariationSettings = NOMINAL): ScenarioAnalysis[] {
   return buildScenarios(circuit, variation).map((scenario) => {
     const solve = solveOperatingPoint(scenario.circuit);
@@ -98,8 +103,16 @@ function snapshot(value: unknown): string {
 export async function runRuleCase(rule: Rule, c: RuleTestCase): Promise<RuleTestResult & { mutated: boolean }> {
   let circuit: Circuit;
   let analyses: readonly ScenarioAnalysis[];
+  const configured = [{ rule, severity: rule.severity === "off" ? ("error" as const) : rule.severity, options: c.options ?? {}, source: "builtin" }];
   if (typeof c.circuit === "string") {
     circuit = loadCaseCircuit(c.circuit, c.name);
+    if (!c.analyses && c.variation && c.variation.mode !== "nominal") {
+      // The real variation pipeline: worst-case corners follow from the rule's own readings.
+      const session = new RuleSession({ circuit, rules: configured });
+      const before = snapshot(circuit);
+      await runVariation(circuit, c.variation, session, 2);
+      return { ...session.finish(), mutated: snapshot(circuit) !== before };
+    }
     analyses = c.analyses ?? analyseCircuit(circuit, c.variation);
   } else {
     if (!c.analyses) throw new Error(`case "${c.name}": a hand-built circuit needs its analyses`);
@@ -107,11 +120,7 @@ export async function runRuleCase(rule: Rule, c: RuleTestCase): Promise<RuleTest
     analyses = c.analyses;
   }
   const before = snapshot({ circuit, analyses });
-  const result = await runRules({
-    circuit,
-    analyses,
-    rules: [{ rule, severity: rule.severity === "off" ? "error" : rule.severity, options: c.options ?? {}, source: "builtin" }],
-  });
+  const result = await runRules({ circuit, analyses, rules: configured });
   return { ...result, mutated: snapshot({ circuit, analyses }) !== before };
 }
 

@@ -15,7 +15,7 @@ export interface Quantity {
   readonly max: number;
 }
 
-const SPREAD_FIELDS = [
+export const SPREAD_FIELDS = [
   "beta",
   "reverseBeta",
   "saturationCurrent",
@@ -26,7 +26,7 @@ const SPREAD_FIELDS = [
   "lambda",
 ] as const;
 
-function valueField(c: Component): "value" | "dc" | null {
+export function valueField(c: Component): "value" | "dc" | null {
   switch (c.kind) {
     case "resistor":
     case "capacitor":

@@ -1,18 +1,12 @@
-// Builds the scenarios a circuit is checked in: nominal, corners, or Monte Carlo samples.
-//
-// Corners: a full factorial over n quantities is 2^n solves, too many for a repository run. We
-// take (1) nominal, (2) each quantity alone at its min and at its max (finds the sensitivity
-// to every part), (3) the 2×2×2×2 combinations of the grouped extremes — every supply low/high,
-// every device spread low/high, every passive low/high, temperature low/high — which catches
-// the combined supply-and-spread worst cases reviewers ask about. The rule engine keeps the worst
-// scenario per rule and subject, so more scenarios only ever find more.
+// Builds a fixed list of scenarios: nominal, or nominal and Monte Carlo samples (for the rule
+// tester and library users). The check itself streams its scenarios (src/pipeline/variation.ts),
+// and worst-case corners are not a fixed list: each follows from the sensitivities of the rules'
+// readings (src/variation/worst-case.ts).
 import type { Circuit } from "../circuit/types.js";
 import type { Scenario, VariationSettings } from "./types.js";
-import { variedQuantities, withPicks, type Quantity, type QuantityGroup } from "./quantities.js";
-import { normal, seededRandom, triangular } from "./random.js";
-
-/** Tolerance bands are read as ±3σ of a normal distribution (common practice for Monte Carlo). */
-const SIGMAS_PER_BAND = 3;
+import { sampleValues } from "./monte-carlo.js";
+import { circuitAt, variationParameters } from "./parameters.js";
+import { seededRandom } from "./random.js";
 /** Upper bound on Monte Carlo samples per circuit, so a config typo cannot stall a nightly run. */
 export const MAX_SAMPLES = 10_000;
 
@@ -30,62 +24,19 @@ function pad(n: number, width: number): string {
   return String(n).padStart(width, "0");
 }
 
-function cornerScenarios(circuit: Circuit, settings: VariationSettings): Scenario[] {
-  const quantities = variedQuantities(circuit);
-  const temps = settings.temperature ? [settings.temperature.min, settings.temperature.max] : [circuit.temperature];
-  const specs: { label: string; picks: Map<string, number>; temperature: number }[] = [];
-
-  for (const q of quantities) {
-    specs.push({ label: `${q.label} min`, picks: new Map([[q.key, q.min]]), temperature: circuit.temperature });
-    specs.push({ label: `${q.label} max`, picks: new Map([[q.key, q.max]]), temperature: circuit.temperature });
-  }
-  const groups: QuantityGroup[] = (["supply", "device", "passive"] as const).filter((g) => quantities.some((q) => q.group === g));
-  const combos = 1 << groups.length;
-  for (const temperature of temps) {
-    for (let mask = 0; mask < combos; mask++) {
-      const picks = new Map<string, number>();
-      const parts: string[] = [];
-      groups.forEach((g, i) => {
-        const high = (mask >> i) & 1;
-        parts.push(`${g === "supply" ? "supplies" : g === "device" ? "devices" : "passives"} ${high ? "max" : "min"}`);
-        for (const q of quantities) if (q.group === g) picks.set(q.key, high ? q.max : q.min);
-      });
-      if (groups.length === 0 && temperature === circuit.temperature) continue;
-      specs.push({ label: [...parts, celsius(temperature)].join(", "), picks, temperature });
-    }
-  }
-  if (settings.temperature) {
-    for (const temperature of temps) specs.push({ label: `nominal values, ${celsius(temperature)}`, picks: new Map(), temperature });
-  }
-  const width = String(specs.length).length;
-  return specs.map((s, i) => ({
-    id: `corner-${pad(i + 1, Math.max(2, width))}`,
-    label: s.label,
-    circuit: withPicks(circuit, s.picks, s.temperature),
-  }));
-}
-
-function sample(q: Quantity, random: () => number): number {
-  if (q.group === "device") return triangular(random, q.min, q.nominal, q.max);
-  const sigmaLow = (q.nominal - q.min) / SIGMAS_PER_BAND;
-  const sigmaHigh = (q.max - q.nominal) / SIGMAS_PER_BAND;
-  const z = normal(random);
-  const v = q.nominal + z * (z < 0 ? sigmaLow : sigmaHigh);
-  return Math.min(q.max, Math.max(q.min, v));
-}
-
 function monteCarloScenarios(circuit: Circuit, settings: VariationSettings): Scenario[] {
-  const quantities = variedQuantities(circuit);
+  // The same parameters, sampler and seed use as the streamed check (src/pipeline/variation.ts).
+  const params = variationParameters(circuit, settings);
   const random = seededRandom(settings.seed);
   const count = Math.min(MAX_SAMPLES, Math.max(1, Math.floor(settings.samples)));
   const width = Math.max(4, String(count).length);
+  const values = new Float64Array(params.length);
+  const t = params.findIndex((p) => p.kind === "temperature");
   const out: Scenario[] = [];
   for (let i = 0; i < count; i++) {
-    const picks = new Map<string, number>();
-    for (const q of quantities) picks.set(q.key, sample(q, random));
-    const t = settings.temperature;
-    const temperature = t ? t.min + (t.max - t.min) * random() : circuit.temperature;
-    out.push({ id: `mc-${pad(i + 1, width)}`, label: `sample ${i + 1} of ${count}, ${celsius(temperature)}`, circuit: withPicks(circuit, picks, temperature) });
+    sampleValues(params, random, values);
+    const temperature = t >= 0 ? values[t]! : circuit.temperature;
+    out.push({ id: `mc-${pad(i + 1, width)}`, label: `sample ${i + 1} of ${count}, ${celsius(temperature)}`, circuit: circuitAt(circuit, params, values) });
   }
   return out;
 }
@@ -97,7 +48,9 @@ export function buildScenarios(circuit: Circuit, settings: VariationSettings): S
     case "nominal":
       return [nominal];
     case "corners":
-      return [nominal, ...cornerScenarios(circuit, settings)];
+      // Corners are not a fixed list: each follows from the sensitivities of the rules' readings
+      // (src/variation/worst-case.ts, run by src/pipeline/variation.ts).
+      throw new Error("worst-case corners are built from the rules' readings: run them through runVariation (src/pipeline/variation.ts)");
     case "monte-carlo":
       return [nominal, ...monteCarloScenarios(circuit, settings)];
   }

@@ -1,0 +1,222 @@
+// The variation part of one circuit's check, streamed: nominal, then either the worst-case
+// analysis (sensitivities → one verified corner per judged quantity and direction) or the Monte
+// Carlo samples. Every analysis is judged (or measured) by the rule session as it comes and then
+// dropped, so memory holds the rule outcomes and one number per quantity and sample, never a
+// scenario's full analysis. A per-circuit budget bounds the work (analyses × components).
+import type { Circuit } from "../circuit/types.js";
+import type { CornerEntry, MonteCarloEntry, ScenarioEntry, VariationEntry } from "../report/document.js";
+import { quantityKey, type RuleSession, type ScenarioReadings } from "../review/engine.js";
+import { solveOperatingPoint, type WarmStart } from "../solve/index.js";
+import { analyseSmallSignal } from "../smallsignal/index.js";
+import { Collector, sampleValues, wilsonInterval } from "../variation/monte-carlo.js";
+import {
+  celsiusLabel,
+  circuitAt,
+  describeSettings,
+  hasBand,
+  nominalValues,
+  settingsOf,
+  variationParameters,
+  type Parameter,
+} from "../variation/parameters.js";
+import { seededRandom } from "../variation/random.js";
+import { sensitivities, type Readings, type SensitivityTable } from "../variation/sensitivity.js";
+import type { Scenario, VariationSettings } from "../variation/types.js";
+import { worstCaseCorners } from "../variation/worst-case.js";
+import { MAX_SAMPLES } from "../variation/scenarios.js";
+import type { ScenarioAnalysis } from "./types.js";
+
+/**
+ * Analyses × components one circuit may spend on variation (about 40 s of solving on the bench
+ * machine for a 1,000-part circuit). Past it the Monte Carlo runs fewer samples, or the
+ * worst-case search stops, and a `variation-budget` finding says so.
+ */
+export const VARIATION_BUDGET = 4_000_000;
+export const BUDGET_RULE = "variation-budget";
+
+/** Solves and linearises one scenario; a throw inside a stage becomes a solve failure, not a crash. */
+export function analyse(scenario: Scenario, warm?: WarmStart): ScenarioAnalysis {
+  try {
+    const solve = solveOperatingPoint(scenario.circuit, warm ? { warmStart: warm } : {});
+    const smallSignal = solve.ok ? analyseSmallSignal(scenario.circuit, solve) : null;
+    return { scenario, solve, smallSignal };
+  } catch (err) {
+    const reason = `internal error while solving: ${err instanceof Error ? err.message : String(err)}`;
+    return {
+      scenario,
+      solve: { ok: false, reason, parts: [], nodes: [], stats: { iterations: 0, residual: NaN, aid: "none" } },
+      smallSignal: null,
+    };
+  }
+}
+
+function numbers(r: ScenarioReadings): Map<string, number> {
+  const out = new Map<string, number>();
+  for (const [k, v] of r.values) out.set(k, v.measured);
+  return out;
+}
+
+export interface VariationOutcome {
+  readonly nominal: ScenarioAnalysis;
+  readonly scenarios: ScenarioEntry[];
+  /** Parameter set of every judged scenario that has one (corners, and MC samples on request). */
+  readonly cornerOf: (scenarioId: string) => CornerEntry | undefined;
+  readonly table: SensitivityTable | null;
+  readonly summary: VariationEntry | null;
+  readonly monteCarlo: MonteCarloEntry | null;
+  /** Budget remarks: [message, hint]. */
+  readonly budget: readonly { message: string; hint: string }[];
+  /** Bound per quantity key, as rules reported it at nominal. */
+  readonly parameters: readonly Parameter[];
+}
+
+export async function runVariation(circuit: Circuit, settings: VariationSettings, session: RuleSession, failOnRank: number): Promise<VariationOutcome> {
+  const warm: WarmStart = { x: null };
+  const nominalScenario: Scenario = { id: "nominal", label: `nominal, ${celsiusLabel(circuit.temperature)}`, circuit };
+  const nominal = analyse(nominalScenario, warm);
+  const nominalReadings = await session.judge(nominal);
+  const scenarios: ScenarioEntry[] = [{ id: "nominal", label: nominalScenario.label, converged: nominal.solve.ok }];
+  const corners = new Map<string, CornerEntry>();
+  const budget: { message: string; hint: string }[] = [];
+  const base: Omit<VariationOutcome, "nominal" | "scenarios"> = { cornerOf: (id) => corners.get(id), table: null, summary: null, monteCarlo: null, budget, parameters: [] };
+  if (settings.mode === "nominal" || !nominal.solve.ok) return { ...base, nominal, scenarios };
+
+  const params = variationParameters(circuit, settings);
+  const banded = params.filter(hasBand).length;
+  const size = Math.max(1, circuit.components.length);
+  const maxAnalyses = Math.max(1, Math.floor(VARIATION_BUDGET / size));
+  const at = nominalValues(params);
+  const scenarioAt = (values: Float64Array, id: string, label: string): Scenario => ({ id, label, circuit: circuitAt(circuit, params, values) });
+
+  if (settings.mode === "monte-carlo") {
+    const requested = Math.min(MAX_SAMPLES, Math.max(1, Math.floor(settings.samples)));
+    const count = Math.min(requested, maxAnalyses);
+    if (count < requested)
+      budget.push({
+        message: `Monte Carlo ran ${count} of ${requested} samples: ${requested} samples × ${size} components is over the per-circuit budget of ${VARIATION_BUDGET.toLocaleString("en")} analyses × components`,
+        hint: "the yield below is from fewer samples (its interval is wider); check this circuit in its own job with fewer samples, or split it",
+      });
+    const mc = await monteCarlo(circuit, params, settings.seed, count, session, scenarios, warm, failOnRank, scenarioAt);
+    return { ...base, nominal, scenarios, parameters: params, monteCarlo: mc.entry, cornerOf: (id) => mc.corners.get(id) };
+  }
+
+  // Worst case: sensitivities of every reading at nominal, then per quantity and direction its corner.
+  let analyses = 0;
+  const measure = async (values: Float64Array): Promise<Readings | null> => {
+    analyses++;
+    const a = analyse(scenarioAt(values, "probe", "sensitivity step"), warm);
+    if (!a.solve.ok) return null;
+    return numbers(await session.measure(a));
+  };
+  // Design values without a band cost two analyses each; they are differentiated (for the hints)
+  // only while that leaves most of the budget to the banded ones.
+  const designToo = 2 * params.length <= maxAnalyses / 2;
+  if (2 * banded > maxAnalyses) {
+    budget.push({
+      message: `the worst-case analysis did not run: its ${banded} varied parameters need ${2 * banded} sensitivity analyses of ${size} components, over the per-circuit budget of ${VARIATION_BUDGET.toLocaleString("en")} analyses × components; only nominal was judged`,
+      hint: "check this circuit with fewer toleranced parts (exact values for parts that do not matter), or split it",
+    });
+    return { ...base, nominal, scenarios, parameters: params };
+  }
+  const table = await sensitivities(params, at, numbers(nominalReadings), measure, (i) => designToo || hasBand(params[i]!));
+  const sensitivityAnalyses = analyses;
+  let cornerCount = 0;
+  const width = 3;
+  const judge = async (values: Float64Array): Promise<Readings | null> => {
+    analyses++;
+    const id = `corner-${String(++cornerCount).padStart(width, "0")}`;
+    const set = settingsOf(params, values);
+    const label = describeSettings(set);
+    corners.set(id, { label, parameters: set });
+    const a = analyse(scenarioAt(values, id, label), warm);
+    scenarios.push({ id, label, converged: a.solve.ok });
+    const r = await session.judge(a);
+    return a.solve.ok ? numbers(r) : null;
+  };
+  const wc = banded === 0 ? null : await worstCaseCorners(table, judge, measure, { maxEvaluations: Math.max(0, maxAnalyses - analyses) });
+  if (wc?.truncated)
+    budget.push({
+      message: `the worst-case search stopped after ${analyses} analyses (per-circuit budget of ${VARIATION_BUDGET.toLocaleString("en")} analyses × components); some quantities have no verified corner`,
+      hint: "check this circuit with fewer toleranced parts, or split it",
+    });
+  const summary: VariationEntry = {
+    method: "worst-case",
+    parameters: params.length,
+    variedParameters: banded,
+    quantities: table.derivatives.size,
+    analyses,
+    sensitivityAnalyses,
+    corners: wc?.corners ?? 0,
+    refinementAnalyses: wc?.refinementEvaluations ?? 0,
+    refinedQuantities: wc ? wc.worst.filter((w) => w.refinements > 0).length : 0,
+  };
+  return { ...base, nominal, scenarios, parameters: params, table, summary, cornerOf: (id) => corners.get(id) };
+}
+
+async function monteCarlo(
+  circuit: Circuit,
+  params: readonly Parameter[],
+  seed: number,
+  count: number,
+  session: RuleSession,
+  scenarios: ScenarioEntry[],
+  warm: WarmStart,
+  failOnRank: number,
+  scenarioAt: (values: Float64Array, id: string, label: string) => Scenario,
+): Promise<{ entry: MonteCarloEntry; corners: Map<string, CornerEntry> }> {
+  const random = seededRandom(seed);
+  const width = Math.max(4, String(count).length);
+  const values = new Float64Array(params.length);
+  const collectors = new Map<string, { rule: string; subject: string; unit: string | null; c: Collector }>();
+  let failed = 0;
+  let nonConverged = 0;
+  let iterations = 0;
+  let worst = { margin: Infinity, id: "", values: null as Float64Array | null };
+  for (let k = 0; k < count; k++) {
+    sampleValues(params, random, values);
+    const id = `mc-${String(k + 1).padStart(width, "0")}`;
+    const temperature = params.find((p) => p.kind === "temperature");
+    const label = `sample ${k + 1} of ${count}${temperature ? `, ${celsiusLabel(values[params.indexOf(temperature)]!)}` : ""}`;
+    const a = analyse(scenarioAt(values, id, label), warm);
+    iterations += a.solve.stats.iterations;
+    scenarios.push({ id, label, converged: a.solve.ok });
+    const r = await session.judge(a);
+    if (!a.solve.ok) nonConverged++;
+    if (r.failRank >= failOnRank || !a.solve.ok) failed++;
+    const margin = a.solve.ok ? r.lowestMargin : -Infinity;
+    if (margin < worst.margin || worst.values === null) worst = { margin, id, values: Float64Array.from(values) };
+    for (const [key, reading] of r.values) {
+      let slot = collectors.get(key);
+      if (!slot) collectors.set(key, (slot = { rule: reading.rule, subject: reading.subject, unit: reading.unit, c: new Collector(count) }));
+      slot.c.add(reading.measured);
+    }
+  }
+  const corners = new Map<string, CornerEntry>();
+  let worstSample: MonteCarloEntry["worstSample"] = null;
+  if (worst.values) {
+    const set = settingsOf(params, worst.values);
+    const corner = { label: describeSettings(set), parameters: set };
+    corners.set(worst.id, corner);
+    worstSample = { scenario: worst.id, lowestMargin: Number.isFinite(worst.margin) ? worst.margin : null, ...corner };
+  }
+  const passed = count - failed;
+  const quantities = [...collectors.entries()]
+    .sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0))
+    .map(([, s]) => ({ rule: s.rule, subject: s.subject, unit: s.unit, ...s.c.summary()! }));
+  return {
+    entry: {
+      samples: count,
+      seed,
+      failed,
+      nonConverged,
+      yield: passed / count,
+      interval: { method: "Wilson score", level: 0.95, ...wilsonInterval(passed, count) },
+      iterations,
+      worstSample,
+      quantities,
+    },
+    corners,
+  };
+}
+
+export { quantityKey };
