@@ -2,7 +2,7 @@
 // file that does not exist, reports written over inputs or over each other, shards of different
 // runs merged. Each case checks that the failing circuit still fails (exit 1) or the run is
 // refused (exit 2) — never a pass.
-import { existsSync, readdirSync, readFileSync, writeFileSync } from "node:fs";
+import { existsSync, readdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { cli, makeRepo } from "./repo.js";
@@ -84,5 +84,52 @@ describe("report paths", () => {
     expect(r.code).toBe(1);
     expect(JSON.parse(readFileSync(join(repo.dir, "old.json"), "utf8")).summary.verdict).toBe("fail");
     expect(readdirSync(repo.dir).filter((f) => f.endsWith(".tmp"))).toEqual([]);
+  });
+});
+
+/** The examples without the one that cannot be checked (exit 2), so exit 1 means "the failing circuit". */
+function checkableRepo(): { dir: string; cleanup(): void } {
+  const r = makeRepo();
+  rmSync(join(r.dir, "boards/wind-vane-heater-broken.yaml"));
+  return r;
+}
+
+describe("merge provenance", () => {
+  it("refuses shards of two runs whose file lists differ (a failing file added between the shard jobs)", async () => {
+    const { dir, cleanup } = checkableRepo();
+    try {
+      const failing = readFileSync(join(dir, FAILING), "utf8");
+      rmSync(join(dir, FAILING));
+      expect((await cli(["check", "boards", "--shard", "1/2", "--json", "r1.json", "-q"], dir)).code).toBe(0);
+      writeFileSync(join(dir, FAILING), failing);
+      await cli(["check", "boards", "--shard", "2/2", "--json", "r2.json", "-q"], dir);
+      const merged = await cli(["merge", "r1.json", "r2.json", "-q"], dir);
+      expect(merged.code).toBe(2);
+      expect(merged.stderr).toMatch(/different runs/);
+    } finally {
+      cleanup();
+    }
+  });
+
+  it("refuses a shard document whose failing circuit's results were removed", async () => {
+    const { dir, cleanup } = checkableRepo();
+    try {
+      for (const k of [1, 2]) await cli(["check", "boards", "--shard", `${k}/2`, "--json", `r${k}.json`, "-q"], dir);
+      const all = await cli(["merge", "r1.json", "r2.json", "-q"], dir);
+      expect(all.code).toBe(1);
+      for (const k of [1, 2]) {
+        const doc = JSON.parse(readFileSync(join(dir, `r${k}.json`), "utf8"));
+        const kept = doc.circuits.filter((c: { file: string }) => c.file !== FAILING);
+        if (kept.length === doc.circuits.length) continue;
+        doc.circuits = kept;
+        doc.summary = { ...doc.summary, circuits: kept.length, failed: 0, verdict: "pass", findings: { error: 0, warning: 0, note: 0 } };
+        writeFileSync(join(dir, `r${k}.json`), JSON.stringify(doc));
+      }
+      const merged = await cli(["merge", "r1.json", "r2.json", "-q"], dir);
+      expect(merged.code).toBe(2);
+      expect(merged.stderr).toMatch(/altered/);
+    } finally {
+      cleanup();
+    }
   });
 });
