@@ -45,6 +45,8 @@ export interface RuleTestCase {
 export interface RuleTestResult {
   readonly findings: Finding[];
   readonly passed: PassedCheck[];
+  /** Id and label of every judged scenario (corners carry their parameter set as the label). */
+  readonly scenarios?: readonly { readonly id: string; readonly label: string }[];
 }
 
 const NOMINAL: VariationSettings = { mode: "nominal", samples: 1, seed: 1 };
@@ -110,8 +112,8 @@ export async function runRuleCase(rule: Rule, c: RuleTestCase): Promise<RuleTest
       // The real variation pipeline: worst-case corners follow from the rule's own readings.
       const session = new RuleSession({ circuit, rules: configured });
       const before = snapshot(circuit);
-      await runVariation(circuit, c.variation, session, 2);
-      return { ...session.finish(), mutated: snapshot(circuit) !== before };
+      const v = await runVariation(circuit, c.variation, session, 2);
+      return { ...session.finish(), scenarios: v.scenarios, mutated: snapshot(circuit) !== before };
     }
     analyses = c.analyses ?? analyseCircuit(circuit, c.variation);
   } else {
@@ -121,7 +123,7 @@ export async function runRuleCase(rule: Rule, c: RuleTestCase): Promise<RuleTest
   }
   const before = snapshot({ circuit, analyses });
   const result = await runRules({ circuit, analyses, rules: configured });
-  return { ...result, mutated: snapshot({ circuit, analyses }) !== before };
+  return { ...result, scenarios: analyses.map((a) => ({ id: a.scenario.id, label: a.scenario.label })), mutated: snapshot({ circuit, analyses }) !== before };
 }
 
 function sortKey(x: { subject: string; message?: string }): string {

@@ -32,6 +32,7 @@ const SYMBOL: Readonly<Record<(typeof SPREAD_FIELDS)[number], string>> = {
   threshold: "Vth",
   kPrime: "k′",
   lambda: "λ",
+  breakdownVoltage: "VZ",
 };
 
 const KELVIN_OFFSET = 273.15;

@@ -21,6 +21,7 @@ export const SPREAD_FIELDS = [
   "saturationCurrent",
   "earlyVoltage",
   "ideality",
+  "breakdownVoltage",
   "threshold",
   "kPrime",
   "lambda",
