@@ -2,6 +2,7 @@
 // files in this folder). No filesystem scanning.
 import type { OptionsOf, Rule } from "../src/review/rule.js";
 import capacitorVoltage from "./capacitor-voltage.js";
+import coilDrive from "./coil-drive.js";
 import couplingAdequacy from "./coupling-adequacy.js";
 import deviceCurrent from "./device-current.js";
 import devicePower from "./device-power.js";
@@ -14,6 +15,7 @@ import supplyBudget from "./supply-budget.js";
 
 export const BUILTIN_RULES: ReadonlyMap<string, Rule> = new Map<string, Rule>([
   ["capacitor-voltage", capacitorVoltage],
+  ["coil-drive", coilDrive],
   ["coupling-adequacy", couplingAdequacy],
   ["device-current", deviceCurrent],
   ["device-power", devicePower],
