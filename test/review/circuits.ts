@@ -138,8 +138,8 @@ models:
   flyback: { kind: diode, saturationCurrent: 2 nA, ideality: 1.8 }
   status-led: { kind: diode, saturationCurrent: 1e-18 A, ideality: 2 }
 components:
-  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, dc: ${o.vcc ?? "12 V"}, tolerance: 5% }
-  - { id: VLOGIC, kind: voltage-source, pins: { plus: logic, minus: gnd }, dc: 5 V }
+  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, voltage: ${o.vcc ?? "12 V"}, tolerance: 5% }
+  - { id: VLOGIC, kind: voltage-source, pins: { plus: logic, minus: gnd }, voltage: 5 V }
   - { id: K1, kind: resistor, pins: [vcc, col], value: 400${o.coil ?? ""} }
   - { id: D1, kind: diode, model: flyback, pins: { anode: col, cathode: vcc } }
   - { id: RB, kind: resistor, pins: [logic, base], value: 4k7, package: "0603" }
