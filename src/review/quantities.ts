@@ -61,8 +61,8 @@ export function deratingFactor(ambientC: number, fullUntil: number, zeroAt: numb
 export function regionMargin(point: BjtPoint | MosPoint, wanted: string, saturationEdge: number): number | null {
   if (point.kind === "npn" || point.kind === "pnp") {
     const p = point.kind === "npn" ? 1 : -1;
-    const vbe = p * point.vbe;
-    const vce = p * point.vce;
+    const vbe = p * point.baseEmitterVoltage;
+    const vce = p * point.collectorEmitterVoltage;
     const vbc = vbe - vce;
     const on = vbe - BJT_CONDUCTION_VOLTAGE;
     const bcOn = vbc - BJT_CONDUCTION_VOLTAGE;
@@ -81,8 +81,8 @@ export function regionMargin(point: BjtPoint | MosPoint, wanted: string, saturat
   }
   const mos = point as MosPoint;
   const p = mos.kind === "nmos" ? 1 : -1;
-  const vds = p * mos.vds;
-  const vov = mos.vov;
+  const vds = p * mos.drainSourceVoltage;
+  const vov = mos.overdrive;
   switch (wanted) {
     case "saturation":
       return Math.min(vov, vds - vov);

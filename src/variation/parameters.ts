@@ -10,7 +10,7 @@ import type { VariationSettings } from "./types.js";
 export type ParameterKind = "tolerance" | "spread" | "temperature";
 
 export interface Parameter {
-  /** "R1.value", "VCC.dc", "small-npn.beta", "temperature". */
+  /** "R1.value", "VCC.voltage", "small-npn.beta", "temperature". */
   readonly key: string;
   /** Short name for people: "R1", "VCC", "β(small-npn)", "temperature". */
   readonly name: string;
