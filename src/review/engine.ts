@@ -1,6 +1,7 @@
 // The rule engine: runs every enabled rule over every scenario of one circuit, keeps per rule
-// and subject the worst scenario, and isolates rules from each other (a throw or a runaway
-// rule becomes an `error` finding; the other rules still run).
+// and subject the worst scenario, and isolates rules from each other (a throw, a runaway rule or
+// a report the results cannot hold becomes an `error` finding; the other rules still run). Team
+// rules from plugins run contained in a thread of their own (contain.ts).
 import vm from "node:vm";
 import type { Circuit, SourcePos } from "../circuit/types.js";
 import type { ScenarioAnalysis } from "../pipeline/types.js";
@@ -8,6 +9,8 @@ import type { Finding, PassedCheck, Severity } from "../report/document.js";
 import { didYouMean } from "./did-you-mean.js";
 import { ConfigError, type ConfigProblem } from "./errors.js";
 import { optionProblems, resolveOptions, type OptionsOrigin } from "./options.js";
+import { currentRuleBudgetMs, isContained, runContained } from "./contain.js";
+import { failReportProblems, passReportProblems } from "./report-check.js";
 import type { Bound, FailReport, PassReport, Reporter, Rule, RuleSeverity } from "./rule.js";
 
 /**
@@ -38,6 +41,8 @@ export interface RunRulesInput {
   readonly rules: readonly ConfiguredRule[];
   /** Per rule and scenario; defaults to RULE_TIME_LIMIT_MS. */
   readonly timeLimitMs?: number;
+  /** Per rule and circuit, all scenarios together; defaults to RULE_BUDGET_MS. */
+  readonly budgetMs?: number;
 }
 
 export interface RuleResults {
@@ -247,6 +252,13 @@ interface RuleState {
   readonly severity: Severity;
   readonly worst: Map<string, Outcome>;
   order: number;
+  /** One time budget per rule and circuit, over all its scenarios (set on first use). */
+  readonly budgetMs: number;
+  deadline: number | null;
+  /** Scenarios this rule has been run on. */
+  scenarios: number;
+  /** The budget ran out: the rule is not run on further scenarios (one error finding says so). */
+  exhausted: boolean;
 }
 
 /**
@@ -260,16 +272,18 @@ export class RuleSession {
   readonly #states: RuleState[] = [];
   readonly #errors: Finding[];
   readonly #timeLimitMs: number;
+  readonly #budgetMs: number;
 
-  constructor(input: { circuit: Circuit; rules: readonly ConfiguredRule[]; timeLimitMs?: number }) {
+  constructor(input: { circuit: Circuit; rules: readonly ConfiguredRule[]; timeLimitMs?: number; budgetMs?: number }) {
     this.#circuit = input.circuit;
     this.#timeLimitMs = input.timeLimitMs ?? RULE_TIME_LIMIT_MS;
+    this.#budgetMs = input.budgetMs ?? currentRuleBudgetMs();
     const validated = validateRuleOptions(input.rules);
     const { rules, errors } = applyOverrides(input.circuit, validated);
     this.#errors = errors;
     for (const configured of rules) {
       if (configured.severity === "off") continue;
-      this.#states.push({ configured, severity: configured.severity, worst: new Map(), order: 0 });
+      this.#states.push({ configured, severity: configured.severity, worst: new Map(), order: 0, budgetMs: this.#budgetMs, deadline: null, scenarios: 0, exhausted: false });
     }
   }
 
@@ -346,47 +360,101 @@ async function runOne(
   const { configured, worst } = state;
   const { rule } = configured;
   const options = configured.options ?? {};
+  if (state.exhausted) return;
+  state.deadline ??= Date.now() + state.budgetMs;
+  state.scenarios++;
   const keep = (o: Outcome): void => {
     seen(o);
-    if (!keepOutcomes) return;
+    // A broken rule is kept even from a measuring step: it must surface as an error finding.
+    if (!keepOutcomes && !o.broken) return;
     const prev = worst.get(o.subject);
     if (!prev || worseThan(o, prev)) worst.set(o.subject, o);
   };
+  const broken = (scenario: string, reason: string): void =>
+    keep({
+      kind: "fail",
+      subject: circuit.name,
+      message: `rule \`${rule.id}\` could not check circuit \`${circuit.name}\` in scenario ${scenario}: ${reason}`,
+      measured: null,
+      limit: null,
+      unit: null,
+      margin: null,
+      scenario,
+      order: state.order++,
+      hint: configured.source === "builtin" ? "this is a bug in opgate; please report it with the circuit file" : `fix the rule in ${configured.source}, or turn it off in the config`,
+      broken: true,
+    });
+  // Every report is checked against the results contract before it becomes a finding.
+  const fail = (scenario: string, f: unknown): void => {
+    const problems = failReportProblems(f);
+    if (problems.length > 0) return broken(scenario, `it reported a finding the results cannot hold: ${problems.join("; ")}`);
+    const r = f as FailReport;
+    keep({
+      kind: "fail",
+      subject: r.subject,
+      message: r.message,
+      measured: num(r.measured),
+      limit: num(r.limit),
+      unit: r.unit ?? null,
+      margin: marginOf(r.measured, r.limit, r.bound),
+      scenario,
+      order: state.order++,
+      ...(r.bound ? { bound: r.bound } : {}),
+      ...(r.hint ? { hint: r.hint } : {}),
+      ...(r.pos ? { pos: { file: r.pos.file, line: r.pos.line, column: r.pos.column } } : {}),
+    });
+  };
+  const pass = (scenario: string, subject: unknown, p: unknown): void => {
+    const problems = passReportProblems(subject, p);
+    if (problems.length > 0) return broken(scenario, `it reported a pass the results cannot hold: ${problems.join("; ")}`);
+    const r = (p ?? {}) as PassReport;
+    keep({
+      kind: "pass",
+      subject: subject as string,
+      message: "",
+      measured: num(r.measured),
+      limit: num(r.limit),
+      unit: r.unit ?? null,
+      margin: marginOf(r.measured, r.limit, r.bound),
+      scenario,
+      order: state.order++,
+      ...(r.bound ? { bound: r.bound } : {}),
+    });
+  };
   const scenario = analysis.scenario;
+  const left = state.deadline - Date.now();
+  if (left <= 0) {
+    state.exhausted = true;
+    broken(scenario.id, `it used up its ${state.budgetMs / 1000} s budget for this circuit before this scenario`);
+    return;
+  }
+
+  if (isContained(rule)) {
+    // A team rule from a plugin: run in the plugin thread, within what is left of its budget.
+    const outcome = await runContained(rule, [analysis], options, left);
+    if (!outcome.ok) {
+      state.exhausted = true;
+      const outOfTime = Date.now() >= state.deadline;
+      const n = state.scenarios;
+      broken(scenario.id, outOfTime ? `checking the circuit's ${n} scenario${n === 1 ? "" : "s"} took longer than ${state.budgetMs / 1000} s` : outcome.reason);
+    } else {
+      for (const r of outcome.reports) {
+        if (r.kind === "fail") fail(r.scenario, r.report);
+        else pass(r.scenario, r.subject, r.report);
+      }
+      for (const e of outcome.errors) broken(e.scenario, e.reason);
+    }
+    return;
+  }
+
   const view = { circuit: scenario.circuit, specs: scenario.circuit.specs, options, scenario };
   let open = true;
   const reporter: Reporter = {
     fail(f: FailReport) {
-      if (!open) return;
-      keep({
-        kind: "fail",
-        subject: String(f.subject),
-        message: String(f.message),
-        measured: num(f.measured),
-        limit: num(f.limit),
-        unit: f.unit ?? null,
-        margin: marginOf(f.measured, f.limit, f.bound),
-        scenario: scenario.id,
-        order: state.order++,
-        ...(f.bound ? { bound: f.bound } : {}),
-        ...(f.hint ? { hint: f.hint } : {}),
-        ...(f.pos ? { pos: f.pos } : {}),
-      });
+      if (open) fail(scenario.id, f);
     },
-    pass(subject: string, p: PassReport = {}) {
-      if (!open) return;
-      keep({
-        kind: "pass",
-        subject: String(subject),
-        message: "",
-        measured: num(p.measured),
-        limit: num(p.limit),
-        unit: p.unit ?? null,
-        margin: marginOf(p.measured, p.limit, p.bound),
-        scenario: scenario.id,
-        order: state.order++,
-        ...(p.bound ? { bound: p.bound } : {}),
-      });
+    pass(subject: string, p?: PassReport) {
+      if (open) pass(scenario.id, subject, p);
     },
   };
   const solve = analysis.solve;
@@ -397,21 +465,9 @@ async function runOne(
       : undefined;
   if (!work) return;
   try {
-    await withTimeLimit(work, timeLimitMs, configured.source !== "builtin");
+    await withTimeLimit(work, Math.min(timeLimitMs, left), configured.source !== "builtin");
   } catch (err) {
-    keep({
-      kind: "fail",
-      subject: circuit.name,
-      message: `rule \`${rule.id}\` could not check circuit \`${circuit.name}\` in scenario ${scenario.id}: ${reasonOf(err)}`,
-      measured: null,
-      limit: null,
-      unit: null,
-      margin: null,
-      scenario: scenario.id,
-      order: state.order++,
-      hint: configured.source === "builtin" ? "this is a bug in opgate; please report it with the circuit file" : `fix the rule in ${configured.source}, or turn it off in the config`,
-      broken: true,
-    });
+    broken(scenario.id, reasonOf(err));
   } finally {
     open = false;
   }
