@@ -1,8 +1,9 @@
 // The built-in rules: an explicit registry, sorted by id (a meta-test keeps it in step with the
 // files in this folder). No filesystem scanning.
 import type { OptionsOf, Rule } from "../src/review/rule.js";
+import bandEdges from "./band-edges.js";
+import bandFlatness from "./band-flatness.js";
 import capacitorVoltage from "./capacitor-voltage.js";
-import couplingAdequacy from "./coupling-adequacy.js";
 import deviceCurrent from "./device-current.js";
 import devicePower from "./device-power.js";
 import gainWindow from "./gain-window.js";
@@ -13,8 +14,9 @@ import solve from "./solve.js";
 import supplyBudget from "./supply-budget.js";
 
 export const BUILTIN_RULES: ReadonlyMap<string, Rule> = new Map<string, Rule>([
+  ["band-edges", bandEdges],
+  ["band-flatness", bandFlatness],
   ["capacitor-voltage", capacitorVoltage],
-  ["coupling-adequacy", couplingAdequacy],
   ["device-current", deviceCurrent],
   ["device-power", devicePower],
   ["gain-window", gainWindow],
@@ -31,7 +33,7 @@ export function builtinRules(): readonly Rule[] {
 
 // Option types of the built-in rules, derived from their schemas (defaults filled in).
 export type CapacitorVoltageOptions = OptionsOf<typeof capacitorVoltage>;
-export type CouplingAdequacyOptions = OptionsOf<typeof couplingAdequacy>;
+export type BandFlatnessOptions = OptionsOf<typeof bandFlatness>;
 export type DevicePowerOptions = OptionsOf<typeof devicePower>;
 export type HeadroomOptions = OptionsOf<typeof headroom>;
 export type ResistorPowerOptions = OptionsOf<typeof resistorPower>;
