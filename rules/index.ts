@@ -4,6 +4,7 @@ import type { OptionsOf, Rule } from "../src/review/rule.js";
 import bandEdges from "./band-edges.js";
 import bandFlatness from "./band-flatness.js";
 import capacitorVoltage from "./capacitor-voltage.js";
+import coilDrive from "./coil-drive.js";
 import deviceCurrent from "./device-current.js";
 import devicePower from "./device-power.js";
 import gainWindow from "./gain-window.js";
@@ -17,6 +18,7 @@ export const BUILTIN_RULES: ReadonlyMap<string, Rule> = new Map<string, Rule>([
   ["band-edges", bandEdges],
   ["band-flatness", bandFlatness],
   ["capacitor-voltage", capacitorVoltage],
+  ["coil-drive", coilDrive],
   ["device-current", deviceCurrent],
   ["device-power", devicePower],
   ["gain-window", gainWindow],

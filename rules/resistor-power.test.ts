@@ -3,7 +3,7 @@ import { describe, expect, it } from "vitest";
 import { ruleTester } from "../src/review/tester.js";
 import { deratingFactor } from "../src/review/quantities.js";
 import { analysis, circuit, op, resistor } from "../test/review/fixtures.js";
-import { npnStage, pnpStage } from "../test/review/circuits.js";
+import { npnStage, pnpStage, relayDriver } from "../test/review/circuits.js";
 import resistorPower from "./resistor-power.js";
 
 // A 1 kΩ resistor straight across the 12 V rail: P = V²/R = 144 mW (Joule's law).
@@ -37,3 +37,11 @@ describe("derating curve", () => {
     expect(deratingFactor(170, 70, 155)).toBe(0);
   });
 });
+
+// Issue 14 item 6: a relay coil modelled as a resistor dissipates ≈ 12 V·30 mA ≈ 350 mW, far over
+// an assumed 1/16 W — but it is a coil, rated by the relay's own datasheet.
+ruleTester(resistorPower).run([
+  { name: "the relay driver's coil, unmarked, fails as a resistor", circuit: relayDriver(), expect: [{ subject: "K1", messageIncludes: "assumed rating" }] },
+  { name: "an LED/relay driver with its coil marked produces no resistor-power finding on the coil", circuit: relayDriver({ coil: ", role: coil" }), expect: [], passed: ["RB", "RLED"] },
+  { name: "a resistor marked as a load is skipped too", circuit: relayDriver({ coil: ", role: load" }), expect: [] },
+]);

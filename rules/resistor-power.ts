@@ -43,6 +43,9 @@ derating curve). The ambient is the scenario's temperature.
 Why it matters: a resistor run hot drifts, and one run past its rating fails open or burns the
 board; chip resistors in small packages are easy to overload with a low-value bias resistor.
 
+Resistors marked \`role: load\` or \`role: coil\` are not judged: they stand for a load module or
+a relay coil, which their own datasheet rates (the supply rules still count their current).
+
 How to fix: raise the resistance, split the power over several parts, or use a larger package or
 a part with a higher powerRating.
 
@@ -52,7 +55,9 @@ Options: \`fraction\` (default 0.5; a circuit file may override it), \`fullRatin
     const ambient = toCelsius(circuit.temperature);
     const derate = deratingFactor(ambient, options.fullRatingUpToC, options.zeroRatingAtC);
     for (const c of circuit.components) {
-      if (c.kind !== "resistor") continue;
+      // A load module or a coil is not a resistor part: its own datasheet rates it (coil-drive
+      // judges a coil); supply-budget still counts its current.
+      if (c.kind !== "resistor" || c.role !== undefined) continue;
       const point = op.devices[c.id];
       if (!point || point.kind !== "resistor") continue;
       const fromPackage = c.package !== undefined ? options.packageRatings[c.package] : undefined;

@@ -1,7 +1,7 @@
 // supply-budget: the common-emitter stage's supply current and power against budgets.
 import { ruleTester } from "../src/review/tester.js";
 import { analysis, at, circuit, op } from "../test/review/fixtures.js";
-import { npnStage, pnpStage } from "../test/review/circuits.js";
+import { npnStage, pnpStage, relayDriver } from "../test/review/circuits.js";
 import supplyBudget from "./supply-budget.js";
 
 const budget = (b: string) => `  supplies:\n    - { source: VCC, ${b} }`;
@@ -17,4 +17,12 @@ ruleTester(supplyBudget).run([
   { name: "PNP stage within 2 mA and 20 mW", circuit: pnpStage({ specs: budget("maxCurrent: 2 mA, maxPower: 20 mW") }), expect: [], passed: ["VCC"] },
   { name: "negative rail: −2.001 mA is over a 2 mA budget", circuit: rails, analyses: vee(-2.001e-3), expect: [{ subject: "VEE" }] },
   { name: "negative rail: −1.999 mA is within it", circuit: rails, analyses: vee(-1.999e-3), expect: [], passed: ["VEE"] },
+]);
+
+// A coil marked `role: coil` is skipped by part ratings but still draws from the supply:
+// ≈ 29.8 mA (coil) + ≈ 4.6 mA (LED, (12 − ≈1.8 V)/2.2 kΩ) ≈ 34.4 mA (the base current comes from
+// VLOGIC, not VCC).
+ruleTester(supplyBudget).run([
+  { name: "a marked coil's current still counts against the supply budget", circuit: relayDriver({ coil: ", role: coil", specs: budget("maxCurrent: 32 mA") }), expect: [{ subject: "VCC", messageIncludes: "over its budget of 32 mA" }] },
+  { name: "and fits a 40 mA budget", circuit: relayDriver({ coil: ", role: coil", specs: budget("maxCurrent: 40 mA") }), expect: [], passed: ["VCC"] },
 ]);

@@ -135,9 +135,27 @@ function resolveComponent(ctx: ResolveContext, raw: Obj, index: number): Compone
     case "resistor": {
       const value = tol("value", "resistance");
       const powerRating = opt("powerRating", "power");
+      const mustOperateCurrent = opt("mustOperateCurrent", "current");
+      const mustOperateVoltage = opt("mustOperateVoltage", "voltage");
       if (!value) return undefined;
       if (value.min <= 0) ctx.error([...path, "value"], `${what}: resistance must be positive`, "use a voltage source of 0 V for a short");
-      return { ...base, kind: "resistor", pins: two, value, ...(powerRating !== undefined ? { powerRating } : {}), ...(raw["package"] !== undefined ? { package: String(raw["package"]) } : {}) };
+      const role = raw["role"] === "load" || raw["role"] === "coil" ? raw["role"] : undefined;
+      for (const [key, v] of [["mustOperateCurrent", mustOperateCurrent], ["mustOperateVoltage", mustOperateVoltage]] as const) {
+        if (v === undefined) continue;
+        if (role !== "coil") ctx.error([...path, key], `${what}: \`${key}\` belongs to a relay or solenoid coil, but the resistor is not marked as one`, "add `role: coil`, or remove the key");
+        else if (!(v > 0)) ctx.error([...path, key], `${what}: \`${key}\` must be positive`, "write the magnitude from the coil's datasheet, e.g. 12 mA or 9 V");
+      }
+      return {
+        ...base,
+        kind: "resistor",
+        pins: two,
+        value,
+        ...(powerRating !== undefined ? { powerRating } : {}),
+        ...(raw["package"] !== undefined ? { package: String(raw["package"]) } : {}),
+        ...(role !== undefined ? { role } : {}),
+        ...(mustOperateCurrent !== undefined ? { mustOperateCurrent } : {}),
+        ...(mustOperateVoltage !== undefined ? { mustOperateVoltage } : {}),
+      };
     }
     case "capacitor": {
       const value = tol("value", "capacitance");

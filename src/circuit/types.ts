@@ -51,7 +51,17 @@ export interface Resistor extends ComponentBase {
   readonly powerRating?: number;
   /** Chip size code as written, e.g. "0603". */
   readonly package?: string;
+  /**
+   * What the resistance stands for when it is not a resistor part: a load module or heater
+   * (`load`), or a relay/solenoid coil's DC resistance (`coil`). Part-rating rules skip it.
+   */
+  readonly role?: ResistorRole;
+  /** Coil only: the current (A) and/or voltage (V) the coil needs to operate for sure. */
+  readonly mustOperateCurrent?: number;
+  readonly mustOperateVoltage?: number;
 }
+
+export type ResistorRole = "load" | "coil";
 
 export interface Capacitor extends ComponentBase {
   readonly kind: "capacitor";

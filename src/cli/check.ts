@@ -1,9 +1,9 @@
 // `opgate check`: the gate. Finds circuit files, checks them (on worker threads with --jobs,
 // one slice with --shard), prints a line per file and its findings, writes the requested
 // reports, annotates the pull request under GitHub Actions, and exits 0 / 1 / 2.
-import { appendFileSync, existsSync, mkdirSync, readFileSync, statSync, writeFileSync } from "node:fs";
+import { appendFileSync, existsSync, readFileSync, statSync } from "node:fs";
 import { availableParallelism } from "node:os";
-import { dirname, resolve } from "node:path";
+import { resolve } from "node:path";
 import type { InputError } from "../circuit/types.js";
 import type { CheckContext, CheckContextOptions } from "../pipeline/check-file.js";
 import { renderAnnotations } from "../report/annotations.js";
@@ -17,10 +17,11 @@ import { renderMarkdown, truncateMarkdown } from "../report/markdown.js";
 import { renderSarif } from "../report/sarif.js";
 import { DocumentError, readDocument } from "../report/validate.js";
 import { makeCheckContext } from "../run/context.js";
-import { discoverCircuitFiles } from "../run/discover.js";
+import { discover, DiscoveryError, type Discovery } from "../run/discover.js";
 import { runCheck } from "../run/run-check.js";
 import { parseShard, type Shard } from "../run/shard.js";
 import { CliExit, EXIT_INPUT, type CliIo } from "./io.js";
+import { checkOutputTargets, writeAtomically, type Input } from "./outputs.js";
 import type { CommandSpec } from "./main.js";
 
 /** Below this many files a progress bar only flickers. */
@@ -67,8 +68,7 @@ export function writeReports(doc: ResultsDocument, targets: Partial<Record<Forma
     }
     const path = resolve(io.cwd, target);
     try {
-      mkdirSync(dirname(path), { recursive: true });
-      writeFileSync(path, text);
+      writeAtomically(path, text);
     } catch (err) {
       throw new CliExit(EXIT_INPUT, `cannot write the ${format} report to ${target}: ${err instanceof Error ? err.message : String(err)}`);
     }
@@ -169,6 +169,23 @@ function outputTargets(args: Record<string, unknown>, ctx: CheckContext): Partia
   return targets;
 }
 
+/** What a report must never overwrite: the circuits, the config, its plugins, the baseline. */
+function runInputs(files: readonly { abs: string; display: string }[], ctx: CheckContext, baseline: string | undefined): Input[] {
+  return [
+    ...files.map((f) => ({ abs: f.abs, what: `the circuit file ${f.display}` })),
+    ...(ctx.config.file ? [{ abs: ctx.config.file, what: "the config file" }] : []),
+    ...ctx.config.plugins.map((p) => ({ abs: p, what: "a team-rule plugin" })),
+    ...(baseline ? [{ abs: baseline, what: "the baseline document" }] : []),
+  ];
+}
+
+/** One line for the files a folder or glob matched that are not circuit files. */
+function skippedLine(skipped: readonly string[]): string {
+  const shown = skipped.slice(0, 3).join(", ");
+  const more = skipped.length > 3 ? ` and ${skipped.length - 3} more` : "";
+  return `opgate: skipped ${skipped.length} file${skipped.length === 1 ? "" : "s"} that ${skipped.length === 1 ? "is" : "are"} not circuit files (no \`format: opgate-circuit/…\`): ${shown}${more}\n`;
+}
+
 export const checkCommand: CommandSpec = {
   command: "check [paths..]",
   describe: "Check circuit files (paths, folders or globs; default: the config's include globs)",
@@ -216,14 +233,27 @@ export const checkCommand: CommandSpec = {
     const baselineDoc = typeof args.baseline === "string" ? readBaseline(args.baseline, io) : undefined;
 
     const patterns = stringList(args.paths);
-    const files = await discoverCircuitFiles(patterns, {
-      cwd: io.cwd,
-      root: ctx.root,
-      include: ctx.config.include,
-      exclude: ctx.config.exclude,
-    });
+    const targets = outputTargets(args, ctx);
+    const outputPaths = Object.values(targets).filter((t): t is string => typeof t === "string" && t !== "-").map((t) => resolve(io.cwd, t));
+    let found: Discovery;
+    try {
+      found = await discover(patterns, {
+        cwd: io.cwd,
+        root: ctx.root,
+        include: ctx.config.include,
+        exclude: ctx.config.exclude,
+        circuitsOnly: true,
+        outputs: outputPaths,
+      });
+    } catch (err) {
+      if (err instanceof DiscoveryError) throw new CliExit(EXIT_INPUT, err.message);
+      throw err;
+    }
+    const files = found.files;
+    checkOutputTargets(targets, runInputs(files, ctx, typeof args.baseline === "string" ? resolve(io.cwd, args.baseline) : undefined), io.cwd);
+    if (found.skipped.length > 0) io.stderr(skippedLine(found.skipped));
     if (files.length === 0) {
-      throw new CliExit(EXIT_INPUT, `no circuit files (.json, .yaml, .yml) match ${patterns.length ? patterns.join(" ") : ctx.config.include.join(" ")}`);
+      throw new CliExit(EXIT_INPUT, `no circuit files (.json, .yaml, .yml declaring format: opgate-circuit/…) match ${patterns.length ? patterns.join(" ") : ctx.config.include.join(" ")}`);
     }
 
     const showProgress = io.isTTY && io.env.CI !== "true" && !io.env.GITHUB_ACTIONS && files.length >= PROGRESS_MIN_FILES;
@@ -241,7 +271,7 @@ export const checkCommand: CommandSpec = {
     if (shard && doc.circuits.length === 0) io.stderr(`opgate: shard ${shard.index}/${shard.count} has no files (${files.length} in all)\n`);
 
     const reportOptions: ReportOptions = baselineDoc ? { baseline: diffDocuments(baselineDoc, doc) } : {};
-    const reportOnStdout = writeReports(doc, outputTargets(args, ctx), io, reportOptions);
+    const reportOnStdout = writeReports(doc, targets, io, reportOptions);
     const consoleText = renderConsole(doc, {
       color: colourEnabled(io.env, io.isTTY),
       quiet: args.quiet === true,

@@ -11,6 +11,7 @@ import { DocumentError, readDocument } from "../report/validate.js";
 import { readBaseline, writeCiOutputs, writeReports, type ReportOptions } from "./check.js";
 import { CliExit, EXIT_INPUT, type CliIo } from "./io.js";
 import type { CommandSpec } from "./main.js";
+import { checkOutputTargets } from "./outputs.js";
 
 function readShard(path: string, io: CliIo): ResultsDocument {
   let text: string;
@@ -61,6 +62,11 @@ export const mergeCommand: CommandSpec = {
       ...(typeof args.markdown === "string" ? { markdown: args.markdown } : {}),
       ...(typeof args.sarif === "string" ? { sarif: args.sarif } : {}),
     };
+    checkOutputTargets(
+      targets,
+      [...paths.map((p) => ({ abs: resolve(io.cwd, p), what: `the shard document ${p}` })), ...(typeof args.baseline === "string" ? [{ abs: resolve(io.cwd, args.baseline), what: "the baseline document" }] : [])],
+      io.cwd,
+    );
     const onStdout = writeReports(merged, targets, io, options);
     const text = renderConsole(merged, { color: colourEnabled(io.env, io.isTTY), quiet: args.quiet === true, ...(options.baseline ? { baseline: options.baseline } : {}) });
     if (onStdout) io.stderr(text);

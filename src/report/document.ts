@@ -97,6 +97,22 @@ export interface RuleEntry {
   readonly source: string;
 }
 
+/**
+ * What a shard document proves about the run it belongs to: its slice (index of count), how many
+ * files the whole run had and the digest of their sorted list (so shards of different runs, or
+ * of one run whose files changed between jobs, cannot be merged), and its own files.
+ */
+export interface ShardProvenance {
+  readonly index: number;
+  readonly count: number;
+  /** Files in the whole run (all shards). */
+  readonly total: number;
+  /** `sha256:` + hex of the whole run's display paths in code-point order, each followed by "\n". */
+  readonly digest: string;
+  /** This shard's files (every one has a circuits entry). */
+  readonly files: readonly string[];
+}
+
 export interface Summary {
   readonly circuits: number;
   readonly passed: number;
@@ -112,7 +128,7 @@ export interface ResultsDocument {
   readonly format: "opgate-results/1";
   readonly tool: { readonly name: "opgate"; readonly version: string };
   /** Present when this document covers one shard of a sharded run. */
-  readonly shard?: { readonly index: number; readonly count: number; readonly files: readonly string[] };
+  readonly shard?: ShardProvenance;
   readonly variation: { readonly mode: string; readonly samples: number; readonly seed: number };
   readonly rules: readonly RuleEntry[];
   /** Sorted by file. */

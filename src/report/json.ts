@@ -43,7 +43,7 @@ const DOCUMENT: Shape = {
   keys: ["format", "tool", "shard", "variation", "rules", "circuits", "summary", "generatedAt"],
   children: {
     tool: { keys: ["name", "version"] },
-    shard: { keys: ["index", "count", "files"] },
+    shard: { keys: ["index", "count", "total", "digest", "files"] },
     variation: { keys: ["mode", "samples", "seed"] },
     rules: { items: { keys: ["id", "description", "severity", "source", "docs"] } },
     circuits: { items: CIRCUIT },

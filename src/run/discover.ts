@@ -1,7 +1,14 @@
 // Which circuit files a run checks: explicit files, folders (searched with the config's include
 // globs) and globs, minus the config's excludes; shown relative to the results root.
+//
+// What a run may take is bounded here: a path on the command line that matches nothing is an
+// error naming it (a gate that skips a misspelt file passes it), an unreadable folder is an
+// error naming it, the config's include globs stay inside the repository root, every real file
+// is checked once however many links lead to it, node_modules is never entered, and a file
+// found by a folder or glob that does not say `format: opgate-circuit/…` is not a circuit: it
+// is skipped and counted (a named file is always checked).
 import fg from "fast-glob";
-import { statSync } from "node:fs";
+import { readFileSync, realpathSync, statSync } from "node:fs";
 import { isAbsolute, relative, resolve, sep } from "node:path";
 import { compareText } from "../report/build.js";
 
@@ -17,6 +24,34 @@ export interface DiscoverOptions {
   readonly root: string;
   readonly include: readonly string[];
   readonly exclude: readonly string[];
+  /**
+   * Skip files found through a folder or glob whose text does not declare
+   * `format: opgate-circuit/…` (they are listed in `skipped`). Off: every match is a circuit.
+   */
+  readonly circuitsOnly?: boolean;
+  /** Absolute paths never taken as circuits (the run's own report files). */
+  readonly outputs?: readonly string[];
+}
+
+export interface Discovery {
+  /** Sorted by display path, one entry per real file. */
+  readonly files: CircuitFile[];
+  /** Display paths of matched files that are not circuit files (circuitsOnly), sorted. */
+  readonly skipped: string[];
+}
+
+/** A path or glob that cannot be used; the message names it (exit 2 at the CLI). */
+export class DiscoveryError extends Error {}
+
+/** Folders no search enters, whatever the config says: installed packages are not circuits. */
+const ALWAYS_EXCLUDED = ["**/node_modules/**"];
+
+/** A file that declares itself a circuit: `format: opgate-circuit/…` as a top-level YAML key, or the JSON key. */
+const YAML_FORMAT = /^(?:format|"format"|'format')[ \t]*:[ \t]*["']?opgate-circuit\//m;
+const JSON_FORMAT = /"format"\s*:\s*"opgate-circuit\//;
+
+export function declaresCircuit(text: string): boolean {
+  return YAML_FORMAT.test(text) || JSON_FORMAT.test(text);
 }
 
 function under(abs: string, dir: string): string | null {
@@ -37,15 +72,82 @@ export function displayPath(abs: string, root: string, cwd: string = root): stri
   return under(abs, base) ?? under(abs, cwd) ?? relative(cwd, abs).split(sep).join("/");
 }
 
+function reason(err: unknown): string {
+  const code = (err as { code?: string }).code;
+  if (code === "EACCES" || code === "EPERM") return "permission denied";
+  if (code === "ELOOP") return "too many levels of symbolic links";
+  if (code === "ENOENT") return "does not exist";
+  return err instanceof Error ? err.message : String(err);
+}
+
+/** An include glob that climbs out of the root (`../…`, `/…`) would crawl whatever is there. */
+function leavesRoot(pattern: string): boolean {
+  return isAbsolute(pattern) || /^[A-Za-z]:/.test(pattern) || pattern.split(/[\\/]/).includes("..");
+}
+
+async function glob(patterns: string | readonly string[], cwd: string, ignore: readonly string[]): Promise<string[]> {
+  try {
+    return await fg(typeof patterns === "string" ? patterns : [...patterns], {
+      cwd,
+      absolute: true,
+      onlyFiles: true,
+      dot: false,
+      ignore: [...ignore],
+      suppressErrors: false,
+    });
+  } catch (err) {
+    const path = (err as { path?: string }).path;
+    throw new DiscoveryError(`cannot read ${path ? relative(cwd, path) || "." : cwd}: ${reason(err)}`);
+  }
+}
+
 /**
  * Expands `patterns` (none: the config's include globs under its root) into a de-duplicated list
  * sorted by display path. An explicitly named file is always checked, even if excluded.
+ * Throws DiscoveryError for an empty path, a path that matches nothing, an unreadable folder or
+ * an include glob that leaves the root.
  */
-export async function discoverCircuitFiles(patterns: readonly string[], options: DiscoverOptions): Promise<CircuitFile[]> {
-  const found = new Set<string>();
-  const globOptions = { absolute: true, onlyFiles: true, dot: false, ignore: [...options.exclude] };
+export async function discover(patterns: readonly string[], options: DiscoverOptions): Promise<Discovery> {
+  if (patterns.some((p) => p.trim() === "")) throw new DiscoveryError("an empty path was given: name a file, folder or glob (`.` for the working directory)");
+  const outside = options.include.filter(leavesRoot);
+  if (outside.length > 0) throw new DiscoveryError(`include ${outside.map((p) => `\`${p}\``).join(", ")} leaves the repository root: include globs are relative to the config's folder and stay inside it (name an outside path on the command line instead)`);
+  const ignore = [...ALWAYS_EXCLUDED, ...options.exclude];
+  const outputs = new Set((options.outputs ?? []).map((p) => resolve(p)));
+  /** realpath → the path it was first found by. */
+  const byReal = new Map<string, string>();
+  const named = new Set<string>();
+  const unmatched: string[] = [];
+  const add = (abs: string, explicit: boolean): boolean => {
+    let real: string;
+    try {
+      real = realpathSync(abs);
+    } catch {
+      return false; // a dangling or looping link: nothing to read
+    }
+    if (!explicit && (outputs.has(abs) || outputs.has(real))) return false;
+    if (!byReal.has(real)) byReal.set(real, abs);
+    if (explicit) named.add(byReal.get(real)!);
+    return true;
+  };
+  const inRoot = (abs: string): boolean => {
+    let real: string;
+    try {
+      real = realpathSync(abs);
+    } catch {
+      return false;
+    }
+    const root = (() => {
+      try {
+        return realpathSync(options.root);
+      } catch {
+        return options.root;
+      }
+    })();
+    return real === root || under(real, root) !== null;
+  };
   if (patterns.length === 0) {
-    for (const f of await fg([...options.include], { ...globOptions, cwd: options.root })) found.add(resolve(f));
+    // The include globs: inside the root, following no link out of it.
+    for (const f of await glob(options.include, options.root, ignore)) if (inRoot(f)) add(resolve(f), false);
   }
   for (const pattern of patterns) {
     const abs = resolve(options.cwd, pattern);
@@ -53,14 +155,46 @@ export async function discoverCircuitFiles(patterns: readonly string[], options:
     try {
       const st = statSync(abs);
       kind = st.isDirectory() ? "dir" : st.isFile() ? "file" : "none";
-    } catch {
+    } catch (err) {
+      const code = (err as { code?: string }).code;
+      if (code !== "ENOENT" && code !== "ENOTDIR") throw new DiscoveryError(`cannot read ${pattern}: ${reason(err)}`);
       // not a path: a glob
     }
-    if (kind === "file") found.add(abs);
-    else if (kind === "dir") for (const f of await fg([...options.include], { ...globOptions, cwd: abs })) found.add(resolve(f));
-    else for (const f of await fg(pattern, { ...globOptions, cwd: options.cwd })) found.add(resolve(f));
+    let matched = 0;
+    if (kind === "file") matched += add(abs, true) ? 1 : 0;
+    else if (kind === "dir") for (const f of await glob(options.include, abs, ignore)) matched += add(resolve(f), false) ? 1 : 0;
+    else if (fg.isDynamicPattern(pattern)) for (const f of await glob(pattern, options.cwd, ignore)) matched += add(resolve(f), false) ? 1 : 0;
+    if (matched === 0) unmatched.push(pattern);
   }
-  return [...found]
-    .map((abs) => ({ abs, display: displayPath(abs, options.root, options.cwd) }))
-    .sort((a, b) => compareText(a.display, b.display));
+  if (unmatched.length > 0) {
+    const list = unmatched.map((p) => JSON.stringify(p)).join(", ");
+    throw new DiscoveryError(
+      `${unmatched.length === 1 ? "this path matches" : "these paths match"} no file: ${list} (a named file must exist; a folder or glob must hold .json, .yaml or .yml files)`,
+    );
+  }
+  const files: CircuitFile[] = [];
+  const skipped: string[] = [];
+  for (const abs of byReal.values()) {
+    const entry = { abs, display: displayPath(abs, options.root, options.cwd) };
+    if (options.circuitsOnly && !named.has(abs) && !isCircuitFile(abs)) skipped.push(entry.display);
+    else files.push(entry);
+  }
+  files.sort((a, b) => compareText(a.display, b.display));
+  skipped.sort(compareText);
+  return { files, skipped };
+}
+
+function isCircuitFile(abs: string): boolean {
+  let text: string;
+  try {
+    text = readFileSync(abs, "utf8");
+  } catch {
+    return true; // unreadable: let the check say so, naming the file
+  }
+  return declaresCircuit(text);
+}
+
+/** discover() without the non-circuit skipping, for callers that want every match. */
+export async function discoverCircuitFiles(patterns: readonly string[], options: DiscoverOptions): Promise<CircuitFile[]> {
+  return (await discover(patterns, options)).files;
 }

@@ -3,6 +3,7 @@
 import type { CheckContext, CheckContextOptions } from "../pipeline/check-file.js";
 import { buildDocument } from "../report/build.js";
 import type { ResultsDocument } from "../report/document.js";
+import { shardProvenance } from "../report/merge.js";
 import type { CircuitFile } from "./discover.js";
 import type { LaneKind } from "./lane.js";
 import { checkFiles } from "./pool.js";
@@ -48,7 +49,7 @@ export async function runCheck(allFiles: readonly CircuitFile[], options: RunOpt
     failOn: config.failOn,
     variation: { mode: config.variation.mode, samples: config.variation.samples, seed: config.variation.seed },
     version: toolVersion(),
-    ...(options.shard ? { shard: { ...options.shard, files: files.map((f) => f.display) } } : {}),
+    ...(options.shard ? { shard: shardProvenance(allFiles.map((f) => f.display), options.shard, files.map((f) => f.display)) } : {}),
     ...(options.timestamp ? { timestamp: options.timestamp } : {}),
   });
 }

@@ -216,3 +216,22 @@ specs:
     expect(c.specs.band).toMatchObject({ low: 20, high: 20e3 });
   });
 });
+
+describe("component role (load / coil)", () => {
+  it("reads role and the coil's must-operate values in SI", () => {
+    const c = load(yaml(`${VCC}  - { id: K1, kind: resistor, pins: [vcc, gnd], value: 400, role: coil, mustOperateCurrent: 22 mA, mustOperateVoltage: 9 V }\n  - { id: RH, kind: resistor, pins: [vcc, gnd], value: 47, role: load }\n`));
+    const k1 = c.components.find((x) => x.id === "K1") as Resistor;
+    expect(k1.role).toBe("coil");
+    expect(k1.mustOperateCurrent).toBeCloseTo(0.022, 15);
+    expect(k1.mustOperateVoltage).toBe(9);
+    expect((c.components.find((x) => x.id === "RH") as Resistor).role).toBe("load");
+  });
+  it("refuses a must-operate value on a resistor not marked as a coil, at the key's line", () => {
+    const errs = errorsOf(yaml(`${VCC}  - { id: K1, kind: resistor, pins: [vcc, gnd], value: 400,\n      mustOperateCurrent: 22 mA }\n`));
+    expect(errs[0]).toMatchObject({ line: 6, message: expect.stringContaining("not marked as one"), hint: expect.stringContaining("role: coil") });
+  });
+  it("refuses an unknown role through the schema", () => {
+    const errs = errorsOf(yaml(`${VCC}  - { id: K1, kind: resistor, pins: [vcc, gnd], value: 400, role: relay }\n`));
+    expect(errs[0]!.line).toBe(5);
+  });
+});

@@ -84,7 +84,7 @@ describe("results schema", () => {
 
   it("accepts every single-circuit document and a sharded one", () => {
     for (const c of [PASSING, FAILING, BROKEN, HOSTILE]) {
-      const value = JSON.parse(renderJson(buildDocument([c], { ...OPTIONS, shard: { index: 1, count: 2, files: [c.file] } })));
+      const value = JSON.parse(renderJson(buildDocument([c], { ...OPTIONS, shard: { index: 1, count: 2, total: 2, digest: `sha256:${"0".repeat(64)}`, files: [c.file] } })));
       expect(validate(value), JSON.stringify(validate.errors)).toBe(true);
     }
   });

@@ -115,3 +115,37 @@ specs:
 ${o.specs ?? "  supplies: []"}
 `;
 }
+
+export interface RelayDriver {
+  /** Extra keys on the coil's line, e.g. `, role: coil, mustOperateCurrent: 25 mA`. */
+  readonly coil?: string;
+  readonly vcc?: string;
+  /** Lines before `models:` (temperature). */
+  readonly head?: string;
+  readonly specs?: string;
+}
+
+/**
+ * A Tidewater Instruments alarm-relay driver: a 400 Ω, 12 V relay coil switched by an NPN
+ * driven hard from a 5 V logic output (IB ≈ 4.3 V/4k7 ≈ 0.9 mA, forced beta ≈ 33, so the
+ * transistor is saturated and nearly all of VCC is across the coil: ≈ 29.5 mA, ≈ 350 mW), a
+ * flyback diode across the coil, and a status LED with its 2k2 series resistor on the same rail.
+ */
+export function relayDriver(o: RelayDriver = {}): string {
+  return `${o.head ?? ""}
+models:
+  tw-npn: { kind: npn, beta: { min: 150, typ: 250, max: 400 }, saturationCurrent: 1e-14 A, earlyVoltage: 100 V }
+  flyback: { kind: diode, saturationCurrent: 2 nA, ideality: 1.8 }
+  status-led: { kind: diode, saturationCurrent: 1e-18 A, ideality: 2 }
+components:
+  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, dc: ${o.vcc ?? "12 V"}, tolerance: 5% }
+  - { id: VLOGIC, kind: voltage-source, pins: { plus: logic, minus: gnd }, dc: 5 V }
+  - { id: K1, kind: resistor, pins: [vcc, col], value: 400${o.coil ?? ""} }
+  - { id: D1, kind: diode, model: flyback, pins: { anode: col, cathode: vcc } }
+  - { id: RB, kind: resistor, pins: [logic, base], value: 4k7, package: "0603" }
+  - { id: Q1, kind: npn, model: tw-npn, pins: { collector: col, base: base, emitter: gnd } }
+  - { id: RLED, kind: resistor, pins: [vcc, led], value: 2k2, package: "0805" }
+  - { id: D2, kind: diode, model: status-led, pins: { anode: led, cathode: gnd } }
+specs:
+${o.specs ?? "  supplies: []"}`;
+}
