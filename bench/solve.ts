@@ -1,12 +1,14 @@
 // Benchmark of the bias solve: median µs per operating-point solve and Newton iterations for
 // generated transistor chains of 10, 30, 100 and 300 nodes, beside the identical Newton loop
 // whose linear step is mathjs `lusolve` (same run, reported as a ratio).
-// Run alone with `npx tsx bench/solve.ts`; `npm run bench` calls benchSolve().
+// A second table times dense against sparse storage (10–3,000 nodes) with the same Newton loop.
+// Run alone with `node dist/bench/solve.js`; `npm run bench` calls benchSolve().
 
 import { pathToFileURL } from "node:url";
 import { lup, lusolve } from "mathjs";
 import type { Circuit, Component, Model, SourcePos } from "../src/circuit/types.js";
 import { solveOperatingPoint } from "../src/solve/index.js";
+import { SPARSE_MIN_UNKNOWNS } from "../src/solve/plan.js";
 import type { LinearSolverFactory } from "../src/solve/linear-solver.js";
 // Seeded (mulberry32) so every run times the same circuits.
 import { seededRandom } from "../src/variation/random.js";
@@ -157,6 +159,13 @@ export interface SolveBenchRow {
 }
 
 export async function benchSolve(print: (line: string) => void = console.log): Promise<SolveBenchRow[]> {
+  const rows = await benchLinearStep(print);
+  print("");
+  await benchStorage(print);
+  return rows;
+}
+
+async function benchLinearStep(print: (line: string) => void): Promise<SolveBenchRow[]> {
   const rows: SolveBenchRow[] = [];
   for (const n of SIZES) {
     const c = chainCircuit(n);
@@ -190,6 +199,60 @@ export async function benchSolve(print: (line: string) => void = console.log): P
     print(
       `  targets: 30 nodes under ${TARGET_MICROS_30} µs (median): ${r30.micros < TARGET_MICROS_30 ? "met" : "missed"}; ` +
         `≥${TARGET_RATIO}× mathjs: ${rows.filter((r) => r.ratio >= TARGET_RATIO).length} of ${rows.length} sizes`,
+    );
+  }
+  return rows;
+}
+
+/** Node counts of the storage comparison. */
+export const STORAGE_SIZES = [10, 30, 100, 300, 1000, 3000] as const;
+/** Targets from issue 15: median bias solve at 1,000 and 3,000 nodes, ms. */
+export const TARGET_MS_1000 = 3;
+export const TARGET_MS_3000 = 10;
+
+export interface StorageBenchRow {
+  readonly nodes: number;
+  readonly denseMicros: number;
+  readonly denseCpuMicros: number;
+  readonly sparseMicros: number;
+  readonly sparseCpuMicros: number;
+  readonly sparseBestMicros: number;
+}
+
+/**
+ * Dense against sparse storage on the same chains, measured alternately (dense, sparse, dense,
+ * sparse; the faster median of each kept) so that a slow spell of the shared machine hits both.
+ */
+export async function benchStorage(print: (line: string) => void = console.log): Promise<StorageBenchRow[]> {
+  const rows: StorageBenchRow[] = [];
+  for (const n of STORAGE_SIZES) {
+    const c = chainCircuit(n);
+    const d = solveOperatingPoint(c, { storage: "dense" });
+    const s = solveOperatingPoint(c, { storage: "sparse" });
+    if (!d.ok || !s.ok) throw new Error(`bench circuit ${c.name} did not solve`);
+    const dense = [medianMicros(() => solveOperatingPoint(c, { storage: "dense" }))];
+    const sparse = [medianMicros(() => solveOperatingPoint(c, { storage: "sparse" }))];
+    dense.push(medianMicros(() => solveOperatingPoint(c, { storage: "dense" })));
+    sparse.push(medianMicros(() => solveOperatingPoint(c, { storage: "sparse" })));
+    const best = <T extends { wall: number }>(xs: T[]): T => xs.reduce((a, b) => (b.wall < a.wall ? b : a));
+    const bd = best(dense);
+    const bs = best(sparse);
+    rows.push({ nodes: c.nodes.length, denseMicros: bd.wall, denseCpuMicros: bd.cpu, sparseMicros: bs.wall, sparseCpuMicros: bs.cpu, sparseBestMicros: Math.min(...sparse.map((m) => m.best)) });
+  }
+  print(`bias solve, matrix storage (median per operating point; default: sparse from ${SPARSE_MIN_UNKNOWNS} unknowns)`);
+  print("  nodes   dense µs (cpu)        sparse µs (cpu) [fastest batch]   dense/sparse");
+  for (const r of rows) {
+    print(
+      `  ${String(r.nodes).padStart(5)}  ${r.denseMicros.toFixed(0).padStart(8)} (${r.denseCpuMicros.toFixed(0).padStart(8)})  ${r.sparseMicros.toFixed(0).padStart(8)} (${r.sparseCpuMicros.toFixed(0).padStart(8)}) [${r.sparseBestMicros.toFixed(0).padStart(8)}]  ${(r.denseMicros / r.sparseMicros).toFixed(2).padStart(6)}×`,
+    );
+  }
+  const at = (n: number) => rows.find((r) => Math.abs(r.nodes - n) <= 2);
+  const r1 = at(1000);
+  const r3 = at(3000);
+  if (r1 && r3) {
+    print(
+      `  targets: 1,000 nodes ≤ ${TARGET_MS_1000} ms: ${r1.sparseMicros <= TARGET_MS_1000 * 1000 ? "met" : "missed"} (${(r1.sparseMicros / 1000).toFixed(2)} ms); ` +
+        `3,000 nodes ≤ ${TARGET_MS_3000} ms: ${r3.sparseMicros <= TARGET_MS_3000 * 1000 ? "met" : "missed"} (${(r3.sparseMicros / 1000).toFixed(2)} ms)`,
     );
   }
   return rows;

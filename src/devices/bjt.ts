@@ -179,7 +179,7 @@ class BjtInstance implements DeviceInstance {
     const ic = p * (this.ic - icVbe * vbe - icVbc * vbc);
     const ib = p * (this.ib - ibVbe * vbe - ibVbc * vbc);
     if (this.offN !== mt.n) {
-      pinOffsets(this.stampIndices, mt.n, this.off);
+      pinOffsets(this.stampIndices, mt, this.off);
       this.offN = mt.n;
     }
     // stampPinsAt unrolled: the same additions in the same order (row by row, column by

@@ -42,6 +42,46 @@ export interface StampTarget {
    * through addA, so none is missed).
    */
   readonly touched?: TouchedList;
+  /**
+   * Sparse storage (large systems): `a` holds only the pattern's entries and this gives the
+   * index of entry (row, col) in it. Absent: `a` is dense, entry (row, col) at row·n + col.
+   */
+  readonly entryOf?: (row: number, col: number) => number;
+  /**
+   * Present while a sparse plan stamps its static part, before the pattern is known: addA
+   * records each entry here instead of writing `a`.
+   */
+  readonly entries?: EntryList;
+}
+
+/** (row, col, value) of every static stamp of a sparse plan, in typed arrays that grow as needed. */
+export class EntryList {
+  count = 0;
+  rows: Int32Array;
+  cols: Int32Array;
+  vals: Float64Array;
+  constructor(capacity: number) {
+    this.rows = new Int32Array(capacity);
+    this.cols = new Int32Array(capacity);
+    this.vals = new Float64Array(capacity);
+  }
+  add(row: number, col: number, v: number): void {
+    if (this.count === this.rows.length) {
+      const size = 2 * this.count + 32;
+      const rows = new Int32Array(size);
+      const cols = new Int32Array(size);
+      const vals = new Float64Array(size);
+      rows.set(this.rows);
+      cols.set(this.cols);
+      vals.set(this.vals);
+      this.rows = rows;
+      this.cols = cols;
+      this.vals = vals;
+    }
+    this.rows[this.count] = row;
+    this.cols[this.count] = col;
+    this.vals[this.count++] = v;
+  }
 }
 
 /**
@@ -111,7 +151,11 @@ export interface DeviceInstance {
 /** Adds v at (row, col), skipping the eliminated ground row/column. */
 export function addA(m: StampTarget, row: number, col: number, v: number): void {
   if (row >= 0 && col >= 0) {
-    const k = row * m.n + col;
+    if (m.entries) {
+      m.entries.add(row, col, v);
+      return;
+    }
+    const k = m.entryOf ? m.entryOf(row, col) : row * m.n + col;
     m.a[k]! += v;
     m.touched?.add(k, row);
   }
@@ -136,17 +180,19 @@ export function volt(x: Float64Array, i: number): number {
 }
 
 /**
- * Flat matrix offsets of a k-pin device's entries for an n×n system: off[i·k+j] is where
- * ∂I(pin i)/∂V(pin j) goes, −1 where either pin is ground. Worked out once per matrix size so
- * the stamp in the Newton loop is a plain indexed add.
+ * Offsets in m.a of a k-pin device's entries: off[i·k+j] is where ∂I(pin i)/∂V(pin j) goes, −1
+ * where either pin is ground. Worked out once per plan so the stamp in the Newton loop is a
+ * plain indexed add (dense storage: row·n + col; sparse: the entry's index in the pattern).
  */
-export function pinOffsets(idx: readonly number[], n: number, off: number[]): void {
+export function pinOffsets(idx: readonly number[], m: StampTarget, off: number[]): void {
   const k = idx.length;
+  const n = m.n;
+  const entryOf = m.entryOf;
   for (let i = 0; i < k; i++) {
     const r = idx[i]!;
     for (let j = 0; j < k; j++) {
       const c = idx[j]!;
-      off[i * k + j] = r >= 0 && c >= 0 ? r * n + c : -1;
+      off[i * k + j] = r >= 0 && c >= 0 ? (entryOf ? entryOf(r, c) : r * n + c) : -1;
     }
   }
 }

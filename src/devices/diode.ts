@@ -73,7 +73,7 @@ export function diode(c: Diode, ctx: SetupContext): DeviceInstance {
       const gd = junctionOut[1]!;
       const ieq = i - gd * v;
       if (offN !== m.n) {
-        pinOffsets(idx, m.n, off);
+        pinOffsets(idx, m, off);
         offN = m.n;
       }
       // stampPinsAt unrolled over g = [gd, −gd; −gd, gd]: the same additions in the same order.

@@ -210,7 +210,7 @@ class MosInstance implements DeviceInstance {
     const gs = -(gm + gds + gmb);
     const id = p * (this.id_ - gm * vgs - gds * vds - gmb * vbs);
     if (this.offN !== mt.n) {
-      pinOffsets(this.stampIndices, mt.n, this.off);
+      pinOffsets(this.stampIndices, mt, this.off);
       this.offN = mt.n;
     }
     // The non-zero part of stampPinsAt unrolled: the same additions in the same order, so pins

@@ -7,17 +7,23 @@ import { PLAIN_ITERATION_CAP } from "./convergence.js";
 import { gminStepping } from "./gmin-stepping.js";
 import { denseLu, type LinearSolverFactory } from "./linear-solver.js";
 import { newRecord, newton, type NewtonRecord } from "./newton.js";
-import { compilePlan, describeUnknown, type Plan } from "./plan.js";
+import { compilePlan, describeUnknown, type MatrixStorage, type Plan } from "./plan.js";
 import { readOperatingPoint } from "./point.js";
 import { sourceStepping } from "./source-stepping.js";
+import { sparseLu } from "./sparse-lu.js";
 import type { ConvergenceAid, SolveFailure, SolveResult } from "./types.js";
 
 export type * from "./types.js";
 export { formatSi, renderOperatingPoint, renderSolveResult } from "./table.js";
 
 export interface SolveOptions {
-  /** Linear solver of the Newton step (default: our dense LU). The benchmark swaps it. */
+  /**
+   * Linear solver of the Newton step (default: our LU, dense or sparse by size). The benchmark
+   * swaps it; a given solver always gets dense storage (n×n, row-major).
+   */
   readonly linearSolver?: LinearSolverFactory;
+  /** Matrix storage (default "auto": sparse from SPARSE_MIN_UNKNOWNS unknowns). Tests and the bench force one. */
+  readonly storage?: MatrixStorage;
   /** Skip the stages before this aid (tests use it to exercise each aid on its own). */
   readonly startWith?: ConvergenceAid;
   /** Lower every stage's iteration cap to this (tests use it to provoke non-convergence). */
@@ -37,13 +43,15 @@ export function solveOperatingPoint(circuit: Circuit, options: SolveOptions = {}
 }
 
 function solve(circuit: Circuit, options: SolveOptions): SolveResult {
-  const compiled = compilePlan(circuit);
+  const compiled = compilePlan(circuit, options.linearSolver ? "dense" : (options.storage ?? "auto"));
   if (!compiled.ok) return failure(compiled.reason, compiled.parts, [], "none", 0, Infinity);
   const plan = compiled.plan;
   const topo = diagnoseTopology(plan);
   if (topo) return failure(topo.reason, topo.parts, topo.nodes, "none", 0, Infinity);
 
-  const solver = (options.linearSolver ?? denseLu)(plan.n, plan.pattern);
+  const solver = plan.sparse
+    ? sparseLu(plan.n, { rowStart: plan.patternRowStart, cols: plan.patternCols })
+    : (options.linearSolver ?? denseLu)(plan.n, plan.pattern);
   const rec = newRecord();
   const total = { iterations: 0 };
   const first = AIDS.indexOf(options.startWith ?? "none");

@@ -148,12 +148,13 @@ export const PATTERN_RESTORE_MIN_UNKNOWNS = 64;
  * the linear solver leaves a unchanged).
  */
 function assemble(plan: Plan, s: NewtonSettings, st: IterationState, init: boolean, whole: boolean): void {
-  const { n, a, b, x, aStatic, bSource, isNodeRow, nonlinear, target, pattern } = plan;
-  if (whole || n < PATTERN_RESTORE_MIN_UNKNOWNS) a.set(aStatic);
+  const { n, a, b, x, aStatic, bSource, isNodeRow, nonlinear, target, pattern, diagonal } = plan;
+  // Sparse storage holds only the pattern: the whole copy is the pattern.
+  if (whole || n < PATTERN_RESTORE_MIN_UNKNOWNS || plan.sparse) a.set(aStatic);
   else for (let t = 0; t < pattern.length; t++) a[pattern[t]!] = aStatic[pattern[t]!]!;
   const scale = s.sourceScale;
   for (let i = 0; i < n; i++) b[i] = scale * bSource[i]!;
-  if (s.gmin > 0) for (let i = 0; i < n; i++) if (isNodeRow[i]) a[i * n + i]! += s.gmin;
+  if (s.gmin > 0) for (let i = 0; i < n; i++) if (isNodeRow[i]) a[diagonal[i]!]! += s.gmin;
   st.init = init;
   st.limited = false;
   for (let d = 0; d < nonlinear.length; d++) nonlinear[d]!.stampNonlinear!(x, target, st);
@@ -187,21 +188,19 @@ function polishStep(plan: Plan, solver: LinearSolver, s: NewtonSettings, rec: Ne
  * sum of device currents leaving each node. Records the largest node-row residual.
  */
 function residualOk(plan: Plan, rec: NewtonRecord): boolean {
-  const { n, a, b, x, isNodeRow, pattern, patternRowStart } = plan;
+  const { n, a, b, x, isNodeRow, pattern, patternRowStart, patternCols } = plan;
   let ok = true;
   let maxNode = 0;
   let worst = 0;
   for (let i = 0; i < n; i++) {
-    const row = i * n;
     let r = -b[i]!;
     let scale = Math.abs(b[i]!);
     // The row's pattern entries in ascending column order, as a full scan would meet them.
     const end = patternRowStart[i + 1]!;
     for (let p = patternRowStart[i]!; p < end; p++) {
-      const idx = pattern[p]!;
-      const aij = a[idx]!;
+      const aij = a[pattern[p]!]!;
       if (aij === 0) continue;
-      const t = aij * x[idx - row]!;
+      const t = aij * x[patternCols[p]!]!;
       r += t;
       const at = Math.abs(t);
       if (at > scale) scale = at;

@@ -5,7 +5,7 @@ import { bjt } from "../devices/bjt.js";
 import { capacitor } from "../devices/capacitor.js";
 import { currentControlled, voltageControlled } from "../devices/controlled.js";
 import { currentSource } from "../devices/current-source.js";
-import { DeviceSetupError, TouchedList, type DeviceInstance, type SetupContext, type StampTarget } from "../devices/device.js";
+import { DeviceSetupError, EntryList, TouchedList, type DeviceInstance, type SetupContext, type StampTarget } from "../devices/device.js";
 import { diode } from "../devices/diode.js";
 import { inductor } from "../devices/inductor.js";
 import { mosfet } from "../devices/mosfet.js";
@@ -33,6 +33,11 @@ export interface Plan {
   readonly nodeSlots: readonly number[];
   readonly devices: readonly DeviceInstance[];
   readonly nonlinear: readonly DeviceInstance[];
+  /**
+   * Sparse storage: a and aStatic hold only the pattern's entries (entry t at index t, compressed
+   * rows); otherwise they are dense n×n, row-major.
+   */
+  readonly sparse: boolean;
   /** Linear part of the Jacobian, stamped once. */
   readonly aStatic: Float64Array;
   /** Independent sources at full value. */
@@ -44,10 +49,18 @@ export interface Plan {
   readonly xNew: Float64Array;
   /** Spare copy of x (the polishing step keeps the accepted point here). */
   readonly xSpare: Float64Array;
-  /** Flat indices of every matrix entry the stamps can make non-zero (static, devices, gmin diagonal). */
+  /**
+   * Index in `a` of every matrix entry the stamps can make non-zero (static, devices, gmin
+   * diagonal), rows ascending and columns ascending within a row: the flat index row·n + col
+   * (dense), or 0, 1, 2, … (sparse).
+   */
   readonly pattern: Int32Array;
   /** Row i's entries of `pattern` are pattern[patternRowStart[i] … patternRowStart[i+1]). */
   readonly patternRowStart: Int32Array;
+  /** Column of each pattern entry. */
+  readonly patternCols: Int32Array;
+  /** Index in `a` of each unknown's diagonal entry (node rows; −1 for a branch row without one). */
+  readonly diagonal: Int32Array;
   /** 1 for a KCL row, 0 for a branch-equation row. */
   readonly isNodeRow: Uint8Array;
   readonly target: StampTarget;
@@ -86,7 +99,16 @@ function instantiate(c: Component, ctx: SetupContext): DeviceInstance {
   }
 }
 
-export function compilePlan(circuit: Circuit): CompileResult {
+/**
+ * From this many unknowns on, a plan stores its matrices sparse (sparse-lu.ts); below it dense,
+ * where scanning n² entries is cheaper than following index lists. Measured side by side on the
+ * bench chains (bench/solve.ts).
+ */
+export const SPARSE_MIN_UNKNOWNS = 250;
+
+export type MatrixStorage = "dense" | "sparse" | "auto";
+
+export function compilePlan(circuit: Circuit, storage: MatrixStorage = "auto"): CompileResult {
   const unknowns: Unknown[] = [];
   const nodeIndex = new Map<string, number>();
   const nodeNames: string[] = [];
@@ -141,32 +163,65 @@ export function compilePlan(circuit: Circuit): CompileResult {
     if (msg !== undefined) return { ok: false, reason: msg, parts: [d.id] };
   }
   const n = unknowns.length;
+  const sparse = storage === "sparse" || (storage === "auto" && n >= SPARSE_MIN_UNKNOWNS);
   // Every working array of the plan is borrowed (see scratch.ts; a solve of the same size gets
   // the same views back); the static parts are zeroed here, the rest is written before it is read.
-  const aStatic = scratchFloat64("plan-a-static", n * n);
-  const a = scratchFloat64("plan-a", n * n);
   const bSource = scratchFloat64("plan-b-source", n);
   const b = scratchFloat64("plan-b", n);
   const x = scratchFloat64("plan-x", n);
   const xNew = scratchFloat64("plan-x-new", n);
   const xSpare = scratchFloat64("plan-x-spare", n);
-  aStatic.fill(0);
   bSource.fill(0);
-  // The static stamps record where they write (see stampPattern). Room for the usual four
-  // entries per device; a device kind with more makes the list grow.
-  const touched = new TouchedList(scratchInt32("plan-touched", 2 * (4 * devices.length + 16)));
-  const staticTarget: StampTarget = { a: aStatic, b: bSource, n, touched };
-  for (const d of devices) {
-    d.stampStatic?.(staticTarget);
-    d.stampSource?.(bSource);
-  }
   // Borrowed like the rest: allocating even a small typed array costs about a Newton iteration.
   const isNodeRow = scratchUint8("plan-node-rows", n);
   for (let i = 0; i < n; i++) isNodeRow[i] = unknowns[i]!.kind === "branch" ? 0 : 1;
   const patternRowStart = scratchInt32("plan-pattern-rows", n + 1);
   const nonlinear: DeviceInstance[] = [];
   for (let k = 0; k < devices.length; k++) if (devices[k]!.nonlinear) nonlinear.push(devices[k]!);
-  const pattern = stampPattern(n, aStatic, touched, isNodeRow, nonlinear, patternRowStart);
+  const diagonal = scratchInt32("plan-diagonal", n);
+  let aStatic: Float64Array;
+  let a: Float64Array;
+  let pattern: Int32Array;
+  let patternCols: Int32Array;
+  let target: StampTarget;
+  if (!sparse) {
+    aStatic = scratchFloat64("plan-a-static", n * n);
+    a = scratchFloat64("plan-a", n * n);
+    aStatic.fill(0);
+    // The static stamps record where they write (see stampPattern). Room for the usual four
+    // entries per device; a device kind with more makes the list grow.
+    const touched = new TouchedList(scratchInt32("plan-touched", 2 * (4 * devices.length + 16)));
+    const staticTarget: StampTarget = { a: aStatic, b: bSource, n, touched };
+    for (const d of devices) {
+      d.stampStatic?.(staticTarget);
+      d.stampSource?.(bSource);
+    }
+    pattern = stampPattern(n, aStatic, touched, isNodeRow, nonlinear, patternRowStart);
+    patternCols = scratchInt32("plan-pattern-cols", pattern.length);
+    for (let i = 0; i < n; i++) {
+      diagonal[i] = i * n + i;
+      for (let p = patternRowStart[i]!; p < patternRowStart[i + 1]!; p++) patternCols[p] = pattern[p]! - i * n;
+    }
+    target = { a, b, n };
+  } else {
+    const entries = new EntryList(4 * devices.length + 16);
+    const staticTarget: StampTarget = { a: EMPTY, b: bSource, n, entries };
+    for (const d of devices) {
+      d.stampStatic?.(staticTarget);
+      d.stampSource?.(bSource);
+    }
+    patternCols = sparsePattern(n, entries, isNodeRow, nonlinear, patternRowStart);
+    const nnz = patternCols.length;
+    pattern = scratchInt32("plan-pattern", nnz);
+    for (let t = 0; t < nnz; t++) pattern[t] = t;
+    const entryOf = (row: number, col: number): number => findEntry(patternRowStart, patternCols, row, col);
+    aStatic = scratchFloat64("plan-a-static", nnz);
+    a = scratchFloat64("plan-a", nnz);
+    aStatic.fill(0);
+    for (let t = 0; t < entries.count; t++) aStatic[entryOf(entries.rows[t]!, entries.cols[t]!)]! += entries.vals[t]!;
+    for (let i = 0; i < n; i++) diagonal[i] = isNodeRow[i] ? entryOf(i, i) : -1;
+    target = { a, b, n, entryOf };
+  }
   return {
     ok: true,
     plan: {
@@ -178,6 +233,7 @@ export function compilePlan(circuit: Circuit): CompileResult {
       nodeSlots,
       devices,
       nonlinear,
+      sparse,
       aStatic,
       bSource,
       a,
@@ -187,10 +243,105 @@ export function compilePlan(circuit: Circuit): CompileResult {
       xSpare,
       pattern,
       patternRowStart,
+      patternCols,
+      diagonal,
       isNodeRow,
-      target: { a, b, n },
+      target,
     },
   };
+}
+
+const EMPTY = new Float64Array(0);
+
+/** Index of entry (row, col) among the pattern's entries (binary search within the row); −1 when absent. */
+function findEntry(rowStart: Int32Array, cols: Int32Array, row: number, col: number): number {
+  let lo = rowStart[row]!;
+  let hi = rowStart[row + 1]! - 1;
+  while (lo <= hi) {
+    const mid = (lo + hi) >>> 1;
+    const c = cols[mid]!;
+    if (c === col) return mid;
+    if (c < col) lo = mid + 1;
+    else hi = mid - 1;
+  }
+  return -1;
+}
+
+/**
+ * The sparse pattern's columns in compressed rows (rowStart receives where each row begins):
+ * node rows' diagonals (gmin), every pair of a nonlinear device's stamp indices, and every entry
+ * a static stamp wrote (kept even where the static values cancel: a zero entry is harmless).
+ * Work and memory follow the entries, never n².
+ */
+function sparsePattern(n: number, entries: EntryList, isNodeRow: Uint8Array, nonlinear: readonly DeviceInstance[], rowStart: Int32Array): Int32Array {
+  let bound = n + entries.count;
+  for (let d = 0; d < nonlinear.length; d++) {
+    const k = nonlinear[d]!.stampIndices?.length ?? 0;
+    bound += k * k;
+  }
+  const candRow = scratchInt32("sparse-candidate-rows", bound);
+  const candCol = scratchInt32("sparse-candidate-cols", bound);
+  let count = 0;
+  for (let i = 0; i < n; i++) {
+    if (!isNodeRow[i]) continue;
+    candRow[count] = i;
+    candCol[count++] = i;
+  }
+  for (let d = 0; d < nonlinear.length; d++) {
+    const idx = nonlinear[d]!.stampIndices;
+    if (!idx) continue;
+    for (let p = 0; p < idx.length; p++) {
+      const r = idx[p]!;
+      if (r < 0) continue;
+      for (let q = 0; q < idx.length; q++) {
+        const c = idx[q]!;
+        if (c < 0) continue;
+        candRow[count] = r;
+        candCol[count++] = c;
+      }
+    }
+  }
+  for (let t = 0; t < entries.count; t++) {
+    candRow[count] = entries.rows[t]!;
+    candCol[count++] = entries.cols[t]!;
+  }
+  // Bucket by row, sort each row's columns, drop repeats.
+  const start = scratchInt32("sparse-row-fill", n + 1);
+  start.fill(0);
+  for (let t = 0; t < count; t++) start[candRow[t]! + 1]!++;
+  for (let i = 0; i < n; i++) start[i + 1]! += start[i]!;
+  const bucket = scratchInt32("sparse-bucket", count);
+  const next = scratchInt32("sparse-next", n);
+  for (let i = 0; i < n; i++) next[i] = start[i]!;
+  for (let t = 0; t < count; t++) bucket[next[candRow[t]!]!++] = candCol[t]!;
+  let out = 0;
+  for (let i = 0; i < n; i++) {
+    const s = start[i]!;
+    const e = start[i + 1]!;
+    if (e - s > 16) bucket.subarray(s, e).sort();
+    else {
+      for (let p = s + 1; p < e; p++) {
+        const v = bucket[p]!;
+        let q = p - 1;
+        while (q >= s && bucket[q]! > v) {
+          bucket[q + 1] = bucket[q]!;
+          q--;
+        }
+        bucket[q + 1] = v;
+      }
+    }
+    rowStart[i] = out;
+    let last = -1;
+    for (let p = s; p < e; p++) {
+      const v = bucket[p]!;
+      if (v !== last) bucket[out++] = v;
+      last = v;
+    }
+  }
+  rowStart[n] = out;
+  const cols = scratchInt32("plan-pattern-cols", out);
+  cols.set(bucket.subarray(0, out));
+  return cols;
 }
 
 /**
