@@ -3,10 +3,12 @@
 import type { OptionsOf, Rule } from "../src/review/rule.js";
 import bandEdges from "./band-edges.js";
 import bandFlatness from "./band-flatness.js";
+import capacitorPolarity from "./capacitor-polarity.js";
 import capacitorVoltage from "./capacitor-voltage.js";
 import coilDrive from "./coil-drive.js";
 import deviceCurrent from "./device-current.js";
 import devicePower from "./device-power.js";
+import deviceRatings from "./device-ratings.js";
 import gainWindow from "./gain-window.js";
 import headroom from "./headroom.js";
 import region from "./region.js";
@@ -17,10 +19,12 @@ import supplyBudget from "./supply-budget.js";
 export const BUILTIN_RULES: ReadonlyMap<string, Rule> = new Map<string, Rule>([
   ["band-edges", bandEdges],
   ["band-flatness", bandFlatness],
+  ["capacitor-polarity", capacitorPolarity],
   ["capacitor-voltage", capacitorVoltage],
   ["coil-drive", coilDrive],
   ["device-current", deviceCurrent],
   ["device-power", devicePower],
+  ["device-ratings", deviceRatings],
   ["gain-window", gainWindow],
   ["headroom", headroom],
   ["region", region],
