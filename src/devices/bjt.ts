@@ -222,19 +222,19 @@ class BjtInstance implements DeviceInstance {
     const go = -this.icVbc; // ∂IC/∂VCE at constant VBE
     return {
       kind: this.kind,
-      ic,
-      ib,
-      ie,
-      vbe: vbeRaw,
-      vce: vceRaw,
+      collectorCurrent: ic,
+      baseCurrent: ib,
+      emitterCurrent: ie,
+      baseEmitterVoltage: vbeRaw,
+      collectorEmitterVoltage: vceRaw,
       region: bjtRegion(vbeN, vbcN, vceN, saturationEdge),
       headroom: Math.abs(vceRaw) - saturationEdge,
       // Σ V·I over the pins with the emitter as reference (normalised terms are polarity-free).
       power: vceN * ic + vbeN * ib,
-      gm,
-      rpi: 1 / gpi,
-      re: 1 / (gm + gpi),
-      ro: 1 / go,
+      transconductance: gm,
+      inputResistance: 1 / gpi,
+      emitterResistance: 1 / (gm + gpi),
+      outputResistance: 1 / go,
       linear: { pins: [col.node, base.node, emi.node], y: this.g.slice() },
     };
   }
@@ -275,8 +275,8 @@ export function bjtRegion(vbe: number, vbc: number, vce: number, saturationEdge:
 export function bjtCapacitances(c: Bjt, model: BjtModel, point: BjtPoint): DeviceCapacitance[] {
   const out: DeviceCapacitance[] = [];
   const cmu = model.baseCollectorCapacitance ?? 0;
-  if (model.transitFrequency !== undefined && point.gm > 0) {
-    const cpi = point.gm / (2 * Math.PI * model.transitFrequency) - cmu;
+  if (model.transitFrequency !== undefined && point.transconductance > 0) {
+    const cpi = point.transconductance / (2 * Math.PI * model.transitFrequency) - cmu;
     if (cpi > 0) out.push({ device: c.id, between: "base–emitter", a: c.pins.base, b: c.pins.emitter, value: cpi });
   }
   if (cmu > 0) out.push({ device: c.id, between: "base–collector", a: c.pins.base, b: c.pins.collector, value: cmu });

@@ -60,10 +60,10 @@ describe("common-emitter upper corner with Cπ and Cμ", () => {
   const op = solve(c);
   const q = op.devices["Q1"] as BjtPoint;
   const g = gainOf(c, op);
-  const gm = q.gm;
+  const gm = q.transconductance;
   const cpi = gm / (2 * Math.PI * FT) - CMU; // textbook fT = gm/(2π(Cπ + Cμ))
-  const rs = par(RS, R1, R2, q.rpi);
-  const rl = par(RC, q.ro);
+  const rs = par(RS, R1, R2, q.inputResistance);
+  const rl = par(RC, q.outputResistance);
   const b1 = rs * (cpi + CMU) + rl * CMU + gm * rl * rs * CMU;
   const b2 = rs * rl * cpi * CMU;
   const shape = (f: number) => {
