@@ -250,7 +250,7 @@ function resolveComponent(ctx: ResolveContext, raw: Obj, index: number): Compone
     case "ccvs": {
       const gain = readValue(ctx, raw["gain"], [...path, "gain"], raw["kind"] === "cccs" ? "gain" : "resistance", `${what} \`gain\``);
       if (gain === undefined) return undefined;
-      return { ...base, kind: raw["kind"], pins: { plus: pins["plus"]!, minus: pins["minus"]! }, control: String(raw["control"]), gain };
+      return { ...base, kind: raw["kind"], pins: { plus: pins["plus"]!, minus: pins["minus"]! }, sense: String(raw["sense"]), gain };
     }
     default:
       return undefined;

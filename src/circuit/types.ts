@@ -136,13 +136,15 @@ export interface VoltageControlled extends ComponentBase {
 }
 
 /**
- * Current-controlled sources. The controlling current is the current delivered out of the
- * `plus` pin of the voltage source named by `control`. cccs output current as for vccs.
+ * Current-controlled sources. The controlling current is the current through the two-terminal
+ * part named by `sense`, from its first pin to its second (a→b; plus→minus; from→to). cccs
+ * output current as for vccs; ccvs: V(plus) − V(minus) = gain·I.
  */
 export interface CurrentControlled extends ComponentBase {
   readonly kind: "cccs" | "ccvs";
   readonly pins: { readonly plus: string; readonly minus: string };
-  readonly control: string;
+  /** Id of the sensed part (one of SENSED_KINDS in src/circuit/sense.ts). */
+  readonly sense: string;
   readonly gain: number;
 }
 
