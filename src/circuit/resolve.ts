@@ -156,14 +156,15 @@ function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model | undefi
     const length = n("length", "length", NaN);
     const lambda = s("lambda", "per-volt", D.DEFAULT_LAMBDA);
     const bodyEffect = n("bodyEffect", "sqrt-volt", D.DEFAULT_BODY_EFFECT);
-    const surfacePotential = n("surfacePotential", "voltage", D.DEFAULT_SURFACE_POTENTIAL_V);
+    const fermiPotential = n("fermiPotential", "voltage", D.DEFAULT_FERMI_POTENTIAL_V);
     const thresholdTempco = n("thresholdTempco", "volt-per-kelvin", D.DEFAULT_THRESHOLD_TEMPCO_V_PER_K);
     const kPrimeExponent = n("kPrimeExponent", "dimensionless", D.DEFAULT_KPRIME_EXPONENT);
     if (!threshold || !kPrime || !lambda || width === undefined || length === undefined) return undefined;
-    if (bodyEffect === undefined || surfacePotential === undefined || thresholdTempco === undefined || kPrimeExponent === undefined) return undefined;
+    if (bodyEffect === undefined || fermiPotential === undefined || thresholdTempco === undefined || kPrimeExponent === undefined) return undefined;
     if (!(width > 0)) ctx.error([...path, "width"], `${what}: width must be positive`);
     if (!(length > 0)) ctx.error([...path, "length"], `${what}: length must be positive`);
     if (kPrime.min <= 0) ctx.error([...path, "kPrime"], `${what}: kPrime must be positive`);
+    if (!(fermiPotential > 0)) ctx.error([...path, "fermiPotential"], `${what}: fermiPotential φF must be positive`, "typical silicon substrates give 0.3–0.4 V");
     const wrongSign = kind === "nmos" ? threshold.typ < 0 : threshold.typ > 0;
     if (wrongSign) {
       const other = kind === "nmos" ? "a depletion-mode NMOS" : "a depletion-mode PMOS";
@@ -179,7 +180,7 @@ function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model | undefi
       ["oxideCapacitance", "capacitance-per-area"],
     ]);
     const ratings = readRatings(ctx, raw, path, what, [["drainSource", "voltage"], ["gateSource", "voltage"], ["drainCurrent", "current"]] as const);
-    return { ...base, kind, threshold, kPrime, width, length, lambda, bodyEffect, surfacePotential, thresholdTempco, kPrimeExponent, ...caps, ...ratings };
+    return { ...base, kind, threshold, kPrime, width, length, lambda, bodyEffect, fermiPotential, thresholdTempco, kPrimeExponent, ...caps, ...ratings };
   }
   return undefined;
 }

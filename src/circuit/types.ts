@@ -238,7 +238,8 @@ export interface MosfetModel extends ModelBase {
   readonly length: number; // m
   readonly lambda: Spread; // 1/V, default 0
   readonly bodyEffect: number; // γ in √V, default 0
-  readonly surfacePotential: number; // 2φF in V, default 0.6
+  /** Fermi potential φF of the substrate in V (the body-effect law uses 2φF); default 0.35 V. */
+  readonly fermiPotential: number;
   /** d|Vt|/dT in V/K (polarity-normalised), default −2 mV/K (common practice). */
   readonly thresholdTempco: number;
   /** k'(T) = k'(T0)·(T/T0)^kPrimeExponent; default −1.5 (mobility, common practice). */
