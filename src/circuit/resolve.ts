@@ -106,7 +106,8 @@ function diodeBreakdown(ctx: ResolveContext, raw: Obj, path: readonly PathSegmen
   return { breakdownVoltage: voltage, breakdown: { current, resistance, tempco } };
 }
 
-function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model | undefined {
+/** Resolves one model (of a circuit file or a model library); undefined after reporting errors in ctx. */
+export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model | undefined {
   const path: PathSegment[] = ["models", id];
   const what = `model ${id}`;
   const pos = ctx.pos(path, true);
@@ -353,7 +354,7 @@ function resolveSpecs(ctx: ResolveContext, raw: Obj, ground: string): Specs {
 }
 
 /** Resolves a schema-valid tree. Returns the circuit (possibly with errors in ctx) — callers check ctx.errors. */
-export function resolveCircuit(ctx: ResolveContext, root: Obj): Circuit {
+export function resolveCircuit(ctx: ResolveContext, root: Obj, library: ReadonlyMap<string, Model> = new Map()): Circuit {
   ctx.parameters = resolveParameters(ctx, root["parameters"] as Obj | undefined);
   let temperature: number = D.DEFAULT_TEMPERATURE_K;
   if (root["temperature"] !== undefined) {
@@ -366,8 +367,15 @@ export function resolveCircuit(ctx: ResolveContext, root: Obj): Circuit {
     }
   }
   const ground = root["ground"] !== undefined ? String(root["ground"]) : D.DEFAULT_GROUND;
-  const models = new Map<string, Model>();
+  const models = new Map<string, Model>(library);
   for (const [id, m] of Object.entries(asObj(root["models"]))) {
+    const shared = library.get(id);
+    if (shared)
+      ctx.warn(
+        ["models", id],
+        `model \`${id}\` overrides the library model of the same id (${shared.pos.file}:${shared.pos.line})`,
+        "use the library's model, or give this one its own id if it is a different part",
+      );
     const model = resolveModel(ctx, id, asObj(m));
     if (model) models.set(id, model);
   }

@@ -309,6 +309,12 @@ export interface CircuitRuleOverride {
   readonly pos: SourcePos;
 }
 
+/** A model library a circuit was resolved with: the file as messages name it and the SHA-256 of its bytes. */
+export interface LibraryUse {
+  readonly file: string;
+  readonly sha256: string;
+}
+
 export interface Circuit {
   readonly file: string;
   readonly name: string;
@@ -327,8 +333,10 @@ export interface Circuit {
   /** Non-fatal remarks from resolution (e.g. a PMOS with a positive threshold). */
   readonly warnings: readonly InputError[];
   readonly pos: SourcePos;
+  /** Model libraries the circuit was resolved with (config's first, then its own), in load order. */
+  readonly libraries?: readonly LibraryUse[];
 }
 
 export type LoadResult =
   | { readonly ok: true; readonly circuit: Circuit }
-  | { readonly ok: false; readonly errors: readonly InputError[] };
+  | { readonly ok: false; readonly errors: readonly InputError[]; readonly libraries?: readonly LibraryUse[] };
