@@ -88,14 +88,17 @@ export function writeCiOutputs(doc: ResultsDocument, io: CliIo, options: ReportO
   if (!summaryFile) return;
   const already = existsSync(summaryFile) ? statSync(summaryFile).size : 0;
   let markdown = renderMarkdown(doc, options.baseline ? { baseline: options.baseline } : {});
-  const room = STEP_SUMMARY_MAX_BYTES - already - 1;
+  // Earlier steps (or tools in this step) may have left a paragraph without a line end: starting
+  // with a blank line keeps our verdict from being glued to it (it would render with literal `**`).
+  const lead = "\n\n";
+  const room = STEP_SUMMARY_MAX_BYTES - already - lead.length - 1;
   if (Buffer.byteLength(markdown) > room) {
     // Characters are at most 4 bytes in UTF-8: cutting to room/4 characters always fits.
     markdown = truncateMarkdown(markdown, Math.max(0, Math.floor(room / 4)));
     if (Buffer.byteLength(markdown) > room) return;
   }
   try {
-    appendFileSync(summaryFile, `${markdown}\n`);
+    appendFileSync(summaryFile, `${lead}${markdown}\n`);
   } catch (err) {
     io.stderr(`opgate: cannot append to the step summary: ${err instanceof Error ? err.message : String(err)}\n`);
   }
