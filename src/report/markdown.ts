@@ -169,12 +169,9 @@ function summaryBlock(doc: ResultsDocument): RootContent[] {
   return out;
 }
 
-function num(d: DeviceEntry, ...keys: string[]): number | null {
-  for (const key of keys) {
-    const v = d[key];
-    if (typeof v === "number") return v;
-  }
-  return null;
+function num(d: DeviceEntry, key: string): number | null {
+  const v = d[key];
+  return typeof v === "number" ? v : null;
 }
 
 const TRANSISTOR_KINDS = new Set(["npn", "pnp", "nmos", "pmos"]);
@@ -205,20 +202,19 @@ function figuresBlock(c: CircuitResult): RootContent[] {
       body.push(
         table(
           [null, null, "right", "right", "right", "right", "right"],
-          ["Transistor", "Region", "Ic / Id", "Vce / Vds", "Headroom", "gm", "Power"],
+          ["Transistor", "Region", "IC / ID", "VCE / VDS", "Headroom", "gm", "Power"],
           transistors.map((id) => {
             const d = op.devices[id]!;
             const bjt = d.kind === "npn" || d.kind === "pnp";
-            // Both the current record keys and the earlier short ones are read.
-            const current = bjt ? num(d, "collectorCurrent", "ic") : num(d, "drainCurrent", "id");
-            const voltage = bjt ? num(d, "collectorEmitterVoltage", "vce") : num(d, "drainSourceVoltage", "vds");
+            const current = num(d, bjt ? "collectorCurrent" : "drainCurrent");
+            const voltage = num(d, bjt ? "collectorEmitterVoltage" : "drainSourceVoltage");
             return [
               [code(id), text(` ${d.kind}`)],
               utext(String(d.region ?? "—")),
               formatQuantity(current, "A"),
               formatQuantity(voltage, "V"),
               formatQuantity(num(d, "headroom"), "V"),
-              formatQuantity(num(d, "transconductance", "gm"), "S"),
+              formatQuantity(num(d, "transconductance"), "S"),
               formatQuantity(num(d, "power"), "W"),
             ];
           }),
