@@ -136,13 +136,15 @@ export interface VoltageControlled extends ComponentBase {
 }
 
 /**
- * Current-controlled sources. The controlling current is the current delivered out of the
- * `plus` pin of the voltage source named by `control`. cccs output current as for vccs.
+ * Current-controlled sources. The controlling current is the current through the two-terminal
+ * part named by `sense`, from its first pin to its second (a→b; plus→minus; from→to). cccs
+ * output current as for vccs; ccvs: V(plus) − V(minus) = gain·I.
  */
 export interface CurrentControlled extends ComponentBase {
   readonly kind: "cccs" | "ccvs";
   readonly pins: { readonly plus: string; readonly minus: string };
-  readonly control: string;
+  /** Id of the sensed part (one of SENSED_KINDS in src/circuit/sense.ts). */
+  readonly sense: string;
   readonly gain: number;
 }
 
@@ -208,6 +210,10 @@ export interface BjtModel extends ModelBase {
   readonly saturationCurrentExponent: number; // default 3
   /** beta(T) = beta(T0)·(T/T0)^betaExponent; default 1.5 (common practice). */
   readonly betaExponent: number;
+  /** fT in Hz, giving the base–emitter capacitance Cπ = gm/(2π·fT) − Cμ; absent = no Cπ. */
+  readonly transitFrequency?: number;
+  /** Cμ in F; absent = none. */
+  readonly baseCollectorCapacitance?: number;
   readonly ratings?: BjtRatings;
 }
 
@@ -237,6 +243,12 @@ export interface MosfetModel extends ModelBase {
   readonly thresholdTempco: number;
   /** k'(T) = k'(T0)·(T/T0)^kPrimeExponent; default −1.5 (mobility, common practice). */
   readonly kPrimeExponent: number;
+  /** Fixed gate–source capacitance (overlap, package) in F; absent = none. */
+  readonly gateSourceCapacitance?: number;
+  /** Fixed gate–drain capacitance (overlap, package) in F; absent = none. */
+  readonly gateDrainCapacitance?: number;
+  /** Gate oxide capacitance per area Cox in F/m²: adds the channel's share of W·L·Cox by region. */
+  readonly oxideCapacitance?: number;
   readonly ratings?: MosfetRatings;
 }
 

@@ -105,12 +105,12 @@ export class CircuitBuilder {
     this.components.push({ id, pos: POS, kind: "vccs", pins: { plus, minus, controlPlus, controlMinus }, gain });
     return this;
   }
-  cccs(id: string, plus: string, minus: string, control: string, gain: number): this {
-    this.components.push({ id, pos: POS, kind: "cccs", pins: { plus, minus }, control, gain });
+  cccs(id: string, plus: string, minus: string, sense: string, gain: number): this {
+    this.components.push({ id, pos: POS, kind: "cccs", pins: { plus, minus }, sense, gain });
     return this;
   }
-  ccvs(id: string, plus: string, minus: string, control: string, gain: number): this {
-    this.components.push({ id, pos: POS, kind: "ccvs", pins: { plus, minus }, control, gain });
+  ccvs(id: string, plus: string, minus: string, sense: string, gain: number): this {
+    this.components.push({ id, pos: POS, kind: "ccvs", pins: { plus, minus }, sense, gain });
     return this;
   }
   diode(id: string, anode: string, cathode: string, model: string): this {

@@ -79,12 +79,12 @@ export class CircuitBuilder {
     this.components.push({ id, kind: "vccs", pos, pins: { plus, minus, controlPlus: cp, controlMinus: cm }, gain });
     return this;
   }
-  cccs(id: string, plus: string, minus: string, control: string, gain: number): this {
-    this.components.push({ id, kind: "cccs", pos, pins: { plus, minus }, control, gain });
+  cccs(id: string, plus: string, minus: string, sense: string, gain: number): this {
+    this.components.push({ id, kind: "cccs", pos, pins: { plus, minus }, sense, gain });
     return this;
   }
-  ccvs(id: string, plus: string, minus: string, control: string, gain: number): this {
-    this.components.push({ id, kind: "ccvs", pos, pins: { plus, minus }, control, gain });
+  ccvs(id: string, plus: string, minus: string, sense: string, gain: number): this {
+    this.components.push({ id, kind: "ccvs", pos, pins: { plus, minus }, sense, gain });
     return this;
   }
   diodeModel(id: string, p: DiodeParams = {}): this {
