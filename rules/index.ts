@@ -1,11 +1,13 @@
 // The built-in rules: an explicit registry, sorted by id (a meta-test keeps it in step with the
 // files in this folder). No filesystem scanning.
 import type { OptionsOf, Rule } from "../src/review/rule.js";
+import capacitorPolarity from "./capacitor-polarity.js";
 import capacitorVoltage from "./capacitor-voltage.js";
 import coilDrive from "./coil-drive.js";
 import couplingAdequacy from "./coupling-adequacy.js";
 import deviceCurrent from "./device-current.js";
 import devicePower from "./device-power.js";
+import deviceRatings from "./device-ratings.js";
 import gainWindow from "./gain-window.js";
 import headroom from "./headroom.js";
 import region from "./region.js";
@@ -14,11 +16,13 @@ import solve from "./solve.js";
 import supplyBudget from "./supply-budget.js";
 
 export const BUILTIN_RULES: ReadonlyMap<string, Rule> = new Map<string, Rule>([
+  ["capacitor-polarity", capacitorPolarity],
   ["capacitor-voltage", capacitorVoltage],
   ["coil-drive", coilDrive],
   ["coupling-adequacy", couplingAdequacy],
   ["device-current", deviceCurrent],
   ["device-power", devicePower],
+  ["device-ratings", deviceRatings],
   ["gain-window", gainWindow],
   ["headroom", headroom],
   ["region", region],

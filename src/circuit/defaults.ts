@@ -9,6 +9,15 @@ export const DEFAULT_GROUND = "gnd";
 export const DEFAULT_REVERSE_BETA = 1;
 /** Diode ideality n: 1, the ideal Shockley junction (textbook form). */
 export const DEFAULT_IDEALITY = 1;
+/**
+ * Ideality n of a diode described by its forward voltage (`forward:`, an LED's datasheet form):
+ * 2, whatever the colour (from memory: recombination in the depletion region gives n = 2, the
+ * Sah–Noyce–Shockley result, and measured LEDs sit at about 2 or above; give `ideality` when a
+ * datasheet's I–V curve says otherwise).
+ */
+export const DEFAULT_FORWARD_FORM_IDEALITY = 2;
+/** Drift of a breakdown (Zener) voltage when the model gives none: 0 V/K. */
+export const DEFAULT_BREAKDOWN_TEMPCO_V_PER_K = 0;
 /** Diode series resistance: 0 Ω (ideal junction). */
 export const DEFAULT_DIODE_SERIES_RESISTANCE = 0;
 /** Early voltage: none (Infinity), as DESIGN.md section 3 asks when the file omits it. */

@@ -17,6 +17,7 @@ import type {
   Toleranced,
 } from "./types.js";
 import type { Quantity } from "./values.js";
+import { MODEL_TEMPERATURE, thermalVoltage } from "../devices/thermal.js";
 
 type Obj = Record<string, unknown>;
 const asObj = (v: unknown): Obj => (v !== null && typeof v === "object" && !Array.isArray(v) ? (v as Obj) : {});
@@ -30,6 +31,65 @@ function deepFreeze<T>(value: T): T {
   return value;
 }
 
+/** An optional `ratings:` block of a model: each key a positive magnitude in its quantity. */
+function readRatings<K extends string>(ctx: ResolveContext, raw: Obj, path: readonly PathSegment[], what: string, keys: readonly (readonly [K, Quantity])[]): { ratings?: Partial<Record<K, number>> } {
+  if (raw["ratings"] === undefined) return {};
+  const block = asObj(raw["ratings"]);
+  const out: Partial<Record<K, number>> = {};
+  for (const [key, q] of keys) {
+    const v = readOptional(ctx, block, key, [...path, "ratings"], q, `${what} rating`);
+    if (v === undefined) continue;
+    if (!(v > 0)) ctx.error([...path, "ratings", key], `${what}: the \`${key}\` rating must be a positive magnitude`, "write it without a sign, as the datasheet's absolute maximum ratings table gives it");
+    out[key] = v;
+  }
+  return { ratings: out };
+}
+
+/** The diode's forward curve: `saturationCurrent`, or `forward` (VF at IF) from which IS follows. */
+function diodeForward(ctx: ResolveContext, raw: Obj, path: readonly PathSegment[], what: string, ideality: number, seriesResistance: number) {
+  const given = (raw["saturationCurrent"] !== undefined ? 1 : 0) + (raw["forward"] !== undefined ? 1 : 0);
+  if (given !== 1) {
+    ctx.error(path, given ? `${what} gives both saturationCurrent and forward` : `${what} needs saturationCurrent or forward`, "describe the forward curve once: `forward: { voltage: 2.0 V, current: 20 mA }` as the datasheet gives it, or `saturationCurrent`");
+    return undefined;
+  }
+  if (raw["saturationCurrent"] !== undefined) return { saturationCurrent: readSpread(ctx, raw["saturationCurrent"], [...path, "saturationCurrent"], "current", `${what} \`saturationCurrent\``) };
+  const f = asObj(raw["forward"]);
+  const fp = [...path, "forward"];
+  const voltage = readSpread(ctx, f["voltage"], [...fp, "voltage"], "voltage", `${what} forward \`voltage\``);
+  const current = readValue(ctx, f["current"], [...fp, "current"], "current", `${what} forward \`current\``);
+  if (!voltage || current === undefined) return undefined;
+  if (!(current > 0)) {
+    ctx.error([...fp, "current"], `${what}: the forward test current must be positive`, "write the current the datasheet states VF at, e.g. 20 mA");
+    return undefined;
+  }
+  // Shockley at the test point, at the temperature model parameters are given at (the datasheet's):
+  // IF = IS·(exp((VF − IF·RS)/(n·VT)) − 1)  ⇒  IS = IF / expm1((VF − IF·RS)/(n·VT)).
+  const nvt = ideality * thermalVoltage(MODEL_TEMPERATURE);
+  const is = (vf: number) => current / Math.expm1((vf - current * seriesResistance) / nvt);
+  if (!(voltage.min - current * seriesResistance > 0)) {
+    ctx.error([...fp, "voltage"], `${what}: the forward voltage must exceed the drop IF·seriesResistance (${current * seriesResistance} V)`, "check the forward voltage and the series resistance");
+    return undefined;
+  }
+  // The highest VF is the lowest IS.
+  return { saturationCurrent: { min: is(voltage.max), typ: is(voltage.typ), max: is(voltage.min) }, forward: { voltage, current } };
+}
+
+/** A Zener's `breakdown:` block. */
+function diodeBreakdown(ctx: ResolveContext, raw: Obj, path: readonly PathSegment[], what: string) {
+  if (raw["breakdown"] === undefined) return {};
+  const b = asObj(raw["breakdown"]);
+  const bp = [...path, "breakdown"];
+  const voltage = readSpread(ctx, b["voltage"], [...bp, "voltage"], "voltage", `${what} breakdown \`voltage\``);
+  const current = readValue(ctx, b["current"], [...bp, "current"], "current", `${what} breakdown \`current\``);
+  const resistance = readValue(ctx, b["resistance"], [...bp, "resistance"], "resistance", `${what} breakdown \`resistance\``);
+  const tempco = readNumberOr(ctx, b, "temperatureCoefficient", bp, "volt-per-kelvin", `${what} breakdown`, D.DEFAULT_BREAKDOWN_TEMPCO_V_PER_K);
+  if (!voltage || current === undefined || resistance === undefined || tempco === undefined) return undefined;
+  if (!(voltage.min > 0)) ctx.error([...bp, "voltage"], `${what}: the breakdown voltage must be a positive magnitude`, "write it without a sign, e.g. 5.1 V");
+  if (!(current > 0)) ctx.error([...bp, "current"], `${what}: the breakdown test current must be positive`, "write the current the datasheet states VZ at (IZT), e.g. 5 mA");
+  if (!(resistance > 0)) ctx.error([...bp, "resistance"], `${what}: the dynamic resistance must be positive`, "write the datasheet's ZZT at the test current, e.g. 30 Ω");
+  return { breakdownVoltage: voltage, breakdown: { current, resistance, tempco } };
+}
+
 function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model | undefined {
   const path: PathSegment[] = ["models", id];
   const what = `model ${id}`;
@@ -41,13 +101,16 @@ function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model | undefi
   const req = (key: string, q: Quantity) => readSpread(ctx, raw[key], [...path, key], q, `${what} \`${key}\``);
   const kind = raw["kind"];
   if (kind === "diode") {
-    const saturationCurrent = req("saturationCurrent", "current");
-    const ideality = s("ideality", "dimensionless", D.DEFAULT_IDEALITY);
+    const ideality = s("ideality", "dimensionless", raw["forward"] !== undefined ? D.DEFAULT_FORWARD_FORM_IDEALITY : D.DEFAULT_IDEALITY);
     const seriesResistance = n("seriesResistance", "resistance", D.DEFAULT_DIODE_SERIES_RESISTANCE);
     const energyGap = n("energyGap", "energy-ev", D.DEFAULT_ENERGY_GAP_EV);
     const saturationCurrentExponent = n("saturationCurrentExponent", "dimensionless", D.DEFAULT_SATURATION_CURRENT_EXPONENT);
-    if (!saturationCurrent || !ideality || seriesResistance === undefined || energyGap === undefined || saturationCurrentExponent === undefined) return undefined;
-    return { ...base, kind, saturationCurrent, ideality, seriesResistance, energyGap, saturationCurrentExponent };
+    if (!ideality || seriesResistance === undefined || energyGap === undefined || saturationCurrentExponent === undefined) return undefined;
+    const forward = diodeForward(ctx, raw, path, what, ideality.typ, seriesResistance);
+    const breakdown = diodeBreakdown(ctx, raw, path, what);
+    const ratings = readRatings(ctx, raw, path, what, [["reverseVoltage", "voltage"], ["forwardCurrent", "current"]] as const);
+    if (!forward?.saturationCurrent || !breakdown) return undefined;
+    return { ...base, kind, ...forward, saturationCurrent: forward.saturationCurrent, ideality, seriesResistance, energyGap, saturationCurrentExponent, ...breakdown, ...ratings };
   }
   if (kind === "npn" || kind === "pnp") {
     const beta = req("beta", "dimensionless");
@@ -63,7 +126,8 @@ function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model | undefi
     if (earlyVoltage.min <= 0) ctx.error([...path, "earlyVoltage"], `${what}: earlyVoltage must be a positive magnitude`, "write it without a sign, e.g. 90 V; omit it for no Early effect");
     if (beta.min <= 0) ctx.error([...path, "beta"], `${what}: beta must be positive`);
     if (saturationCurrent.min <= 0) ctx.error([...path, "saturationCurrent"], `${what}: saturationCurrent must be positive`);
-    return { ...base, kind, beta, reverseBeta, saturationCurrent, earlyVoltage, saturationEdge, energyGap, saturationCurrentExponent, betaExponent };
+    const ratings = readRatings(ctx, raw, path, what, [["collectorEmitter", "voltage"], ["collectorBase", "voltage"], ["emitterBase", "voltage"], ["collectorCurrent", "current"]] as const);
+    return { ...base, kind, beta, reverseBeta, saturationCurrent, earlyVoltage, saturationEdge, energyGap, saturationCurrentExponent, betaExponent, ...ratings };
   }
   if (kind === "nmos" || kind === "pmos") {
     const threshold = req("threshold", "voltage");
@@ -89,7 +153,8 @@ function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model | undefi
         `write ${-threshold.typ} V for an enhancement device; keep ${threshold.typ} V only if a depletion device is meant`,
       );
     }
-    return { ...base, kind, threshold, kPrime, width, length, lambda, bodyEffect, surfacePotential, thresholdTempco, kPrimeExponent };
+    const ratings = readRatings(ctx, raw, path, what, [["drainSource", "voltage"], ["gateSource", "voltage"], ["drainCurrent", "current"]] as const);
+    return { ...base, kind, threshold, kPrime, width, length, lambda, bodyEffect, surfacePotential, thresholdTempco, kPrimeExponent, ...ratings };
   }
   return undefined;
 }
@@ -137,7 +202,10 @@ function resolveComponent(ctx: ResolveContext, raw: Obj, index: number): Compone
       const voltageRating = opt("voltageRating", "voltage");
       if (!value) return undefined;
       if (value.min <= 0) ctx.error([...path, "value"], `${what}: capacitance must be positive`);
-      return { ...base, kind: "capacitor", pins: two, value, ...(voltageRating !== undefined ? { voltageRating } : {}) };
+      const positive = raw["positive"] !== undefined ? String(raw["positive"]) : undefined;
+      if (positive !== undefined && positive !== two.a && positive !== two.b)
+        ctx.error([...path, "positive"], `${what}: \`positive: ${positive}\` is not one of its pins (${two.a}, ${two.b})`, "name the node the capacitor's + terminal is on");
+      return { ...base, kind: "capacitor", pins: two, value, ...(voltageRating !== undefined ? { voltageRating } : {}), ...(positive !== undefined ? { positive } : {}) };
     }
     case "inductor": {
       const value = tol("value", "inductance");

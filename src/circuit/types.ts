@@ -68,6 +68,8 @@ export interface Capacitor extends ComponentBase {
   readonly pins: { readonly a: string; readonly b: string };
   readonly value: Toleranced;
   readonly voltageRating?: number;
+  /** A polarised (electrolytic, tantalum) capacitor: the node its + terminal is on (one of its pins). */
+  readonly positive?: string;
 }
 
 export interface Inductor extends ComponentBase {
@@ -169,6 +171,25 @@ export interface DiodeModel extends ModelBase {
   readonly seriesResistance: number; // ohm, default 0
   readonly energyGap: number; // eV, default 1.11 (silicon)
   readonly saturationCurrentExponent: number; // XTI-like exponent of (T/T0), default 3
+  /**
+   * Datasheet form of the forward curve (an LED, a rectifier): forward voltage at a test current.
+   * When given, saturationCurrent is derived from it (at the typical ideality and the model
+   * temperature) and kept here for reports.
+   */
+  readonly forward?: { readonly voltage: Spread; readonly current: number };
+  /** Reverse breakdown voltage magnitude at `breakdown.current` (a Zener voltage), V. */
+  readonly breakdownVoltage?: Spread;
+  /** Reverse breakdown: test current (A), dynamic resistance there (Ω), drift of the voltage (V/K). */
+  readonly breakdown?: { readonly current: number; readonly resistance: number; readonly tempco: number };
+  readonly ratings?: DiodeRatings;
+}
+
+/** Absolute maximum ratings of a diode from its datasheet (magnitudes). */
+export interface DiodeRatings {
+  /** Maximum reverse (blocking) voltage, V. */
+  readonly reverseVoltage?: number;
+  /** Maximum continuous forward current, A. */
+  readonly forwardCurrent?: number;
 }
 
 export interface BjtModel extends ModelBase {
@@ -184,6 +205,19 @@ export interface BjtModel extends ModelBase {
   readonly saturationCurrentExponent: number; // default 3
   /** beta(T) = beta(T0)·(T/T0)^betaExponent; default 1.5 (common practice). */
   readonly betaExponent: number;
+  readonly ratings?: BjtRatings;
+}
+
+/** Absolute maximum ratings of a bipolar transistor from its datasheet (magnitudes). */
+export interface BjtRatings {
+  /** Collector–emitter breakdown with the base open (VCEO), V. */
+  readonly collectorEmitter?: number;
+  /** Collector–base breakdown with the emitter open (VCBO), V. */
+  readonly collectorBase?: number;
+  /** Emitter–base reverse breakdown with the collector open (VEBO), V. */
+  readonly emitterBase?: number;
+  /** Maximum continuous collector current, A. */
+  readonly collectorCurrent?: number;
 }
 
 export interface MosfetModel extends ModelBase {
@@ -200,6 +234,17 @@ export interface MosfetModel extends ModelBase {
   readonly thresholdTempco: number;
   /** k'(T) = k'(T0)·(T/T0)^kPrimeExponent; default −1.5 (mobility, common practice). */
   readonly kPrimeExponent: number;
+  readonly ratings?: MosfetRatings;
+}
+
+/** Absolute maximum ratings of a MOSFET from its datasheet (magnitudes). */
+export interface MosfetRatings {
+  /** Maximum drain–source voltage, V. */
+  readonly drainSource?: number;
+  /** Maximum gate–source voltage (either sign), V. */
+  readonly gateSource?: number;
+  /** Maximum continuous drain current, A. */
+  readonly drainCurrent?: number;
 }
 
 export type Model = DiodeModel | BjtModel | MosfetModel;

@@ -6,6 +6,7 @@ const code = await run(process.argv.slice(2), {
   cwd: process.cwd(),
   env: process.env,
   isTTY: Boolean(process.stdout.isTTY),
+  stderrIsTTY: Boolean(process.stderr.isTTY),
   stdout: (text) => void process.stdout.write(text),
   stderr: (text) => void process.stderr.write(text),
 });

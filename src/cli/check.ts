@@ -3,13 +3,13 @@
 // reports, annotates the pull request under GitHub Actions, and exits 0 / 1 / 2.
 import { appendFileSync, existsSync, readFileSync, statSync } from "node:fs";
 import { availableParallelism } from "node:os";
-import { resolve } from "node:path";
+import { isAbsolute, relative, resolve, sep } from "node:path";
 import type { InputError } from "../circuit/types.js";
 import type { CheckContext, CheckContextOptions } from "../pipeline/check-file.js";
 import { renderAnnotations } from "../report/annotations.js";
 import { diffDocuments, type BaselineDiff } from "../report/baseline.js";
 import { exitCodeFor } from "../report/build.js";
-import { colourEnabled, progressFrame, renderConsole } from "../report/console.js";
+import { colourEnabled, progressFrame, renderConsole, terminalText } from "../report/console.js";
 import type { ResultsDocument, Severity } from "../report/document.js";
 import { renderJson } from "../report/json.js";
 import { renderJunit } from "../report/junit.js";
@@ -123,6 +123,13 @@ export function readBaseline(path: string, io: CliIo): ResultsDocument {
 export function formatInputError(e: InputError): string {
   const where = e.line !== undefined ? `${e.file}:${e.line}:${e.column ?? 1}` : e.file;
   return `${where}: error: ${e.message}${e.hint ? ` — ${e.hint}` : ""}`;
+}
+
+/** "config examples/opgate.config.yaml" or "no config file: built-in defaults". */
+export function policyLine(configFile: string | null, cwd: string): string {
+  if (configFile === null) return "no config file: built-in defaults";
+  const rel = relative(cwd, configFile);
+  return `config ${terminalText(rel === "" || rel.startsWith("..") || isAbsolute(rel) ? configFile : rel.split(sep).join("/"))}`;
 }
 
 /** Redraws the bar only when it visibly moves (a frame per file would flood a slow terminal). */
@@ -243,6 +250,8 @@ export const checkCommand: CommandSpec = {
       ...(typeof args["fail-on"] === "string" ? { failOn: args["fail-on"] as Severity } : {}),
     };
     const ctx = await buildContext(contextOptions);
+    // Which policy judged this run: the same files give different verdicts under different configs.
+    io.stderr(`opgate: ${policyLine(ctx.config.file, io.cwd)}\n`);
     const baselineDoc = typeof args.baseline === "string" ? readBaseline(args.baseline, io) : undefined;
 
     const patterns = stringList(args.paths);
@@ -270,7 +279,8 @@ export const checkCommand: CommandSpec = {
     }
 
     const cache = openCache(args, ctx, io);
-    const showProgress = io.isTTY && io.env.CI !== "true" && !io.env.GITHUB_ACTIONS && files.length >= PROGRESS_MIN_FILES;
+    // The bar is drawn on stderr: whether stderr is a terminal decides, not stdout.
+    const showProgress = io.stderrIsTTY === true && io.env.CI !== "true" && !io.env.GITHUB_ACTIONS && files.length >= PROGRESS_MIN_FILES;
     const doc = await runCheck(files, {
       ctx,
       contextOptions,
@@ -282,14 +292,14 @@ export const checkCommand: CommandSpec = {
       onNotice: (message) => io.stderr(`opgate: ${message}\n`),
       ...(cache ? { cache } : {}),
     });
-    if (cache) io.stderr(`opgate: ${cache.summary()}\n`);
     if (showProgress) io.stderr("\n");
+    if (cache) io.stderr(`opgate: ${cache.summary()}\n`);
     if (shard && doc.circuits.length === 0) io.stderr(`opgate: shard ${shard.index}/${shard.count} has no files (${files.length} in all)\n`);
 
     const reportOptions: ReportOptions = baselineDoc ? { baseline: diffDocuments(baselineDoc, doc) } : {};
     const reportOnStdout = writeReports(doc, targets, io, reportOptions);
     const consoleText = renderConsole(doc, {
-      color: colourEnabled(io.env, io.isTTY),
+      color: colourEnabled(io.env, reportOnStdout ? io.stderrIsTTY === true : io.isTTY),
       quiet: args.quiet === true,
       ...(reportOptions.baseline ? { baseline: reportOptions.baseline } : {}),
     });

@@ -3,7 +3,10 @@
 export interface CliIo {
   readonly cwd: string;
   readonly env: Readonly<Record<string, string | undefined>>;
+  /** Standard output is a terminal. */
   readonly isTTY: boolean;
+  /** Standard error is a terminal (progress and, when a report takes stdout, the console text go there). */
+  readonly stderrIsTTY?: boolean;
   stdout(text: string): void;
   stderr(text: string): void;
 }

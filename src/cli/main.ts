@@ -20,10 +20,27 @@ export interface CommandSpec {
 
 const COMMANDS: readonly CommandSpec[] = [checkCommand, initCommand, inspectCommand, mergeCommand, rulesCommand, schemaCommand];
 
+/**
+ * A usage error: thrown from yargs' failure handler so that parsing stops there and no command
+ * runs. (yargs 18 with exitProcess(false) calls the failure handler and then runs the command's
+ * handler anyway when the handler returns; throwing is what stops it.) Carries the usage text of
+ * the command that was being parsed.
+ */
+class UsageError extends Error {
+  constructor(
+    message: string,
+    readonly usage: string,
+  ) {
+    super(message);
+  }
+}
+
 /** Runs the CLI with `argv` (without node and script) and returns the exit code. */
 export async function run(argv: readonly string[], io: CliIo): Promise<number> {
   let exitCode: number | undefined;
-  let usageError: string | undefined;
+  // recommendCommands() reports "Did you mean check?" through the failure handler first, then the
+  // unknown-command error: keep the suggestion for the message.
+  let suggestion: string | undefined;
   const parser = yargs([...argv])
     .scriptName("opgate")
     .usage("$0 <command> [options]\n\nDesign-review gate for analog circuit files.")
@@ -37,9 +54,14 @@ export async function run(argv: readonly string[], io: CliIo): Promise<number> {
     .version(toolVersion())
     .wrap(Math.min(100, process.stdout.columns ?? 100))
     .exitProcess(false)
-    .fail((msg, err) => {
+    .fail((msg, err, usage) => {
       if (err instanceof CliExit) throw err;
-      usageError = msg ?? err?.message ?? "bad arguments";
+      if (err) throw err; // thrown by a command handler: not a usage error
+      if (/^Did you mean /.test(msg ?? "")) {
+        suggestion = msg;
+        return;
+      }
+      throw new UsageError(msg ?? "bad arguments", (usage as unknown as { help(): string }).help());
     })
     .epilogue("Exit codes: 0 clean, 1 findings at or above failOn, 2 usage, config or input error.");
   for (const spec of COMMANDS) {
@@ -53,17 +75,19 @@ export async function run(argv: readonly string[], io: CliIo): Promise<number> {
       helpText = output;
     });
   } catch (err) {
+    if (err instanceof UsageError) {
+      // Usage, then the problem (and the nearest command for a typo): nothing ran, nothing written.
+      const command = argv.find((a) => !a.startsWith("-"));
+      const problem = suggestion && command ? `unknown command "${command}". ${suggestion}` : err.message;
+      io.stderr(`${err.usage}\n\nopgate: ${problem}\n`);
+      return EXIT_INPUT;
+    }
     if (err instanceof CliExit) {
       io.stderr(`opgate: ${err.message}\n`);
       return err.code;
     }
     const message = err instanceof Error ? err.message : String(err);
     io.stderr(`opgate: internal error: ${message}\nPlease report this with the command and file that caused it.\n`);
-    return EXIT_INPUT;
-  }
-  if (usageError !== undefined) {
-    if (helpText) io.stderr(`${helpText}\n`);
-    else io.stderr(`opgate: ${usageError}\nRun 'opgate --help' for usage.\n`);
     return EXIT_INPUT;
   }
   if (exitCode === undefined) {

@@ -68,7 +68,7 @@ export const mergeCommand: CommandSpec = {
       io.cwd,
     );
     const onStdout = writeReports(merged, targets, io, options);
-    const text = renderConsole(merged, { color: colourEnabled(io.env, io.isTTY), quiet: args.quiet === true, ...(options.baseline ? { baseline: options.baseline } : {}) });
+    const text = renderConsole(merged, { color: colourEnabled(io.env, onStdout ? io.stderrIsTTY === true : io.isTTY), quiet: args.quiet === true, ...(options.baseline ? { baseline: options.baseline } : {}) });
     if (onStdout) io.stderr(text);
     else io.stdout(text);
     writeCiOutputs(merged, io, options, onStdout);

@@ -1,7 +1,8 @@
 // Diode: Shockley junction I = IS(exp(V/(n·VT)) − 1) with ideality n and series resistance.
 // A non-zero series resistance gets an internal node between the anode pin and the junction
 // (an exact resistor stamp, no nested solve); the reported `linear` folds it back into one
-// conductance between anode and cathode, which is the exact two-pin Jacobian.
+// conductance between anode and cathode, which is the exact two-pin Jacobian. A model with a
+// breakdown voltage (a Zener) adds its reverse breakdown branch (breakdown.ts) to the junction.
 import type { Diode, DiodeModel } from "../circuit/types.js";
 import type { DiodePoint } from "../solve/types.js";
 import { criticalVoltage, limitJunction } from "../solve/limiting.js";
@@ -16,6 +17,7 @@ import {
   type SetupContext,
   type StampTarget,
 } from "./device.js";
+import { addBreakdown, breakdownBranch } from "./breakdown.js";
 import { JUNCTION_LEAK_CONDUCTANCE, junction, junctionOut } from "./junction.js";
 import { saturationCurrentAt, thermalVoltage } from "./thermal.js";
 
@@ -34,6 +36,7 @@ export function diode(c: Diode, ctx: SetupContext): DeviceInstance {
   const nvt = model.ideality.typ * thermalVoltage(ctx.temperature);
   const is = saturationCurrentAt(model.saturationCurrent.typ, ctx.temperature, model.energyGap, model.saturationCurrentExponent);
   const vcrit = criticalVoltage(nvt, is);
+  const zener = breakdownBranch(model, ctx.temperature);
   const idx: number[] = [inner, cathode.index];
   // Matrix offsets of the pin Jacobian (for matrix size offN) as a plain array (cheapest to
   // create); [0] the last junction voltage as a small typed array, so the
@@ -46,6 +49,7 @@ export function diode(c: Diode, ctx: SetupContext): DeviceInstance {
     junction(v, is, nvt);
     junctionOut[0] = junctionOut[0]! + JUNCTION_LEAK_CONDUCTANCE * v;
     junctionOut[1] = junctionOut[1]! + JUNCTION_LEAK_CONDUCTANCE;
+    if (zener) addBreakdown(v, zener, junctionOut);
   };
 
   return {

@@ -1,10 +1,18 @@
-// The default terminal output: one line per file with its status, then its findings
-// (`file:line:col  severity  rule  subject  message (measured vs limit, margin)`), baseline changes,
-// and a verdict line. Colour is decided by the caller (colourEnabled) so this stays pure.
+// The default terminal output: one line per file with its status, then per finding one short
+// line (`file:line:col  severity  rule  subject  measured vs limit, margin` — each number once, in
+// its own unit) and an indented second line with the fix and the worst scenario; baseline changes;
+// a verdict line. Colour is decided by the caller (colourEnabled) so this stays pure.
+// Every text from a circuit file or a team rule goes through inertText: no control character, no
+// line break (a line the Actions runner would execute as `::command`), no bidi override.
 import type { BaselineDiff, FigureChange } from "./baseline.js";
 import type { CircuitResult, Finding, ResultsDocument } from "./document.js";
 import { reaches } from "./build.js";
-import { count, findingLocation, formatQuantity, measuredVsLimit } from "./format.js";
+import { count, formatQuantity, measuredLimitMargin } from "./format.js";
+import { breakCommand, inertText } from "./untrusted.js";
+
+/** Text from a file or rule, made safe for a terminal line. */
+export const terminalText = inertText;
+const t = inertText;
 
 export interface ConsoleOptions {
   readonly color: boolean;
@@ -25,13 +33,7 @@ export function colourEnabled(env: Readonly<Record<string, string | undefined>>,
 }
 
 /** A line starting with `::` would be read by the CI runner as a command: break the pair. */
-export function neutraliseCommands(line: string): string {
-  return line.replace(/^(\s*):(?=:)/, "$1:\u200b");
-}
-
-function oneLine(text: string): string {
-  return text.replace(/\r?\n|\r/g, " ");
-}
+export const neutraliseCommands = breakCommand;
 
 const STATUS_WORD: Readonly<Record<CircuitResult["status"], [string, Colour]>> = {
   pass: ["ok   ", "green"],
@@ -40,17 +42,27 @@ const STATUS_WORD: Readonly<Record<CircuitResult["status"], [string, Colour]>> =
 };
 const SEVERITY_COLOUR: Readonly<Record<Finding["severity"], Colour>> = { error: "red", warning: "yellow", note: "cyan" };
 
-function findingLine(f: Finding, paint: (t: string, c: Colour) => string): string {
-  const numbers = measuredVsLimit(f);
-  const hint = f.hint ? ` — ${oneLine(f.hint)}` : "";
-  return (
-    `  ${findingLocation(f)}  ${paint(f.severity.padEnd(7), SEVERITY_COLOUR[f.severity])} ${f.rule}  ${oneLine(f.subject)}  ` +
-    `${oneLine(f.message)}${numbers ? ` (${numbers})` : ""}${hint}`
-  );
+function scenarioText(c: CircuitResult, id: string): string {
+  const s = c.scenarios.find((x) => x.id === id);
+  return t(s && s.label && s.label !== id ? `${id} (${s.label})` : id);
+}
+
+/**
+ * Line 1: where, how bad, which rule, what, and the numbers once (the message when the finding has
+ * no numbers). Line 2 (indented): the fix and the worst scenario, when there are any.
+ */
+function findingLines(c: CircuitResult, f: Finding, paint: (t: string, c: Colour) => string): string[] {
+  const numbers = measuredLimitMargin(f);
+  const head = `  ${t(f.file)}:${f.line}:${f.column}  ${paint(f.severity.padEnd(7), SEVERITY_COLOUR[f.severity])} ${t(f.rule)}  ${t(f.subject)}  ${numbers ? t(numbers) : t(f.message)}`;
+  const detail: string[] = [];
+  if (f.hint) detail.push(`fix: ${t(f.hint.trim().replace(/[.;]$/, ""))}`);
+  // A worst scenario says something only when scenarios were compared.
+  if (f.scenario && (c.scenarios.length > 1 || f.scenario !== "nominal")) detail.push(`worst: ${scenarioText(c, f.scenario)}`);
+  return detail.length > 0 ? [head, `      ${detail.join("; ")}`] : [head];
 }
 
 function change(label: string, ch: FigureChange): string {
-  return `    ${label} ${ch.subject}: ${formatQuantity(ch.before, ch.unit)} -> ${formatQuantity(ch.after, ch.unit)}`;
+  return `    ${label} ${t(ch.subject)}: ${t(formatQuantity(ch.before, ch.unit))} -> ${t(formatQuantity(ch.after, ch.unit))}`;
 }
 
 function baselineLines(diff: BaselineDiff): string[] {
@@ -58,12 +70,12 @@ function baselineLines(diff: BaselineDiff): string[] {
   const lines = ["Against the baseline:"];
   for (const d of diff.circuits) {
     const status = d.change !== "changed" ? d.change : d.statusBefore === d.statusAfter ? `still ${d.statusAfter}` : `${d.statusBefore} -> ${d.statusAfter}`;
-    lines.push(`  ${d.file}: ${status}`);
+    lines.push(`  ${t(d.file)}: ${status}`);
     for (const ch of d.gains) lines.push(change("gain", ch));
     for (const ch of d.supplies) lines.push(change("supply current", ch));
     for (const ch of d.headroom) lines.push(change("headroom", ch));
-    for (const f of d.newFindings) lines.push(`    new ${f.severity}: ${f.rule} ${oneLine(f.subject)}: ${oneLine(f.message)}`);
-    for (const f of d.fixedFindings) lines.push(`    fixed: ${f.rule} ${oneLine(f.subject)}`);
+    for (const f of d.newFindings) lines.push(`    new ${f.severity}: ${t(f.rule)} ${t(f.subject)}: ${t(f.message)}`);
+    for (const f of d.fixedFindings) lines.push(`    fixed: ${t(f.rule)} ${t(f.subject)}`);
   }
   if (diff.unchanged > 0) lines.push(`  ${count(diff.unchanged, "other circuit")} unchanged`);
   return lines;
@@ -84,10 +96,10 @@ export function renderConsole(doc: ResultsDocument, options: ConsoleOptions): st
   for (const c of doc.circuits) {
     if (options.quiet && c.status === "pass") continue;
     const [word, colour] = STATUS_WORD[c.status];
-    lines.push(`${paint(word, colour)} ${c.file}${c.name ? `  (${c.name})` : ""}`);
+    lines.push(`${paint(word, colour)} ${t(c.file)}${c.name ? `  (${t(c.name)})` : ""}`);
     for (const f of c.findings) {
       if (options.quiet && c.status !== "error" && !reaches(f.severity, doc.summary.failOn)) continue;
-      lines.push(findingLine(f, paint));
+      lines.push(...findingLines(c, f, paint));
     }
   }
   if (options.baseline && !options.quiet) lines.push("", ...baselineLines(options.baseline));

@@ -66,6 +66,22 @@ export function measuredVsLimit(item: Finding | PassedCheck): string {
   return parts.join(", ");
 }
 
+/**
+ * Each number once, in its own unit: "687 µA vs limit 800 µA, margin -113 µA" (the margin is the
+ * distance to the limit, negative when violated); "" when the check is not numeric. The unit is
+ * the finding's (a team rule may give any text; callers neutralise it for their sink).
+ */
+export function measuredLimitMargin(item: Finding | PassedCheck): string {
+  if (item.measured === null) return "";
+  const measured = formatQuantity(item.measured, item.unit);
+  if (item.limit === null) return measured;
+  const text = `${measured} vs limit ${formatQuantity(item.limit, item.unit)}`;
+  const distance = Math.abs(item.measured - item.limit);
+  if (item.margin === null || !Number.isFinite(distance)) return text;
+  const sign = item.margin < 0 && distance > 0 ? "-" : item.margin > 0 && distance > 0 ? "+" : "";
+  return `${text}, margin ${sign}${formatQuantity(distance, item.unit)}`;
+}
+
 /** `file:line:col` of a finding. */
 export function findingLocation(f: Finding): string {
   return `${f.file}:${f.line}:${f.column}`;

@@ -21,6 +21,7 @@ const SPREAD_FIELDS = [
   "saturationCurrent",
   "earlyVoltage",
   "ideality",
+  "breakdownVoltage",
   "threshold",
   "kPrime",
   "lambda",

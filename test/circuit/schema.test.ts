@@ -36,8 +36,8 @@ describe("schemas/circuit.schema.json", () => {
 
   it("has the model parameters of every model kind", () => {
     const props = (k: string) => Object.keys(defs[`model-${k}`]!["properties"] as Json).sort();
-    const base = ["description", "kind", "powerRating"];
-    expect(props("diode")).toEqual([...base, "saturationCurrent", "ideality", "seriesResistance", "energyGap", "saturationCurrentExponent"].sort());
+    const base = ["description", "kind", "powerRating", "ratings"];
+    expect(props("diode")).toEqual([...base, "saturationCurrent", "forward", "breakdown", "ideality", "seriesResistance", "energyGap", "saturationCurrentExponent"].sort());
     const bjt = [...base, "beta", "reverseBeta", "saturationCurrent", "earlyVoltage", "saturationEdge", "energyGap", "saturationCurrentExponent", "betaExponent"].sort();
     expect(props("npn")).toEqual(bjt);
     expect(props("pnp")).toEqual(bjt);

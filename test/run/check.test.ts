@@ -171,6 +171,20 @@ describe("opgate check", () => {
     expect(tty.stderr).toMatch(/\] 31\/31 files\n$/);
     expect((await cli(many, repo.dir, { CI: "true" }, true)).stderr).not.toContain("\r[");
     expect((await cli(many, repo.dir, {}, false)).stderr).not.toContain("\r[");
+    // Decided by the stream it is drawn on: stderr. `opgate check 2>log` on a terminal draws none;
+    // `opgate check | tee out` (stdout piped, stderr on the terminal) draws it.
+    expect((await cli(many, repo.dir, {}, true, false)).stderr).not.toContain("\r[");
+    expect((await cli(many, repo.dir, {}, false, true)).stderr).toContain("\r[");
+  });
+
+  it("says which policy judged the run: the config file, or the built-in defaults", async () => {
+    const none = await cli(["check", "boards/tide-gauge-preamp.yaml"], repo.dir);
+    expect(none.stderr).toMatch(/^opgate: no config file: built-in defaults$/m);
+    writeFileSync(join(repo.dir, "strict.yaml"), "failOn: warning\n");
+    const withConfig = await cli(["check", "boards/tide-gauge-preamp.yaml", "--config", "strict.yaml"], repo.dir);
+    expect(withConfig.stderr).toMatch(/^opgate: config strict\.yaml$/m);
+    // On stderr only: stdout stays the report when one is written there.
+    expect(withConfig.stdout).not.toContain("opgate: config");
   });
 
   it("prints only failures with --quiet, and rejects bad flags with exit 2", async () => {

@@ -31,13 +31,15 @@ export interface CliOutcome {
   readonly stderr: string;
 }
 
-export async function cli(argv: string[], cwd: string, env: Record<string, string | undefined> = {}, isTTY = false): Promise<CliOutcome> {
+/** `isTTY`: standard output is a terminal; `stderrIsTTY` (default: the same) for standard error. */
+export async function cli(argv: string[], cwd: string, env: Record<string, string | undefined> = {}, isTTY = false, stderrIsTTY = isTTY): Promise<CliOutcome> {
   let stdout = "";
   let stderr = "";
   const code = await run(argv, {
     cwd,
     env,
     isTTY,
+    stderrIsTTY,
     stdout: (t) => void (stdout += t),
     stderr: (t) => void (stderr += t),
   });
