@@ -31,8 +31,8 @@ export function cascadeCircuit(stages = STAGES): Circuit {
   const parts: Component[] = [];
   const r = (id: string, a: string, b: string, v: number) => parts.push({ id, pos: POS, kind: "resistor", pins: { a, b }, value: exact(v) });
   const cap = (id: string, a: string, b: string, v: number) => parts.push({ id, pos: POS, kind: "capacitor", pins: { a, b }, value: exact(v) });
-  parts.push({ id: "VCC", pos: POS, kind: "voltage-source", pins: { plus: "vcc", minus: "gnd" }, dc: exact(12) });
-  parts.push({ id: "VIN", pos: POS, kind: "voltage-source", pins: { plus: "in", minus: "gnd" }, dc: exact(0), ac: 1 });
+  parts.push({ id: "VCC", pos: POS, kind: "voltage-source", pins: { plus: "vcc", minus: "gnd" }, voltage: exact(12) });
+  parts.push({ id: "VIN", pos: POS, kind: "voltage-source", pins: { plus: "in", minus: "gnd" }, voltage: exact(0) });
   cap("CIN", "in", "b0", 10e-6);
   for (let i = 0; i < stages; i++) {
     r(`R1_${i}`, "vcc", `b${i}`, 82e3);
@@ -49,7 +49,7 @@ export function cascadeCircuit(stages = STAGES): Circuit {
   return {
     file: "bench.yaml",
     name: "preamp-cascade",
-    temperature: 300.15,
+    temperature: 298.15,
     ground: "gnd",
     parameters: new Map(),
     models: new Map([

@@ -39,7 +39,7 @@ export function chainCircuit(nodes: number, seed = 1): Circuit {
   const vary = (v: number) => v * (0.8 + 0.4 * rnd());
   const parts: Component[] = [];
   const r = (id: string, a: string, b: string, v: number) => parts.push({ id, pos: POS, kind: "resistor", pins: { a, b }, value: exact(v) });
-  parts.push({ id: "VCC", pos: POS, kind: "voltage-source", pins: { plus: "vcc", minus: "gnd" }, dc: exact(12) });
+  parts.push({ id: "VCC", pos: POS, kind: "voltage-source", pins: { plus: "vcc", minus: "gnd" }, voltage: exact(12) });
   const stages = Math.max(1, Math.round((nodes - 1) / 3));
   const names: string[] = ["vcc"];
   for (let i = 0; i < stages; i++) {
@@ -66,7 +66,7 @@ export function chainCircuit(nodes: number, seed = 1): Circuit {
   return {
     file: "bench.yaml",
     name: `chain-${nodes}`,
-    temperature: 300.15,
+    temperature: 298.15,
     ground: "gnd",
     parameters: new Map(),
     models,

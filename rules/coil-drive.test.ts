@@ -10,7 +10,7 @@ import coilDrive from "./coil-drive.js";
 const across = (coil: string, temperature = "23 °C") => `temperature: ${temperature}
 models: {}
 components:
-  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, dc: 12 V }
+  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, voltage: 12 V }
   - { id: K1, kind: resistor, pins: [vcc, gnd], value: 400, role: coil${coil} }
 `;
 

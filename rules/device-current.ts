@@ -9,12 +9,12 @@ function mainCurrent(point: DevicePoint): { value: number; name: string } {
   switch (point.kind) {
     case "npn":
     case "pnp":
-      return { value: point.ic, name: "collector current" };
+      return { value: point.collectorCurrent, name: "collector current" };
     case "nmos":
     case "pmos":
-      return { value: point.id, name: "drain current" };
+      return { value: point.drainCurrent, name: "drain current" };
     case "diode":
-      return { value: point.id, name: "forward current" };
+      return { value: point.current, name: "forward current" };
     case "capacitor":
       return { value: 0, name: "DC current" };
     default:

@@ -12,7 +12,7 @@ const CORNERS = { mode: "corners", samples: 1, seed: 1 } as const;
 const gateAtRail = (rail: string, tolerance = "") => `models:
   sw: { kind: nmos, threshold: 2 V, kPrime: 50m, width: 1 um, length: 1 um, ratings: { gateSource: 20 V, drainSource: 60 V, drainCurrent: 0.5 A } }
 components:
-  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, dc: ${rail}${tolerance} }
+  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, voltage: ${rail}${tolerance} }
   - { id: RG, kind: resistor, pins: [vcc, g], value: 100k }
   - { id: RL, kind: resistor, pins: [vcc, d], value: 1k }
   - { id: M1, kind: nmos, model: sw, pins: { drain: d, gate: g, source: gnd } }
@@ -21,7 +21,7 @@ components:
 const pmosGate = (rail: string) => `models:
   hs: { kind: pmos, threshold: -2 V, kPrime: 50m, width: 1 um, length: 1 um, ratings: { gateSource: 20 V } }
 components:
-  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, dc: ${rail} }
+  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, voltage: ${rail} }
   - { id: RG, kind: resistor, pins: [g, gnd], value: 100k }
   - { id: RL, kind: resistor, pins: [d, gnd], value: 1k }
   - { id: M1, kind: pmos, model: hs, pins: { drain: d, gate: g, source: vcc } }
@@ -32,7 +32,7 @@ const offNpn = (rail: string, polarity: "npn" | "pnp" = "npn") =>
     ? `models:
   q: { kind: npn, beta: 200, saturationCurrent: 1e-14 A, ratings: { collectorEmitter: 40 V, collectorBase: 60 V, emitterBase: 6 V, collectorCurrent: 200 mA } }
 components:
-  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, dc: ${rail} }
+  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, voltage: ${rail} }
   - { id: RB, kind: resistor, pins: [b, gnd], value: 10k }
   - { id: RC, kind: resistor, pins: [vcc, c], value: 10k }
   - { id: Q1, kind: npn, model: q, pins: { collector: c, base: b, emitter: gnd } }
@@ -40,7 +40,7 @@ components:
     : `models:
   q: { kind: pnp, beta: 200, saturationCurrent: 1e-14 A, ratings: { collectorEmitter: 40 V } }
 components:
-  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, dc: ${rail} }
+  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, voltage: ${rail} }
   - { id: RB, kind: resistor, pins: [vcc, b], value: 10k }
   - { id: RC, kind: resistor, pins: [c, gnd], value: 10k }
   - { id: Q1, kind: pnp, model: q, pins: { collector: c, base: b, emitter: vcc } }
@@ -49,8 +49,8 @@ components:
 const reversedEmitter = `models:
   q: { kind: npn, beta: 200, saturationCurrent: 1e-14 A, ratings: { emitterBase: 6 V } }
 components:
-  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, dc: 12 V }
-  - { id: VE, kind: voltage-source, pins: { plus: e, minus: gnd }, dc: 8 V }
+  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, voltage: 12 V }
+  - { id: VE, kind: voltage-source, pins: { plus: e, minus: gnd }, voltage: 8 V }
   - { id: RB, kind: resistor, pins: [b, gnd], value: 10k }
   - { id: Q1, kind: npn, model: q, pins: { collector: vcc, base: b, emitter: e } }
 `;
@@ -58,7 +58,7 @@ components:
 const led = (r: string) => `models:
   red: { kind: diode, forward: { voltage: 2.0 V, current: 20 mA }, ratings: { forwardCurrent: 30 mA, reverseVoltage: 5 V } }
 components:
-  - { id: V5, kind: voltage-source, pins: { plus: s, minus: gnd }, dc: 5 V }
+  - { id: V5, kind: voltage-source, pins: { plus: s, minus: gnd }, voltage: 5 V }
   - { id: R1, kind: resistor, pins: [s, a], value: ${r} }
   - { id: D1, kind: diode, model: red, pins: { anode: a, cathode: gnd } }
 `;
@@ -68,17 +68,17 @@ const reversedLed = led("1k").replace("anode: a, cathode: gnd", "anode: gnd, cat
 const zenerClamp = `models:
   z: { kind: diode, saturationCurrent: 1 nA, breakdown: { voltage: 5.1 V, current: 5 mA, resistance: 10 Ω }, ratings: { forwardCurrent: 200 mA } }
 components:
-  - { id: V1, kind: voltage-source, pins: { plus: s, minus: gnd }, dc: 12 V }
+  - { id: V1, kind: voltage-source, pins: { plus: s, minus: gnd }, voltage: 12 V }
   - { id: R1, kind: resistor, pins: [s, k], value: 1k }
   - { id: D1, kind: diode, model: z, pins: { anode: gnd, cathode: k } }
 `;
 
 const boundaryModel = { id: "q", kind: "npn" as const, pos: { file: "f", line: 1, column: 1 }, beta: { min: 100, typ: 100, max: 100 }, reverseBeta: { min: 1, typ: 1, max: 1 }, saturationCurrent: { min: 1e-14, typ: 1e-14, max: 1e-14 }, earlyVoltage: { min: Infinity, typ: Infinity, max: Infinity }, saturationEdge: 0.3, energyGap: 1.11, saturationCurrentExponent: 3, betaExponent: 1.5, ratings: { collectorEmitter: 10 } };
 const boundary = circuit({ components: [bjt("Q1", "pnp", 20)], models: [boundaryModel] });
-const atVce = (vce: number) => [analysis(boundary, op({ Q1: bjtPoint("pnp", { vce, vbe: -0.65 }) }))];
+const atVce = (vce: number) => [analysis(boundary, op({ Q1: bjtPoint("pnp", { collectorEmitterVoltage: vce, baseEmitterVoltage: -0.65 }) }))];
 const mosModel = { id: "m", kind: "pmos" as const, pos: { file: "f", line: 1, column: 1 }, threshold: { min: -1, typ: -1, max: -1 }, kPrime: { min: 1e-3, typ: 1e-3, max: 1e-3 }, width: 1e-6, length: 1e-6, lambda: { min: 0, typ: 0, max: 0 }, bodyEffect: 0, surfacePotential: 0.6, thresholdTempco: -0.002, kPrimeExponent: -1.5, ratings: { gateSource: 20, drainCurrent: 0.1 } };
 const mosBoundary = circuit({ components: [mos("M1", "pmos", 30)], models: [mosModel] });
-const atVgs = (vgs: number, id = 1e-3) => [analysis(mosBoundary, op({ M1: mosPoint("pmos", { vgs, id, vds: -5 }) }))];
+const atVgs = (vgs: number, id = 1e-3) => [analysis(mosBoundary, op({ M1: mosPoint("pmos", { gateSourceVoltage: vgs, drainCurrent: id, drainSourceVoltage: -5 }) }))];
 
 ruleTester(deviceRatings).run([
   { name: "a gate at 12 V is within 80% of a 20 V VGS rating", circuit: gateAtRail("12 V"), expect: [], passed: ["M1"] },

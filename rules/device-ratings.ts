@@ -29,19 +29,19 @@ function checksOf(c: Component, model: Model, p: DevicePoint): RatingCheck[] {
   if ((p.kind === "npn" || p.kind === "pnp") && (model.kind === "npn" || model.kind === "pnp") && model.ratings) {
     const s = p.kind === "npn" ? 1 : -1;
     const r = model.ratings;
-    add("VCE", "VCEO", Math.abs(p.vce), r.collectorEmitter, "V");
-    add("reverse VCB", "VCBO", Math.max(0, s * (p.vce - p.vbe)), r.collectorBase, "V");
-    add("reverse VEB", "VEBO", Math.max(0, -s * p.vbe), r.emitterBase, "V");
-    add("IC", "IC max", Math.abs(p.ic), r.collectorCurrent, "A");
+    add("VCE", "VCEO", Math.abs(p.collectorEmitterVoltage), r.collectorEmitter, "V");
+    add("reverse VCB", "VCBO", Math.max(0, s * (p.collectorEmitterVoltage - p.baseEmitterVoltage)), r.collectorBase, "V");
+    add("reverse VEB", "VEBO", Math.max(0, -s * p.baseEmitterVoltage), r.emitterBase, "V");
+    add("IC", "IC max", Math.abs(p.collectorCurrent), r.collectorCurrent, "A");
   } else if ((p.kind === "nmos" || p.kind === "pmos") && (model.kind === "nmos" || model.kind === "pmos") && model.ratings) {
     const r = model.ratings;
-    add("VDS", "VDS max", Math.abs(p.vds), r.drainSource, "V");
-    add("VGS", "VGS max", Math.abs(p.vgs), r.gateSource, "V");
-    add("ID", "ID max", Math.abs(p.id), r.drainCurrent, "A");
+    add("VDS", "VDS max", Math.abs(p.drainSourceVoltage), r.drainSource, "V");
+    add("VGS", "VGS max", Math.abs(p.gateSourceVoltage), r.gateSource, "V");
+    add("ID", "ID max", Math.abs(p.drainCurrent), r.drainCurrent, "A");
   } else if (p.kind === "diode" && model.kind === "diode" && model.ratings && c.kind === "diode") {
     const r = model.ratings;
-    add("reverse voltage", "VR max", Math.max(0, -p.vd), r.reverseVoltage, "V");
-    add("forward current", "IF max", Math.max(0, p.id), r.forwardCurrent, "A");
+    add("reverse voltage", "VR max", Math.max(0, -p.voltage), r.reverseVoltage, "V");
+    add("forward current", "IF max", Math.max(0, p.current), r.forwardCurrent, "A");
   }
   return out;
 }

@@ -7,7 +7,7 @@ import headroom from "./headroom.js";
 
 const q1 = circuit({ components: [bjt("Q1", "npn", 10), bjt("Q2", "pnp", 11), mos("M1", "nmos", 12), mos("M2", "pmos", 13)] });
 const points = (bjtHeadroom: number, mosHeadroom: number) =>
-  op({ Q1: bjtPoint("npn", { headroom: bjtHeadroom }), Q2: bjtPoint("pnp", { headroom: bjtHeadroom, vce: -(bjtHeadroom + 0.3) }), M1: mosPoint("nmos", { headroom: mosHeadroom }), M2: mosPoint("pmos", { headroom: mosHeadroom, vds: -(mosHeadroom + 0.5) }) });
+  op({ Q1: bjtPoint("npn", { headroom: bjtHeadroom }), Q2: bjtPoint("pnp", { headroom: bjtHeadroom, collectorEmitterVoltage: -(bjtHeadroom + 0.3) }), M1: mosPoint("nmos", { headroom: mosHeadroom }), M2: mosPoint("pmos", { headroom: mosHeadroom, drainSourceVoltage: -(mosHeadroom + 0.5) }) });
 
 ruleTester(headroom).run([
   { name: "NPN stage with VCE ≈ 5 V passes", circuit: npnStage(), expect: [], passed: ["Q1"] },

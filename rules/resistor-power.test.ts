@@ -9,7 +9,7 @@ import resistorPower from "./resistor-power.js";
 // A 1 kΩ resistor straight across the 12 V rail: P = V²/R = 144 mW (Joule's law).
 const bleeder = (extra: string) => `  - { id: RB, kind: resistor, pins: [vcc, gnd], value: 1k${extra} }`;
 const chip = circuit({ components: [resistor("R1", 10, { package: "0603" })] });
-const dissipating = (power: number, temperature = 300.15) => {
+const dissipating = (power: number, temperature = 298.15) => {
   const c = circuit({ components: [resistor("R1", 10, { package: "0603" })], temperature });
   return { circuit: c, analyses: [analysis(c, op({ R1: { kind: "resistor", current: 0, voltage: 0, power } }))] };
 };

@@ -31,7 +31,7 @@ export default defineRule({
         else lower -= intoBase;
       }
       if (upper === 0 || lower === 0) continue; // a single base resistor is not a divider
-      const check = { measured: Math.min(upper, lower), limit: options.ratio * Math.abs(point.ib), unit: "A", bound: "min" as const };
+      const check = { measured: Math.min(upper, lower), limit: options.ratio * Math.abs(point.baseCurrent), unit: "A", bound: "min" as const };
       if (check.measured >= check.limit) report.pass(q.id, check);
       else report.fail({ subject: q.id, message: `the base divider of ${q.id} draws ${(check.measured * 1e6).toFixed(1)} µA, less than ${options.ratio} × IB = ${(check.limit * 1e6).toFixed(1)} µA`, ...check, hint: "lower both divider resistors in proportion" });
     }

@@ -1,7 +1,7 @@
 // Defaults of circuit format v1 (DESIGN.md section 3), one named constant each with its source.
 
-/** Nominal ambient when the file gives none: 27 °C = 300.15 K (common practice: model parameters are quoted at 27 °C). */
-export const DEFAULT_TEMPERATURE_K = 300.15;
+/** Nominal ambient when the file gives none: 25 °C = 298.15 K, the reference temperature datasheets quote parameters at (common practice). */
+export const DEFAULT_TEMPERATURE_K = 298.15;
 /** Name of the reference node when the file gives none. */
 export const DEFAULT_GROUND = "gnd";
 
@@ -42,5 +42,5 @@ export const DEFAULT_THRESHOLD_TEMPCO_V_PER_K = -0.002;
 /** k'(T) ∝ (T/T0)^−1.5 (mobility falls with temperature; common practice). */
 export const DEFAULT_KPRIME_EXPONENT = -1.5;
 
-/** Bare temperature numbers below this are probably meant as °C: 27 is far colder than any board. */
+/** Bare temperature numbers below this are probably meant as °C: 25 K is far colder than any board. */
 export const SUSPICIOUS_KELVIN_BELOW = 150;

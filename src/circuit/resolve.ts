@@ -217,13 +217,15 @@ function resolveComponent(ctx: ResolveContext, raw: Obj, index: number): Compone
     case "voltage-source":
     case "current-source": {
       const isV = raw["kind"] === "voltage-source";
-      const dc = tol("dc", isV ? "voltage" : "current");
-      const ac = opt("ac", isV ? "voltage" : "current");
+      const quantity = isV ? "voltage" : "current";
+      const dc = tol(quantity, quantity);
+      const signal = opt("signal", quantity);
       if (!dc) return undefined;
-      const acPart = ac !== undefined ? { ac } : {};
+      if (signal !== undefined && !(signal > 0)) ctx.error([...path, "signal"], `${what}: the signal amplitude must be positive (a peak value); leave \`signal\` out when no level matters`);
+      const signalPart = signal !== undefined && signal > 0 ? { signal } : {};
       return isV
-        ? { ...base, kind: "voltage-source", pins: { plus: pins["plus"]!, minus: pins["minus"]! }, dc, ...acPart }
-        : { ...base, kind: "current-source", pins: { from: pins["from"]!, to: pins["to"]! }, dc, ...acPart };
+        ? { ...base, kind: "voltage-source", pins: { plus: pins["plus"]!, minus: pins["minus"]! }, voltage: dc, ...signalPart }
+        : { ...base, kind: "current-source", pins: { from: pins["from"]!, to: pins["to"]! }, current: dc, ...signalPart };
     }
     case "diode":
       return { ...base, kind: "diode", pins: { anode: pins["anode"]!, cathode: pins["cathode"]! }, model: String(raw["model"]) };
@@ -332,7 +334,7 @@ export function resolveCircuit(ctx: ResolveContext, root: Obj): Circuit {
     const t = readValue(ctx, root["temperature"], ["temperature"], "temperature", "`temperature`");
     if (t !== undefined) {
       temperature = t;
-      if (t <= 0) ctx.error(["temperature"], `\`temperature\` ${t} K is at or below absolute zero`, "write e.g. 27 °C");
+      if (t <= 0) ctx.error(["temperature"], `\`temperature\` ${t} K is at or below absolute zero`, "write e.g. 25 °C");
       else if (typeof root["temperature"] === "number" && t < D.SUSPICIOUS_KELVIN_BELOW)
         ctx.warn(["temperature"], `\`temperature: ${t}\` is read as ${t} K (a bare number is kelvin)`, `write "${t} °C" if Celsius was meant`);
     }

@@ -83,17 +83,20 @@ export interface Inductor extends ComponentBase {
 export interface VoltageSource extends ComponentBase {
   readonly kind: "voltage-source";
   readonly pins: { readonly plus: string; readonly minus: string };
-  readonly dc: Toleranced;
-  /** Small-signal amplitude when this source is a gain input; undefined = not given (1 is used). */
-  readonly ac?: number;
+  /** DC voltage, V(plus) − V(minus). */
+  readonly voltage: Toleranced;
+  /** Peak signal amplitude (V) this source applies when it drives a gain; used where a signal level matters, never to scale a gain. */
+  readonly signal?: number;
 }
 
 export interface CurrentSource extends ComponentBase {
   readonly kind: "current-source";
-  /** The dc current flows through the source from `from` to `to` (out of the source into node `to`). */
+  /** The DC current flows through the source from `from` to `to` (out of the source into node `to`). */
   readonly pins: { readonly from: string; readonly to: string };
-  readonly dc: Toleranced;
-  readonly ac?: number;
+  /** DC current, through the source from `from` to `to`. */
+  readonly current: Toleranced;
+  /** Peak signal amplitude (A) this source applies when it drives a gain; never scales a gain. */
+  readonly signal?: number;
 }
 
 export interface Diode extends ComponentBase {

@@ -2,6 +2,7 @@
 // rewritten as one plain sentence each. Generic: the config loader uses it with its own schema.
 import { Ajv2020, type ErrorObject, type ValidateFunction } from "ajv/dist/2020.js";
 import { pointerToPath, positionOf, typedPath, type PathSegment, type PositionedDocument } from "./positions.js";
+import { renamedKeyHint } from "./renamed-keys.js";
 import { didYouMean } from "./suggest.js";
 import type { InputError } from "./types.js";
 
@@ -108,7 +109,7 @@ function generic(e: ErrorObject, path: readonly PathSegment[], where: string, da
     case "additionalProperties": {
       const key = String((e.params as { additionalProperty: string }).additionalProperty);
       const known = Object.keys(parent.properties ?? {});
-      const hint = didYouMean(key, known) ?? (known.length ? `allowed keys: ${known.join(", ")}` : undefined);
+      const hint = renamedKeyHint(key, known) ?? didYouMean(key, known) ?? (known.length ? `allowed keys: ${known.join(", ")}` : undefined);
       return { message: `unknown key \`${key}\` in ${where}`, ...(hint ? { hint } : {}), keyPath: [...path, key] };
     }
     case "required": {

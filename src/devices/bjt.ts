@@ -221,19 +221,19 @@ class BjtInstance implements DeviceInstance {
     const go = -this.icVbc; // ∂IC/∂VCE at constant VBE
     return {
       kind: this.kind,
-      ic,
-      ib,
-      ie,
-      vbe: vbeRaw,
-      vce: vceRaw,
+      collectorCurrent: ic,
+      baseCurrent: ib,
+      emitterCurrent: ie,
+      baseEmitterVoltage: vbeRaw,
+      collectorEmitterVoltage: vceRaw,
       region: bjtRegion(vbeN, vbcN, vceN, saturationEdge),
       headroom: Math.abs(vceRaw) - saturationEdge,
       // Σ V·I over the pins with the emitter as reference (normalised terms are polarity-free).
       power: vceN * ic + vbeN * ib,
-      gm,
-      rpi: 1 / gpi,
-      re: 1 / (gm + gpi),
-      ro: 1 / go,
+      transconductance: gm,
+      inputResistance: 1 / gpi,
+      emitterResistance: 1 / (gm + gpi),
+      outputResistance: 1 / go,
       linear: { pins: [col.node, base.node, emi.node], y: this.g.slice() },
     };
   }

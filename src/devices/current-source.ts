@@ -7,7 +7,7 @@ import { addB, terminal, volt, type DeviceInstance, type SetupContext } from "./
 export function currentSource(c: CurrentSource, ctx: SetupContext): DeviceInstance {
   const from = terminal(ctx, "from", c.pins.from);
   const to = terminal(ctx, "to", c.pins.to);
-  const i = c.dc.nominal;
+  const i = c.current.nominal;
   return {
     id: c.id,
     kind: c.kind,

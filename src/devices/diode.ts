@@ -100,10 +100,10 @@ export function diode(c: Diode, ctx: SetupContext): DeviceInstance {
       const gEff = 1 / rd;
       return {
         kind: "diode",
-        id,
-        vd,
+        current: id,
+        voltage: vd,
         power: vd * id,
-        rd,
+        dynamicResistance: rd,
         linear: { pins: [anode.node, cathode.node], y: [gEff, -gEff, -gEff, gEff] },
       };
     },

@@ -240,17 +240,17 @@ class MosInstance implements DeviceInstance {
     this.fillJacobian();
     return {
       kind: this.kind,
-      id: this.id_,
-      vgs: vgsRaw,
-      vds: vdsRaw,
-      vov: this.vov,
-      vth: p * this.vt,
+      drainCurrent: this.id_,
+      gateSourceVoltage: vgsRaw,
+      drainSourceVoltage: vdsRaw,
+      overdrive: this.vov,
+      threshold: p * this.vt,
       region: this.region,
       headroom: Math.abs(vdsRaw) - Math.abs(this.vov), // |VDS| − |Vov| (DESIGN.md §3)
       power: p * vdsRaw * this.id_,
-      gm: this.gm,
-      gmb: this.gmb,
-      ro: 1 / this.gds,
+      transconductance: this.gm,
+      bodyTransconductance: this.gmb,
+      outputResistance: 1 / this.gds,
       linear: { pins: [dr.node, gt.node, sr.node, bd.node], y: this.g.slice() },
     };
   }

@@ -1,12 +1,12 @@
 // Physical constants and the temperature laws of DESIGN.md section 3 (model parameters are
-// given at 27 °C and moved to the circuit's temperature here, once per plan).
+// given at 25 °C and moved to the circuit's temperature here, once per plan).
 
 /** Boltzmann constant, J/K (CODATA 2018, exact by the 2019 SI definition). */
 export const BOLTZMANN = 1.380649e-23;
 /** Elementary charge, C (CODATA 2018, exact by the 2019 SI definition). */
 export const ELEMENTARY_CHARGE = 1.602176634e-19;
-/** Temperature at which model parameters are given: 27 °C. */
-export const MODEL_TEMPERATURE = 300.15;
+/** Temperature at which model parameters are given: 25 °C, the datasheet reference (common practice). */
+export const MODEL_TEMPERATURE = 298.15;
 
 /** Thermal voltage kT/q, V. */
 export function thermalVoltage(temperature: number): number {

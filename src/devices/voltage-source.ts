@@ -13,7 +13,7 @@ export function voltageSource(c: VoltageSource, ctx: SetupContext): VoltageSourc
   const plus = terminal(ctx, "plus", c.pins.plus);
   const minus = terminal(ctx, "minus", c.pins.minus);
   const br = ctx.branch(c.id);
-  const e = c.dc.nominal;
+  const e = c.voltage.nominal;
   return {
     id: c.id,
     kind: c.kind,

@@ -126,15 +126,15 @@ function detailsSection(c: CircuitResult): string[] {
       .sort()
       .filter((id) => TRANSISTOR_KINDS.has(op.devices[id]!.kind));
     if (transistors.length > 0) {
-      lines.push("| Transistor | Kind | Region | Ic / Id | Vce / Vds | Headroom | gm | Power |", "|---|---|---|---:|---:|---:|---:|---:|");
+      lines.push("| Transistor | Kind | Region | IC / ID | VCE / VDS | Headroom | gm | Power |", "|---|---|---|---:|---:|---:|---:|---:|");
       for (const id of transistors) {
         const d = op.devices[id]!;
         const bjt = d.kind === "npn" || d.kind === "pnp";
-        const current = num(d, bjt ? "ic" : "id");
-        const voltage = num(d, bjt ? "vce" : "vds");
+        const current = num(d, bjt ? "collectorCurrent" : "drainCurrent");
+        const voltage = num(d, bjt ? "collectorEmitterVoltage" : "drainSourceVoltage");
         lines.push(
           `| ${cell(id)} | ${d.kind} | ${cell(String(d.region ?? "—"))} | ${formatQuantity(current, "A")} | ${formatQuantity(voltage, "V")} | ` +
-            `${formatQuantity(num(d, "headroom"), "V")} | ${formatQuantity(num(d, "gm"), "S")} | ${formatQuantity(num(d, "power"), "W")} |`,
+            `${formatQuantity(num(d, "headroom"), "V")} | ${formatQuantity(num(d, "transconductance"), "S")} | ${formatQuantity(num(d, "power"), "W")} |`,
         );
       }
       lines.push("");

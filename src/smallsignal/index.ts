@@ -18,13 +18,14 @@ const CORNER_RELATIVE_WIDTH = 1e-9;
 const CORNER_DB_RESOLUTION = 1e-12;
 /** Bound on corner-search evaluations; bisection alone would need ~40 for any sweep bracket. */
 const CORNER_MAX_ITERATIONS = 60;
+/** The gain input is driven with 1 V (or 1 A): a gain is per unit of input, and a source's `signal` amplitude never scales it. */
+const UNIT_DRIVE = 1;
 /** The −3 dB level: |H| = reference / √2. */
 const HALF_POWER = Math.SQRT1_2;
 
 interface ResolvedGain {
   readonly spec: GainSpec;
   readonly source: VoltageSource | CurrentSource;
-  readonly amplitude: number;
   readonly plus: number;
   readonly minus: number;
 }
@@ -47,17 +48,13 @@ function resolveGain(circuit: Circuit, net: SmallSignalNetwork, spec: GainSpec):
   if (source.kind !== "voltage-source" && source.kind !== "current-source") {
     return `input \`${spec.input}\` is a ${source.kind}; a gain input must be an independent voltage or current source`;
   }
-  const amplitude = source.ac ?? 1;
-  if (!(amplitude !== 0 && Number.isFinite(amplitude))) {
-    return `input \`${spec.input}\` has an ac amplitude of ${amplitude}; give it a non-zero amplitude`;
-  }
   const index = (name: string): number | undefined =>
     name === circuit.ground ? GROUND : net.nodeIndex.get(name);
   const plus = index(spec.output.plus);
   const minus = index(spec.output.minus);
   if (plus === undefined) return `output node \`${spec.output.plus}\` is not in the circuit`;
   if (minus === undefined) return `output node \`${spec.output.minus}\` is not in the circuit`;
-  return { spec, source, amplitude, plus, minus };
+  return { spec, source, plus, minus };
 }
 
 function inputShort(net: SmallSignalNetwork, g: ResolvedGain): string | null {
@@ -73,10 +70,10 @@ function drive(net: SmallSignalNetwork, g: ResolvedGain): void {
   net.rhsRe.fill(0);
   net.rhsIm.fill(0);
   if (g.source.kind === "voltage-source") {
-    net.rhsRe[net.branchIndex.get(g.source.id) as number] = g.amplitude;
+    net.rhsRe[net.branchIndex.get(g.source.id) as number] = UNIT_DRIVE;
   } else {
     // The source's current flows through it from `from` to `to`, out into node `to`.
-    inject(net, net.nodeIndex.get(g.source.pins.to) ?? GROUND, net.nodeIndex.get(g.source.pins.from) ?? GROUND, g.amplitude);
+    inject(net, net.nodeIndex.get(g.source.pins.to) ?? GROUND, net.nodeIndex.get(g.source.pins.from) ?? GROUND, UNIT_DRIVE);
   }
 }
 
@@ -85,13 +82,13 @@ function inject(net: SmallSignalNetwork, into: number, outOf: number, current: n
   if (outOf !== GROUND) net.rhsRe[outOf] = (net.rhsRe[outOf] as number) - current;
 }
 
-/** Solves the factored view for the gain's drive: (V(plus) − V(minus)) / amplitude. */
+/** Solves the factored view for the gain's drive: (V(plus) − V(minus)) per unit of drive. */
 function solveGain(net: SmallSignalNetwork, g: ResolvedGain): ComplexValue {
   drive(net, g);
   net.lu.solve(net.rhsRe, net.rhsIm, net.xRe, net.xIm);
   return {
-    re: (valueAt(net.xRe, g.plus) - valueAt(net.xRe, g.minus)) / g.amplitude,
-    im: (valueAt(net.xIm, g.plus) - valueAt(net.xIm, g.minus)) / g.amplitude,
+    re: (valueAt(net.xRe, g.plus) - valueAt(net.xRe, g.minus)) / UNIT_DRIVE,
+    im: (valueAt(net.xIm, g.plus) - valueAt(net.xIm, g.minus)) / UNIT_DRIVE,
   };
 }
 
@@ -100,11 +97,11 @@ function inputImpedance(net: SmallSignalNetwork, g: ResolvedGain): number {
   if (g.source.kind === "voltage-source") {
     // The branch current flows into the plus pin; the source delivers its negative.
     const delivered = -(net.xRe[net.branchIndex.get(g.source.id) as number] as number);
-    return delivered === 0 ? Infinity : g.amplitude / delivered;
+    return delivered === 0 ? Infinity : UNIT_DRIVE / delivered;
   }
   const to = net.nodeIndex.get(g.source.pins.to) ?? GROUND;
   const from = net.nodeIndex.get(g.source.pins.from) ?? GROUND;
-  return (valueAt(net.xRe, to) - valueAt(net.xRe, from)) / g.amplitude;
+  return (valueAt(net.xRe, to) - valueAt(net.xRe, from)) / UNIT_DRIVE;
 }
 
 /** Output impedance: input zeroed (its branch stays a 0 V short, a current input stays open), 1 A test current. */

@@ -42,14 +42,14 @@ function devicesTable(circuit: Circuit, op: OperatingPoint): string | undefined 
     switch (p.kind) {
       case "npn":
       case "pnp":
-        rows.push([c.id, p.kind, p.region, formatSi(p.gm, "S"), formatSi(p.rpi, "Ω"), formatSi(p.re, "Ω"), formatSi(p.ro, "Ω"), "—", "—"]);
+        rows.push([c.id, p.kind, p.region, formatSi(p.transconductance, "S"), formatSi(p.inputResistance, "Ω"), formatSi(p.emitterResistance, "Ω"), formatSi(p.outputResistance, "Ω"), "—", "—"]);
         break;
       case "nmos":
       case "pmos":
-        rows.push([c.id, p.kind, p.region, formatSi(p.gm, "S"), "—", "—", formatSi(p.ro, "Ω"), formatSi(p.gmb, "S"), "—"]);
+        rows.push([c.id, p.kind, p.region, formatSi(p.transconductance, "S"), "—", "—", formatSi(p.outputResistance, "Ω"), formatSi(p.bodyTransconductance, "S"), "—"]);
         break;
       case "diode":
-        rows.push([c.id, "diode", "", "—", "—", "—", "—", "—", formatSi(p.rd, "Ω")]);
+        rows.push([c.id, "diode", "", "—", "—", "—", "—", "—", formatSi(p.dynamicResistance, "Ω")]);
         break;
       default:
         break;

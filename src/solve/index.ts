@@ -109,7 +109,7 @@ function implausible(circuit: Circuit, plan: Plan, op: SolveResult & { ok: true 
   const components = circuit.components;
   for (let k = 0; k < components.length; k++) {
     const c = components[k]!;
-    if (c.kind === "voltage-source") largestSource = Math.max(largestSource, Math.abs(c.dc.nominal));
+    if (c.kind === "voltage-source") largestSource = Math.max(largestSource, Math.abs(c.voltage.nominal));
   }
   const bound = Math.max(PLAUSIBLE_VOLTAGE, SOURCE_VOLTAGE_FACTOR * largestSource);
   // A first look on the unknowns op.nodes was read from (ground is 0, always within bound):

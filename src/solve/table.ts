@@ -59,14 +59,14 @@ export function renderOperatingPoint(op: OperatingPoint): string {
     switch (d.kind) {
       case "npn":
       case "pnp":
-        bjts.push([id, d.kind, d.region, formatSi(d.ic, "A"), formatSi(d.ib, "A"), formatSi(d.vbe, "V"), formatSi(d.vce, "V"), formatSi(d.headroom, "V"), formatSi(d.power, "W"), formatSi(d.gm, "S"), formatSi(d.rpi, "Ω"), formatSi(d.ro, "Ω")]);
+        bjts.push([id, d.kind, d.region, formatSi(d.collectorCurrent, "A"), formatSi(d.baseCurrent, "A"), formatSi(d.baseEmitterVoltage, "V"), formatSi(d.collectorEmitterVoltage, "V"), formatSi(d.headroom, "V"), formatSi(d.power, "W")]);
         break;
       case "nmos":
       case "pmos":
-        mos.push([id, d.kind, d.region, formatSi(d.id, "A"), formatSi(d.vgs, "V"), formatSi(d.vds, "V"), formatSi(d.vov, "V"), formatSi(d.vth, "V"), formatSi(d.headroom, "V"), formatSi(d.power, "W"), formatSi(d.gm, "S"), formatSi(d.ro, "Ω")]);
+        mos.push([id, d.kind, d.region, formatSi(d.drainCurrent, "A"), formatSi(d.gateSourceVoltage, "V"), formatSi(d.drainSourceVoltage, "V"), formatSi(d.overdrive, "V"), formatSi(d.threshold, "V"), formatSi(d.headroom, "V"), formatSi(d.power, "W")]);
         break;
       case "diode":
-        diodes.push([id, formatSi(d.id, "A"), formatSi(d.vd, "V"), formatSi(d.rd, "Ω"), formatSi(d.power, "W")]);
+        diodes.push([id, formatSi(d.current, "A"), formatSi(d.voltage, "V"), formatSi(d.dynamicResistance, "Ω"), formatSi(d.power, "W")]);
         break;
       case "resistor":
       case "inductor":
@@ -79,9 +79,9 @@ export function renderOperatingPoint(op: OperatingPoint): string {
         passive.push([id, d.kind, formatSi(d.voltage, "V"), formatSi(d.current, "A"), formatSi(d.power, "W")]);
     }
   }
-  out.push(section("Bipolar transistors", ["part", "kind", "region", "ic", "ib", "vbe", "vce", "headroom", "power", "gm", "rpi", "ro"], bjts));
-  out.push(section("MOSFETs", ["part", "kind", "region", "id", "vgs", "vds", "vov", "vth", "headroom", "power", "gm", "ro"], mos));
-  out.push(section("Diodes", ["part", "id", "vd", "rd", "power"], diodes));
+  out.push(section("Bipolar transistors", ["part", "kind", "region", "IC", "IB", "VBE", "VCE", "headroom", "power"], bjts));
+  out.push(section("MOSFETs", ["part", "kind", "region", "ID", "VGS", "VDS", "Vov", "Vt", "headroom", "power"], mos));
+  out.push(section("Diodes", ["part", "ID", "VD", "rd", "power"], diodes));
   out.push(section("Other components", ["part", "kind", "voltage", "current", "power"], passive));
   const s = op.stats;
   out.push(`Solved in ${s.iterations} Newton iterations (aid: ${s.aid}), largest KCL residual ${formatSi(s.residual, "A")}.\n`);

@@ -18,48 +18,48 @@ export interface Linearised {
 
 export interface BjtPoint {
   readonly kind: "npn" | "pnp";
-  readonly ic: number;
-  readonly ib: number;
-  readonly ie: number;
-  readonly vbe: number;
-  readonly vce: number;
+  readonly collectorCurrent: number;
+  readonly baseCurrent: number;
+  readonly emitterCurrent: number;
+  readonly baseEmitterVoltage: number;
+  readonly collectorEmitterVoltage: number;
   readonly region: BjtRegion;
   /** |VCE| − saturationEdge, V. */
   readonly headroom: number;
   readonly power: number;
-  readonly gm: number;
-  readonly rpi: number;
-  readonly re: number;
-  readonly ro: number;
+  readonly transconductance: number;
+  readonly inputResistance: number;
+  readonly emitterResistance: number;
+  readonly outputResistance: number;
   readonly linear: Linearised;
 }
 
 export interface MosPoint {
   readonly kind: "nmos" | "pmos";
-  readonly id: number;
-  readonly vgs: number;
-  readonly vds: number;
+  readonly drainCurrent: number;
+  readonly gateSourceVoltage: number;
+  readonly drainSourceVoltage: number;
   /** Polarity-normalised overdrive |Vgs| − |Vt| (with body effect), V. */
-  readonly vov: number;
+  readonly overdrive: number;
   /** Threshold at this point, signed as the model writes it, body effect included. */
-  readonly vth: number;
+  readonly threshold: number;
   readonly region: MosRegion;
   /** |VDS| − |Vov|, V. */
   readonly headroom: number;
   readonly power: number;
-  readonly gm: number;
-  readonly gmb: number;
-  readonly ro: number;
+  readonly transconductance: number;
+  readonly bodyTransconductance: number;
+  readonly outputResistance: number;
   readonly linear: Linearised;
 }
 
 export interface DiodePoint {
   readonly kind: "diode";
-  readonly id: number;
-  readonly vd: number;
+  readonly current: number;
+  readonly voltage: number;
   readonly power: number;
   /** Small-signal resistance including series resistance, ohm. */
-  readonly rd: number;
+  readonly dynamicResistance: number;
   readonly linear: Linearised;
 }
 

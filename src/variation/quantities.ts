@@ -5,7 +5,7 @@ import type { Circuit, Component, Model, Spread, Toleranced } from "../circuit/t
 export type QuantityGroup = "supply" | "passive" | "device";
 
 export interface Quantity {
-  /** Stable key: "R1.value", "VCC.dc", "small-npn.beta". */
+  /** Stable key: "R1.value", "VCC.voltage", "small-npn.beta". */
   readonly key: string;
   /** For labels: "R1", "VCC", "small-npn beta". */
   readonly label: string;
@@ -27,15 +27,16 @@ const SPREAD_FIELDS = [
   "lambda",
 ] as const;
 
-function valueField(c: Component): "value" | "dc" | null {
+function valueField(c: Component): "value" | "voltage" | "current" | null {
   switch (c.kind) {
     case "resistor":
     case "capacitor":
     case "inductor":
       return "value";
     case "voltage-source":
+      return "voltage";
     case "current-source":
-      return "dc";
+      return "current";
     default:
       return null;
   }

@@ -54,6 +54,11 @@ const CORPUS: Record<string, [RegExp, boolean]> = {
   "unknown-tag.yaml": [/unknown YAML tag/, true],
   "multiple-documents.yaml": [/more than one YAML document/, true],
   "tab-indent.yaml": [/a tab is used for indentation/, true],
+  // The format's vocabulary changed in place: an old key is refused and the hint names its replacement.
+  "old-key-dc.yaml": [/unknown key `dc` in component V1.*`dc` is now `voltage`/, true],
+  "old-key-dc-current.yaml": [/unknown key `dc` in component I1.*`dc` is now `current`/, true],
+  "old-key-ac.yaml": [/unknown key `ac` in component V1.*`ac` is now `signal`/, true],
+  "signal-negative.yaml": [/component V1: the signal amplitude must be positive/, true],
 };
 
 function fakeIo(cwd: string): CliIo & { out: string[]; err: string[] } {

@@ -21,4 +21,4 @@ export function errorsOf(text: string, file = "t.yaml"): readonly InputError[] {
   return r.errors;
 }
 
-export const VCC = "  - { id: V1, kind: voltage-source, pins: { plus: vcc, minus: gnd }, dc: 12 V }\n";
+export const VCC = "  - { id: V1, kind: voltage-source, pins: { plus: vcc, minus: gnd }, voltage: 12 V }\n";

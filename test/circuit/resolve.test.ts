@@ -8,9 +8,9 @@ const NPN = "models:\n  q: { kind: npn, beta: 200, saturationCurrent: 1e-14 A }\
 const BIAS = `${VCC}  - { id: RB, kind: resistor, pins: [vcc, b], value: 100k }\n  - { id: RC, kind: resistor, pins: [vcc, c], value: 1k }\n  - { id: Q1, kind: npn, model: q, pins: { collector: c, base: b, emitter: gnd } }\n`;
 
 describe("defaults (DESIGN.md section 3)", () => {
-  it("temperature 27 °C and ground gnd when not given", () => {
+  it("temperature 25 °C (the datasheet reference) and ground gnd when not given", () => {
     const c = load(yaml(BIAS, NPN));
-    expect(c.temperature).toBeCloseTo(300.15, 10);
+    expect(c.temperature).toBeCloseTo(298.15, 10);
     expect(c.ground).toBe("gnd");
     expect(c.nodes).toEqual(["b", "c", "vcc"]);
   });
@@ -109,7 +109,7 @@ describe("parameters and expressions", () => {
 });
 
 describe("specs", () => {
-  const specs = (s: string) => load(yaml(`${VCC}  - { id: VIN, kind: voltage-source, pins: { plus: in, minus: gnd }, dc: 0, ac: 1 }\n  - { id: R1, kind: resistor, pins: [in, out], value: 1k }\n  - { id: R2, kind: resistor, pins: [out, gnd], value: 1k }\n  - { id: R3, kind: resistor, pins: [vcc, gnd], value: 1k }\n`) + `specs:\n${s}`).specs;
+  const specs = (s: string) => load(yaml(`${VCC}  - { id: VIN, kind: voltage-source, pins: { plus: in, minus: gnd }, voltage: 0 }\n  - { id: R1, kind: resistor, pins: [in, out], value: 1k }\n  - { id: R2, kind: resistor, pins: [out, gnd], value: 1k }\n  - { id: R3, kind: resistor, pins: [vcc, gnd], value: 1k }\n`) + `specs:\n${s}`).specs;
   it("a target of −40 with 5% gives the window {−42, −38}; a single-node output is against ground", () => {
     const g = specs("  gains:\n    - { name: g, input: VIN, output: out, target: -40, tolerance: 5% }\n").gains[0]!;
     expect(g.window.min).toBeCloseTo(-42, 12);
@@ -156,7 +156,7 @@ describe("positions and immutability", () => {
     expect(() => (c.components as unknown as unknown[]).push(1)).toThrow();
   });
   it("JSON files load the same as YAML", () => {
-    const json = JSON.stringify({ format: "opgate-circuit/1", name: "j", components: [{ id: "V1", kind: "voltage-source", pins: { plus: "a", minus: "gnd" }, dc: "5 V" }, { id: "R1", kind: "resistor", pins: ["a", "gnd"], value: "4k7" }] }, null, 2);
+    const json = JSON.stringify({ format: "opgate-circuit/1", name: "j", components: [{ id: "V1", kind: "voltage-source", pins: { plus: "a", minus: "gnd" }, voltage: "5 V" }, { id: "R1", kind: "resistor", pins: ["a", "gnd"], value: "4k7" }] }, null, 2);
     const c = load(json, "j.json");
     expect((c.components[1] as Resistor).value.nominal).toBe(4700);
     expect(c.components[1]!.pos.line).toBe(14);
@@ -168,7 +168,7 @@ describe("the format example of DESIGN.md section 3", () => {
   const text = `format: opgate-circuit/1
 name: line-driver            # identifier, unique in a repository
 description: Emitter-follower buffer for the sensor line
-temperature: 27 °C           # nominal ambient; default 27 °C
+temperature: 25 °C           # nominal ambient; default 25 °C
 ground: gnd                  # name of the reference node; default gnd
 parameters:                  # named values usable in "=" expressions
   rLoad: 2k2
@@ -180,8 +180,8 @@ models:
     earlyVoltage: 90 V       # omit for no Early effect
     saturationEdge: 0.3 V    # VCE at the edge of saturation, for headroom
 components:
-  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, dc: 12 V, tolerance: 5% }
-  - { id: VIN, kind: voltage-source, pins: { plus: in, minus: gnd }, dc: 0, ac: 1 }
+  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, voltage: 12 V, tolerance: 5% }
+  - { id: VIN, kind: voltage-source, pins: { plus: in, minus: gnd }, voltage: 0 }
   - { id: R1, kind: resistor, pins: [vcc, b], value: 47k, tolerance: 1%, powerRating: 0.125 W }
   - { id: R2, kind: resistor, pins: [b, gnd], value: 68k, tolerance: 1%, package: "0603" }
   - { id: C1, kind: capacitor, pins: [in, b], value: 10u, voltageRating: 25 V }
@@ -202,7 +202,7 @@ specs:
     expect(c.nodes).toEqual(["b", "in", "out", "vcc"]);
     const byId = new Map(c.components.map((x) => [x.id, x]));
     const vcc = byId.get("VCC");
-    expect(vcc?.kind === "voltage-source" && vcc.dc.min).toBeCloseTo(11.4, 12);
+    expect(vcc?.kind === "voltage-source" && vcc.voltage.min).toBeCloseTo(11.4, 12);
     const r1 = byId.get("R1");
     expect(r1?.kind === "resistor" && r1.powerRating).toBe(0.125);
     const c1 = byId.get("C1");

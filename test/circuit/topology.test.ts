@@ -21,7 +21,7 @@ describe("topology", () => {
     expect(e[0]!.message).toMatch(/node `g` has no DC path .*the gate of M1/);
   });
   it("a loop of voltage sources is named", () => {
-    const e = errorsOf(yaml(VCC + "  - { id: V2, kind: voltage-source, pins: { plus: a, minus: gnd }, dc: 1 V }\n  - { id: V3, kind: voltage-source, pins: { plus: vcc, minus: a }, dc: 11 V }\n" + R("R1", "vcc", "gnd")));
+    const e = errorsOf(yaml(VCC + "  - { id: V2, kind: voltage-source, pins: { plus: a, minus: gnd }, voltage: 1 V }\n  - { id: V3, kind: voltage-source, pins: { plus: vcc, minus: a }, voltage: 11 V }\n" + R("R1", "vcc", "gnd")));
     expect(e[0]!.message).toBe("loop of voltage sources and DC shorts: V1 → V3 → V2 → V1");
     expect(e[0]!.parts).toEqual(["V1", "V3", "V2"]);
   });
@@ -30,10 +30,10 @@ describe("topology", () => {
     expect(() => load(yaml(VCC + "  - { id: L1, kind: inductor, pins: [vcc, gnd], value: 1m, seriesResistance: 2 }\n"))).not.toThrow();
   });
   it("a voltage source with both pins on one node is an error", () => {
-    expect(errorsOf(yaml(VCC + R("R1", "vcc", "gnd") + "  - { id: V2, kind: voltage-source, pins: { plus: vcc, minus: vcc }, dc: 1 }\n"))[0]!.message).toMatch(/both pins on node `vcc`/);
+    expect(errorsOf(yaml(VCC + R("R1", "vcc", "gnd") + "  - { id: V2, kind: voltage-source, pins: { plus: vcc, minus: vcc }, voltage: 1 }\n"))[0]!.message).toMatch(/both pins on node `vcc`/);
   });
   it("a node fed only by current sources is named with the sources", () => {
-    const e = errorsOf(yaml(VCC + R("R1", "vcc", "gnd") + "  - { id: I1, kind: current-source, pins: { from: gnd, to: x }, dc: 1 mA }\n  - { id: I2, kind: current-source, pins: { from: x, to: vcc }, dc: 1 mA }\n"));
+    const e = errorsOf(yaml(VCC + R("R1", "vcc", "gnd") + "  - { id: I1, kind: current-source, pins: { from: gnd, to: x }, current: 1 mA }\n  - { id: I2, kind: current-source, pins: { from: x, to: vcc }, current: 1 mA }\n"));
     expect(e[0]!.message).toMatch(/node `x` is fed only by current sources \(I1, I2\)/);
   });
   it("a single-connection node is only a warning", () => {
@@ -59,8 +59,8 @@ describe("topology", () => {
     expect(errorsOf(yaml(base) + "specs:\n  devices:\n    R1: { region: active }\n")[0]!.message).toMatch(/`R1` is a resistor, not a transistor/);
   });
   it("ground that nothing touches is named, with a hint for node 0", () => {
-    const e = errorsOf(yaml("  - { id: V1, kind: voltage-source, pins: { plus: vcc, minus: 0 }, dc: 12 V }\n" + R("R1", "vcc", "0")));
+    const e = errorsOf(yaml("  - { id: V1, kind: voltage-source, pins: { plus: vcc, minus: 0 }, voltage: 12 V }\n" + R("R1", "vcc", "0")));
     expect(e[0]).toMatchObject({ message: "no component connects to the ground node `gnd`", hint: expect.stringMatching(/ground: 0/) });
-    expect(() => load(yaml("  - { id: V1, kind: voltage-source, pins: { plus: vcc, minus: 0 }, dc: 12 V }\n" + R("R1", "vcc", "0"), "ground: 0\n"))).not.toThrow();
+    expect(() => load(yaml("  - { id: V1, kind: voltage-source, pins: { plus: vcc, minus: 0 }, voltage: 12 V }\n" + R("R1", "vcc", "0"), "ground: 0\n"))).not.toThrow();
   });
 });

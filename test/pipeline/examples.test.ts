@@ -89,7 +89,7 @@ function pmosWithPositiveThreshold(): string {
     "models:",
     "  m: { kind: pmos, threshold: 0.7 V, kPrime: 100u, width: 10u, length: 1u }",
     "components:",
-    "  - { id: VDD, kind: voltage-source, pins: { plus: vdd, minus: gnd }, dc: 5 V }",
+    "  - { id: VDD, kind: voltage-source, pins: { plus: vdd, minus: gnd }, voltage: 5 V }",
     "  - { id: RD, kind: resistor, pins: [d, gnd], value: 10k }",
     "  - { id: M1, kind: pmos, model: m, pins: { drain: d, gate: gnd, source: vdd } }",
   ].join("\n");

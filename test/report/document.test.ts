@@ -63,7 +63,7 @@ describe("renderJson", () => {
     const parsed = JSON.parse(renderJson(fixtureDocument()));
     const buffer = parsed.circuits.find((c: { name: string }) => c.name === "soil-probe-buffer");
     expect(buffer.gains[0].inputImpedance).toBeNull();
-    expect(buffer.operatingPoint.devices.Q1.ro).toBeNull();
+    expect(buffer.operatingPoint.devices.Q1.outputResistance).toBeNull();
   });
 
   it("matches its golden file", () => {

@@ -32,8 +32,8 @@ export function npnStage(o: BjtStage = {}): string {
 models:
 ${o.model ?? MODEL_NPN}
 components:
-  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, dc: ${o.vcc ?? "12 V"}, tolerance: 5% }
-  - { id: VIN, kind: voltage-source, pins: { plus: in, minus: gnd }, dc: 0 V, ac: 1 mV }
+  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, voltage: ${o.vcc ?? "12 V"}, tolerance: 5% }
+  - { id: VIN, kind: voltage-source, pins: { plus: in, minus: gnd }, voltage: 0 V, signal: 1 mV }
   - { id: C1, kind: capacitor, pins: [in, base], value: 22u, voltageRating: 16 V }
   - { id: R1, kind: resistor, pins: [vcc, base], value: ${o.r1 ?? "56k"}, tolerance: 1%, package: "0603" }
   - { id: R2, kind: resistor, pins: [base, gnd], value: ${o.r2 ?? "12k"}, tolerance: 1%, package: "0603" }
@@ -58,8 +58,8 @@ export function pnpStage(o: BjtStage = {}): string {
 models:
 ${o.model ?? MODEL_PNP}
 components:
-  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, dc: ${o.vcc ?? "12 V"}, tolerance: 5% }
-  - { id: VIN, kind: voltage-source, pins: { plus: in, minus: gnd }, dc: 0 V, ac: 1 mV }
+  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, voltage: ${o.vcc ?? "12 V"}, tolerance: 5% }
+  - { id: VIN, kind: voltage-source, pins: { plus: in, minus: gnd }, voltage: 0 V, signal: 1 mV }
   - { id: C1, kind: capacitor, pins: [in, base], value: 22u, voltageRating: 16 V }
   - { id: R1, kind: resistor, pins: [vcc, base], value: ${o.r1 ?? "12k"}, tolerance: 1%, package: "0603" }
   - { id: R2, kind: resistor, pins: [base, gnd], value: ${o.r2 ?? "56k"}, tolerance: 1%, package: "0603" }
@@ -89,7 +89,7 @@ export function nmosStage(o: MosStage = {}): string {
   return `models:
   tw-nmos: { kind: nmos, threshold: 1 V, kPrime: 200u, width: 10 um, length: 1 um${o.powerRating ? `, powerRating: ${o.powerRating}` : ""} }
 components:
-  - { id: VDD, kind: voltage-source, pins: { plus: vdd, minus: gnd }, dc: 12 V }
+  - { id: VDD, kind: voltage-source, pins: { plus: vdd, minus: gnd }, voltage: 12 V }
   - { id: RG1, kind: resistor, pins: [vdd, gate], value: 3M }
   - { id: RG2, kind: resistor, pins: [gate, gnd], value: 1M }
   - { id: M1, kind: nmos, model: tw-nmos, pins: { drain: drain, gate: gate, source: src } }
@@ -105,7 +105,7 @@ export function pmosStage(o: MosStage = {}): string {
   return `models:
   tw-pmos: { kind: pmos, threshold: -1 V, kPrime: 200u, width: 10 um, length: 1 um${o.powerRating ? `, powerRating: ${o.powerRating}` : ""} }
 components:
-  - { id: VDD, kind: voltage-source, pins: { plus: vdd, minus: gnd }, dc: 12 V }
+  - { id: VDD, kind: voltage-source, pins: { plus: vdd, minus: gnd }, voltage: 12 V }
   - { id: RG1, kind: resistor, pins: [vdd, gate], value: 1M }
   - { id: RG2, kind: resistor, pins: [gate, gnd], value: 3M }
   - { id: M1, kind: pmos, model: tw-pmos, pins: { drain: drain, gate: gate, source: src } }
@@ -138,8 +138,8 @@ models:
   flyback: { kind: diode, saturationCurrent: 2 nA, ideality: 1.8 }
   status-led: { kind: diode, saturationCurrent: 1e-18 A, ideality: 2 }
 components:
-  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, dc: ${o.vcc ?? "12 V"}, tolerance: 5% }
-  - { id: VLOGIC, kind: voltage-source, pins: { plus: logic, minus: gnd }, dc: 5 V }
+  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, voltage: ${o.vcc ?? "12 V"}, tolerance: 5% }
+  - { id: VLOGIC, kind: voltage-source, pins: { plus: logic, minus: gnd }, voltage: 5 V }
   - { id: K1, kind: resistor, pins: [vcc, col], value: 400${o.coil ?? ""} }
   - { id: D1, kind: diode, model: flyback, pins: { anode: col, cathode: vcc } }
   - { id: RB, kind: resistor, pins: [logic, base], value: 4k7, package: "0603" }

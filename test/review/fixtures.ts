@@ -17,7 +17,7 @@ export function circuit(parts: { components?: Component[]; models?: Model[]; spe
   return {
     file: FILE,
     name: parts.name ?? "tide-gauge-front-end",
-    temperature: parts.temperature ?? 300.15,
+    temperature: parts.temperature ?? 298.15,
     ground: "gnd",
     parameters: new Map(),
     models: new Map((parts.models ?? []).map((m) => [m.id, m])),
@@ -49,11 +49,11 @@ export function capacitor(id: string, line: number, voltageRating?: number): Cap
 const LINEAR = { pins: [], y: [] };
 
 export function bjtPoint(kind: "npn" | "pnp", p: Partial<BjtPoint> = {}): BjtPoint {
-  return { kind, ic: 1e-3, ib: 1e-5, ie: 1.01e-3, vbe: 0.65, vce: 5, region: "active", headroom: 4.7, power: 5e-3, gm: 0.0387, rpi: 2600, re: 25.6, ro: Infinity, linear: LINEAR, ...p };
+  return { kind, collectorCurrent: 1e-3, baseCurrent: 1e-5, emitterCurrent: 1.01e-3, baseEmitterVoltage: 0.65, collectorEmitterVoltage: 5, region: "active", headroom: 4.7, power: 5e-3, transconductance: 0.0387, inputResistance: 2600, emitterResistance: 25.6, outputResistance: Infinity, linear: LINEAR, ...p };
 }
 
 export function mosPoint(kind: "nmos" | "pmos", p: Partial<MosPoint> = {}): MosPoint {
-  return { kind, id: 1e-3, vgs: 1.5, vds: 5, vov: 0.5, vth: 1, region: "saturation", headroom: 4.5, power: 5e-3, gm: 4e-3, gmb: 0, ro: Infinity, linear: LINEAR, ...p };
+  return { kind, drainCurrent: 1e-3, gateSourceVoltage: 1.5, drainSourceVoltage: 5, overdrive: 0.5, threshold: 1, region: "saturation", headroom: 4.5, power: 5e-3, transconductance: 4e-3, bodyTransconductance: 0, outputResistance: Infinity, linear: LINEAR, ...p };
 }
 
 export function op(devices: Record<string, DevicePoint>, sources: Record<string, SourcePoint> = {}): OperatingPoint {

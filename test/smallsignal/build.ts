@@ -89,12 +89,12 @@ export class CircuitBuilder {
     this.components.push({ id, pos: POS, kind: "inductor", pins: { a, b }, value: exact(henries), seriesResistance });
     return this;
   }
-  vsource(id: string, plus: string, minus: string, dc: number, ac?: number): this {
-    this.components.push({ id, pos: POS, kind: "voltage-source", pins: { plus, minus }, dc: exact(dc), ...(ac === undefined ? {} : { ac }) });
+  vsource(id: string, plus: string, minus: string, dc: number, signal?: number): this {
+    this.components.push({ id, pos: POS, kind: "voltage-source", pins: { plus, minus }, voltage: exact(dc), ...(signal === undefined ? {} : { signal }) });
     return this;
   }
-  isource(id: string, from: string, to: string, dc: number, ac?: number): this {
-    this.components.push({ id, pos: POS, kind: "current-source", pins: { from, to }, dc: exact(dc), ...(ac === undefined ? {} : { ac }) });
+  isource(id: string, from: string, to: string, dc: number, signal?: number): this {
+    this.components.push({ id, pos: POS, kind: "current-source", pins: { from, to }, current: exact(dc), ...(signal === undefined ? {} : { signal }) });
     return this;
   }
   vcvs(id: string, plus: string, minus: string, controlPlus: string, controlMinus: string, gain: number): this {
@@ -152,7 +152,7 @@ export class CircuitBuilder {
     return {
       file: "test.yaml",
       name: this.name,
-      temperature: 300.15,
+      temperature: 298.15,
       ground: this.ground,
       parameters: new Map(),
       models: new Map(this.models),

@@ -41,12 +41,12 @@ describe("diode attenuator", () => {
     const d = op.devices.D1 as DiodePoint;
     const g = analyseSmallSignal(c, op).gains[0]!;
     // With the tool's rd, R ∥ RB feeds rd: exact divider (Ohm's law), the 1e-12 S leak aside.
-    const rdEff = (d.rd * 4.7e3) / (d.rd + 4.7e3);
+    const rdEff = (d.dynamicResistance * 4.7e3) / (d.dynamicResistance + 4.7e3);
     expect(relErr(g.midband, rdEff / (R + rdEff))).toBeLessThan(1e-7);
     // Hand: rd = n·VT/ID + RS with ID from the tool's bias current (Shockley derivative).
-    const rdHand = (1.8 * VT) / d.id + rs;
-    expect(relErr(d.rd, rdHand)).toBeLessThan(1e-6);
+    const rdHand = (1.8 * VT) / d.current + rs;
+    expect(relErr(d.dynamicResistance, rdHand)).toBeLessThan(1e-6);
     // Output impedance: rd ∥ R ∥ RB.
-    expect(relErr(g.outputImpedance, 1 / (1 / d.rd + 1 / R + 1 / 4.7e3))).toBeLessThan(1e-7);
+    expect(relErr(g.outputImpedance, 1 / (1 / d.dynamicResistance + 1 / R + 1 / 4.7e3))).toBeLessThan(1e-7);
   });
 });

@@ -2,8 +2,8 @@
 // separate from the tool so the "formula from hand bias values" checks are independent of the
 // solver. Each function states its method.
 
-/** Thermal voltage kT/q at 27 °C with CODATA 2018 k and q (exact SI values). */
-export const VT = (1.380649e-23 * 300.15) / 1.602176634e-19;
+/** Thermal voltage kT/q at 25 °C with CODATA 2018 k and q (exact SI values). */
+export const VT = (1.380649e-23 * 298.15) / 1.602176634e-19;
 
 /**
  * Hand bias of a BJT whose emitter current is set by a resistor RE from a base held at VB:
@@ -18,7 +18,7 @@ export function emitterBias(vb: number, vee: number, re: number, beta: number, i
     ic = (beta / (beta + 1)) * ie;
     vbe = VT * Math.log(ic / is);
   }
-  return { ic, vbe, gm: ic / VT, rpi: beta / (ic / VT), re: VT / (ic * (1 + 1 / beta)) };
+  return { ic, vbe, gm: ic / VT, rPi: beta / (ic / VT), re: VT / (ic * (1 + 1 / beta)) };
 }
 
 /**

@@ -79,6 +79,14 @@ describe("impedances by the test-source method", () => {
     expect(g.db).toBeCloseTo(20 * Math.log10(R2 / (R1 + R2)), 12);
   });
 
+  it("a source's signal amplitude never scales the gain: with 0.5 V, 2 V or no signal the divider gives R2/(R1+R2) (gain is per unit of input)", () => {
+    const gainWith = (signal?: number) =>
+      analyseSmallSignal(circuit("gauge-divider").vsource("VIN", "in", "gnd", 0, signal).resistor("R1", "in", "mid", R1).resistor("R2", "mid", "gnd", R2).gain("div", "VIN", "mid").build(), op).gains[0]!.midband;
+    expect(gainWith(0.5)).toBe(gainWith(undefined));
+    expect(gainWith(2)).toBe(gainWith(undefined));
+    expect(relErr(gainWith(2), R2 / (R1 + R2))).toBeLessThan(1e-14);
+  });
+
   it("current-source input: gain in V/A is the transresistance, input impedance V/I across it (Ohm's law)", () => {
     const c = circuit("probe-current").isource("IIN", "gnd", "x", 1e-3, 2e-6).resistor("R1", "x", "gnd", 10e3).resistor("R2", "x", "y", 5e3).resistor("R3", "y", "gnd", 5e3).gain("z", "IIN", "y").build();
     const g = analyseSmallSignal(c, op).gains[0]!;

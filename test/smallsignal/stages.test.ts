@@ -73,14 +73,14 @@ describe("bipolar stages", () => {
     expect(q.region).toBe("active");
     const g = gainOf(c, op);
     // (1) exact for the model: emitter at AC ground, base driven by an ideal source.
-    expect(record("CE −gm(RC‖ro) vs tool gm,ro", relErr(g.midband, -q.gm * par(RC, q.ro)))).toBeLessThan(MODEL_EXACT);
+    expect(record("CE −gm(RC‖ro) vs tool gm,ro", relErr(g.midband, -q.transconductance * par(RC, q.outputResistance)))).toBeLessThan(MODEL_EXACT);
     // (2) hand bias: IC from emitterBias, gm = IC/VT, ro ≈ VA/IC (textbook; the model's ro is (VA + VCB)/IF, ~5 % larger).
     const h = emitterBias(1.7, 0, RE, BETA, IS);
     expect(record("CE hand", relErr(g.midband, -h.gm * par(RC, VA / h.ic)))).toBeLessThan(HAND);
     // Input impedance with the emitter at AC ground: rπ (hybrid-π; ideal base drive).
-    expect(record("CE Zin = rπ", relErr(g.inputImpedance, q.rpi))).toBeLessThan(BJT_INPUT);
+    expect(record("CE Zin = rπ", relErr(g.inputImpedance, q.inputResistance))).toBeLessThan(BJT_INPUT);
     // Output impedance: RC‖ro.
-    expect(record("CE Zout = RC‖ro", relErr(g.outputImpedance, par(RC, q.ro)))).toBeLessThan(MODEL_EXACT);
+    expect(record("CE Zout = RC‖ro", relErr(g.outputImpedance, par(RC, q.outputResistance)))).toBeLessThan(MODEL_EXACT);
   });
 
   it("common emitter with emitter degeneration: −gm·RC/(1 + gm·RE)", () => {
@@ -98,17 +98,17 @@ describe("bipolar stages", () => {
     const q = bjtAt(op, "Q1");
     const g = gainOf(c, op);
     // (1a) exact for the hybrid-π with ro = ∞ (no Early effect here): −gm·RC/(1 + gm·RE + RE/rπ).
-    expect(record("CE-deg exact vs tool gm,rπ", relErr(g.midband, (-q.gm * RC) / (1 + q.gm * RE + RE / q.rpi)))).toBeLessThan(MODEL_EXACT);
+    expect(record("CE-deg exact vs tool gm,rπ", relErr(g.midband, (-q.transconductance * RC) / (1 + q.transconductance * RE + RE / q.inputResistance)))).toBeLessThan(MODEL_EXACT);
     // (1b) the textbook approximation −gm·RC/(1 + gm·RE) neglects base current (α ≈ 1): off by ≈ RE/(rπ(1+gm·RE)) ≈ 1/β.
-    expect(record("CE-deg −gmRC/(1+gmRE) approx", relErr(g.midband, (-q.gm * RC) / (1 + q.gm * RE)))).toBeLessThan(1.5 / BETA);
+    expect(record("CE-deg −gmRC/(1+gmRE) approx", relErr(g.midband, (-q.transconductance * RC) / (1 + q.transconductance * RE)))).toBeLessThan(1.5 / BETA);
     // Same thing as −α·RC/(re + RE) with re = α/gm: exact for ro = ∞.
-    const alpha = (q.gm * q.rpi) / (q.gm * q.rpi + 1);
-    expect(relErr(g.midband, (-alpha * RC) / (q.re + RE))).toBeLessThan(MODEL_EXACT);
+    const alpha = (q.transconductance * q.inputResistance) / (q.transconductance * q.inputResistance + 1);
+    expect(relErr(g.midband, (-alpha * RC) / (q.emitterResistance + RE))).toBeLessThan(MODEL_EXACT);
     // (2) hand bias.
     const h = emitterBias(1.8, 0, RE, BETA, IS);
     expect(record("CE-deg hand", relErr(g.midband, (-h.gm * RC) / (1 + h.gm * RE)))).toBeLessThan(HAND);
     // Input impedance rπ + (β+1)·RE (hybrid-π).
-    expect(record("CE-deg Zin", relErr(g.inputImpedance, q.rpi + (q.gm * q.rpi + 1) * RE))).toBeLessThan(BJT_INPUT);
+    expect(record("CE-deg Zin", relErr(g.inputImpedance, q.inputResistance + (q.transconductance * q.inputResistance + 1) * RE))).toBeLessThan(BJT_INPUT);
   });
 
   it("common base, input at the emitter: α·RC/re", () => {
@@ -129,11 +129,11 @@ describe("bipolar stages", () => {
     const op = solve(c);
     const q = bjtAt(op, "Q1");
     const g = gainOf(c, op);
-    const alpha = (q.gm * q.rpi) / (q.gm * q.rpi + 1);
+    const alpha = (q.transconductance * q.inputResistance) / (q.transconductance * q.inputResistance + 1);
     // (1) α·RC/re with α = β/(β+1), β = gm·rπ, re from the tool: exact for ro = ∞.
-    expect(record("CB α·RC/re vs tool", relErr(g.midband, (alpha * RC) / q.re))).toBeLessThan(MODEL_EXACT);
+    expect(record("CB α·RC/re vs tool", relErr(g.midband, (alpha * RC) / q.emitterResistance))).toBeLessThan(MODEL_EXACT);
     // Input impedance: re ‖ RE (emitter input, base at AC ground).
-    expect(record("CB Zin = re‖RE", relErr(g.inputImpedance, par(q.re, RE)))).toBeLessThan(MODEL_EXACT);
+    expect(record("CB Zin = re‖RE", relErr(g.inputImpedance, par(q.emitterResistance, RE)))).toBeLessThan(MODEL_EXACT);
     // (2) hand bias (base at 0 V, emitter resistor to −5 V).
     const h = emitterBias(0, -5, RE, BETA, IS);
     expect(record("CB hand", relErr(g.midband, ((BETA / (BETA + 1)) * RC) / h.re))).toBeLessThan(HAND);
@@ -142,7 +142,7 @@ describe("bipolar stages", () => {
     const op2 = solve(c2);
     const q2 = bjtAt(op2, "Q1");
     const g2 = gainOf(c2, op2);
-    expect(record("CB with ro vs tool", relErr(g2.midband, (q2.gm + 1 / q2.ro) * par(RC, q2.ro)))).toBeLessThan(MODEL_EXACT);
+    expect(record("CB with ro vs tool", relErr(g2.midband, (q2.transconductance + 1 / q2.outputResistance) * par(RC, q2.outputResistance)))).toBeLessThan(MODEL_EXACT);
   });
 
   it("emitter follower: (1+β)RE'/(rπ + RB + (1+β)RE'), RE' = RE‖ro; output ≈ re + RB/(β+1)", () => {
@@ -164,23 +164,23 @@ describe("bipolar stages", () => {
     const op = solve(c);
     const q = bjtAt(op, "Q1");
     const g = gainOf(c, op);
-    const beta = q.gm * q.rpi;
-    const rep = par(RE, q.ro);
-    expect(record("EF gain vs tool", relErr(g.midband, ((1 + beta) * rep) / (q.rpi + (1 + beta) * rep)))).toBeLessThan(MODEL_EXACT);
+    const beta = q.transconductance * q.inputResistance;
+    const rep = par(RE, q.outputResistance);
+    expect(record("EF gain vs tool", relErr(g.midband, ((1 + beta) * rep) / (q.inputResistance + (1 + beta) * rep)))).toBeLessThan(MODEL_EXACT);
     const h = emitterBias(3, 0, RE, BETA, IS);
-    expect(record("EF hand", relErr(g.midband, ((1 + BETA) * RE) / (h.rpi + (1 + BETA) * RE)))).toBeLessThan(HAND);
+    expect(record("EF hand", relErr(g.midband, ((1 + BETA) * RE) / (h.rPi + (1 + BETA) * RE)))).toBeLessThan(HAND);
     // With source resistance RB.
     const c2 = build(RB);
     const op2 = solve(c2);
     const q2 = bjtAt(op2, "Q1");
     const g2 = gainOf(c2, op2);
-    const beta2 = q2.gm * q2.rpi;
-    const rep2 = par(RE, q2.ro);
-    expect(record("EF+RB gain vs tool", relErr(g2.midband, ((1 + beta2) * rep2) / (RB + q2.rpi + (1 + beta2) * rep2)))).toBeLessThan(MODEL_EXACT);
-    expect(record("EF Zin = RB + rπ + (β+1)RE'", relErr(g2.inputImpedance, RB + q2.rpi + (1 + beta2) * rep2))).toBeLessThan(BJT_INPUT);
+    const beta2 = q2.transconductance * q2.inputResistance;
+    const rep2 = par(RE, q2.outputResistance);
+    expect(record("EF+RB gain vs tool", relErr(g2.midband, ((1 + beta2) * rep2) / (RB + q2.inputResistance + (1 + beta2) * rep2)))).toBeLessThan(MODEL_EXACT);
+    expect(record("EF Zin = RB + rπ + (β+1)RE'", relErr(g2.inputImpedance, RB + q2.inputResistance + (1 + beta2) * rep2))).toBeLessThan(BJT_INPUT);
     // Output impedance: exact RE' ‖ (RB + rπ)/(β+1); textbook approximation re + RB/(β+1) (RE ≫ that).
-    expect(record("EF Zout exact vs tool", relErr(g2.outputImpedance, par(rep2, (RB + q2.rpi) / (1 + beta2))))).toBeLessThan(MODEL_EXACT);
-    expect(record("EF Zout ≈ re + RB/(β+1)", relErr(g2.outputImpedance, q2.re + RB / (beta2 + 1)))).toBeLessThan(0.05);
+    expect(record("EF Zout exact vs tool", relErr(g2.outputImpedance, par(rep2, (RB + q2.inputResistance) / (1 + beta2))))).toBeLessThan(MODEL_EXACT);
+    expect(record("EF Zout ≈ re + RB/(β+1)", relErr(g2.outputImpedance, q2.emitterResistance + RB / (beta2 + 1)))).toBeLessThan(0.05);
   });
 
   it("differential pair, differential in and out: gm·(RC‖ro) (→ gm·RC for ro ≫ RC)", () => {
@@ -207,10 +207,10 @@ describe("bipolar stages", () => {
     const op = solve(c);
     const q1 = bjtAt(op, "Q1");
     const q2 = bjtAt(op, "Q2");
-    expect(relErr(q1.ic, q2.ic)).toBeLessThan(1e-9);
+    expect(relErr(q1.collectorCurrent, q2.collectorCurrent)).toBeLessThan(1e-9);
     const g = gainOf(c, op);
     // Half-circuit: the tail node is an exact AC ground for a symmetric pair under a balanced drive.
-    expect(record("diff pair vs tool", relErr(g.midband, q1.gm * par(RC, q1.ro)))).toBeLessThan(MODEL_EXACT);
+    expect(record("diff pair vs tool", relErr(g.midband, q1.transconductance * par(RC, q1.outputResistance)))).toBeLessThan(MODEL_EXACT);
     // Hand: IC = α·ITAIL/2, ro ≈ VA/IC.
     const ic = ((BETA / (BETA + 1)) * 2e-3) / 2;
     expect(record("diff pair hand", relErr(g.midband, (ic / VT) * par(RC, VA / ic)))).toBeLessThan(HAND);
@@ -219,7 +219,7 @@ describe("bipolar stages", () => {
     const c2 = base().vsource("VIN", "b1", "gnd", 0, 1).vsource("VB2", "b2", "gnd", 0).gain("diff", "VIN", "c2", "c1").build();
     const op2 = solve(c2);
     const g2 = gainOf(c2, op2);
-    expect(record("diff pair single-ended drive", relErr(g2.midband, bjtAt(op2, "Q1").gm * par(RC, bjtAt(op2, "Q1").ro)))).toBeLessThan(MODEL_EXACT);
+    expect(record("diff pair single-ended drive", relErr(g2.midband, bjtAt(op2, "Q1").transconductance * par(RC, bjtAt(op2, "Q1").outputResistance)))).toBeLessThan(MODEL_EXACT);
   });
 });
 
@@ -245,14 +245,14 @@ describe("MOS stages", () => {
     const m = mosAt(op, "M1");
     expect(m.region).toBe("saturation");
     const g = gainOf(c, op);
-    expect(record("CS vs tool", relErr(g.midband, -m.gm * par(RD, m.ro)))).toBeLessThan(MODEL_EXACT);
+    expect(record("CS vs tool", relErr(g.midband, -m.transconductance * par(RD, m.outputResistance)))).toBeLessThan(MODEL_EXACT);
     // Hand: ID = ½β·Vov²·(1 + λ·VDS) with VDS = VDD − ID·RD (linear in ID); gm = 2ID/Vov; ro ≈ 1/(λ·ID) (textbook).
     const vov = VG - VT0;
     const a = 0.5 * BETA * vov * vov;
     const id = (a * (1 + LAMBDA * 10)) / (1 + a * LAMBDA * RD);
     expect(record("CS hand", relErr(g.midband, -((2 * id) / vov) * par(RD, 1 / (LAMBDA * id))))).toBeLessThan(HAND);
     expect(g.inputImpedance).toBe(Infinity); // gate draws no current
-    expect(record("CS Zout = RD‖ro", relErr(g.outputImpedance, par(RD, m.ro)))).toBeLessThan(MODEL_EXACT);
+    expect(record("CS Zout = RD‖ro", relErr(g.outputImpedance, par(RD, m.outputResistance)))).toBeLessThan(MODEL_EXACT);
   });
 
   it("common source with source degeneration: −gm·RD/(1 + gm·RS)", () => {
@@ -273,7 +273,7 @@ describe("MOS stages", () => {
     const m = mosAt(op, "M1");
     const g = gainOf(c, op);
     // (1) exact for λ = 0, body tied to source.
-    expect(record("CS-deg vs tool", relErr(g.midband, (-m.gm * RD) / (1 + m.gm * RS)))).toBeLessThan(MODEL_EXACT);
+    expect(record("CS-deg vs tool", relErr(g.midband, (-m.transconductance * RD) / (1 + m.transconductance * RS)))).toBeLessThan(MODEL_EXACT);
     // (2) hand: the square-law quadratic (exact for this model with λ = 0).
     const h = sourceBias(VG, RS, BETA, VT0);
     expect(record("CS-deg hand", relErr(g.midband, (-h.gm * RD) / (1 + h.gm * RS)))).toBeLessThan(HAND);
@@ -281,7 +281,7 @@ describe("MOS stages", () => {
     const c2 = build(0.03);
     const op2 = solve(c2);
     const m2 = mosAt(op2, "M1");
-    expect(record("CS-deg with ro vs tool", relErr(gainOf(c2, op2).midband, (-m2.gm * RD) / (1 + m2.gm * RS + (RD + RS) / m2.ro)))).toBeLessThan(MODEL_EXACT);
+    expect(record("CS-deg with ro vs tool", relErr(gainOf(c2, op2).midband, (-m2.transconductance * RD) / (1 + m2.transconductance * RS + (RD + RS) / m2.outputResistance)))).toBeLessThan(MODEL_EXACT);
   });
 
   it("common gate, body at ground: (gm + gmb + 1/ro)·(RD‖ro) (→ (gm+gmb)·RD)", () => {
@@ -303,17 +303,17 @@ describe("MOS stages", () => {
     const c = build(0);
     const op = solve(c);
     const m = mosAt(op, "M1");
-    expect(m.gmb).toBeGreaterThan(0);
+    expect(m.bodyTransconductance).toBeGreaterThan(0);
     const g = gainOf(c, op);
-    expect(record("CG (gm+gmb)RD vs tool", relErr(g.midband, (m.gm + m.gmb) * RD))).toBeLessThan(MODEL_EXACT);
+    expect(record("CG (gm+gmb)RD vs tool", relErr(g.midband, (m.transconductance + m.bodyTransconductance) * RD))).toBeLessThan(MODEL_EXACT);
     // Input impedance: RS ‖ 1/(gm + gmb) (λ = 0).
-    expect(record("CG Zin", relErr(g.inputImpedance, par(RS, 1 / (m.gm + m.gmb))))).toBeLessThan(MODEL_EXACT);
+    expect(record("CG Zin", relErr(g.inputImpedance, par(RS, 1 / (m.transconductance + m.bodyTransconductance))))).toBeLessThan(MODEL_EXACT);
     const h = sourceBias(VG, RS, BETA, VT0, GAMMA);
     expect(record("CG hand", relErr(g.midband, (h.gm + h.gmb) * RD))).toBeLessThan(HAND);
     const c2 = build(0.02);
     const op2 = solve(c2);
     const m2 = mosAt(op2, "M1");
-    expect(record("CG with ro vs tool", relErr(gainOf(c2, op2).midband, (m2.gm + m2.gmb + 1 / m2.ro) * par(RD, m2.ro)))).toBeLessThan(MODEL_EXACT);
+    expect(record("CG with ro vs tool", relErr(gainOf(c2, op2).midband, (m2.transconductance + m2.bodyTransconductance + 1 / m2.outputResistance) * par(RD, m2.outputResistance)))).toBeLessThan(MODEL_EXACT);
   });
 
   it("source follower with body effect: gm·RS/(1 + (gm + gmb)·RS)", () => {
@@ -330,13 +330,13 @@ describe("MOS stages", () => {
     const op = solve(c);
     const m = mosAt(op, "M1");
     const g = gainOf(c, op);
-    expect(record("SF vs tool", relErr(g.midband, (m.gm * RS) / (1 + (m.gm + m.gmb) * RS)))).toBeLessThan(MODEL_EXACT);
+    expect(record("SF vs tool", relErr(g.midband, (m.transconductance * RS) / (1 + (m.transconductance + m.bodyTransconductance) * RS)))).toBeLessThan(MODEL_EXACT);
     // Output impedance RS ‖ 1/(gm + gmb).
-    expect(record("SF Zout", relErr(g.outputImpedance, par(RS, 1 / (m.gm + m.gmb))))).toBeLessThan(MODEL_EXACT);
+    expect(record("SF Zout", relErr(g.outputImpedance, par(RS, 1 / (m.transconductance + m.bodyTransconductance))))).toBeLessThan(MODEL_EXACT);
     const h = sourceBias(VG, RS, BETA, VT0, GAMMA);
     expect(record("SF hand", relErr(g.midband, (h.gm * RS) / (1 + (h.gm + h.gmb) * RS)))).toBeLessThan(HAND);
     // Without body effect the follower gain would be larger: the body term matters here.
-    expect(g.midband).toBeLessThan((m.gm * RS) / (1 + m.gm * RS) - 0.01);
+    expect(g.midband).toBeLessThan((m.transconductance * RS) / (1 + m.transconductance * RS) - 0.01);
   });
 
   it("prints the relative errors of the closed-form checks (for the stage report)", () => {

@@ -42,9 +42,9 @@ describe("renderSmallSignal", () => {
     const q = op.devices.Q1;
     if (q?.kind !== "npn") throw new Error("no Q1");
     expect(text).toContain("Q1");
-    expect(text).toContain(formatSi(q.gm, "S"));
-    expect(text).toContain(formatSi(q.rpi, "Ω"));
-    expect(text).toContain(formatSi(q.ro, "Ω"));
+    expect(text).toContain(formatSi(q.transconductance, "S"));
+    expect(text).toContain(formatSi(q.inputResistance, "Ω"));
+    expect(text).toContain(formatSi(q.outputResistance, "Ω"));
     const g = result.gains[0]!;
     expect(text).toContain(String(Number(g.midband.toPrecision(4))));
     expect(text).toContain(formatSi(g.inputImpedance, "Ω"));

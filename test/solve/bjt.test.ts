@@ -11,7 +11,7 @@ function solved(r: SolveResult): OperatingPoint {
   return r;
 }
 const q = (op: OperatingPoint, id: string): BjtPoint => op.devices[id] as BjtPoint;
-const VT = thermalVoltage(300.15);
+const VT = thermalVoltage(298.15);
 /**
  * The model has 1e-12 S across each junction (JUNCTION_LEAK_CONDUCTANCE): a few pA beside
  * µA–mA currents shifts these hand formulas by ~1e-8; 1e-6 relative leaves room for that and
@@ -34,10 +34,10 @@ describe("NPN bias", () => {
       .build();
     const op = solved(solveOperatingPoint(c));
     const t = q(op, "Q1");
-    const ie = (VBB - t.vbe) / (RE + RB / (beta + 1));
-    expect(Math.abs(t.ie / ie - 1)).toBeLessThan(REL);
+    const ie = (VBB - t.baseEmitterVoltage) / (RE + RB / (beta + 1));
+    expect(Math.abs(t.emitterCurrent / ie - 1)).toBeLessThan(REL);
     expect(t.region).toBe("active");
-    expect(Math.abs(t.ic / t.ib / beta - 1)).toBeLessThan(REL);
+    expect(Math.abs(t.collectorCurrent / t.baseCurrent / beta - 1)).toBeLessThan(REL);
     expect(kclError(c, op).worst).toBeLessThan(1e-9);
   });
 
@@ -53,7 +53,7 @@ describe("NPN bias", () => {
       .build();
     const op = solved(solveOperatingPoint(c));
     // The hand analysis assumes VBE = 0.7 V; the solved VBE is ~0.66 V, so agreement within 2 %.
-    expect(Math.abs(q(op, "Q1").ie / 1.29e-3 - 1)).toBeLessThan(0.02);
+    expect(Math.abs(q(op, "Q1").emitterCurrent / 1.29e-3 - 1)).toBeLessThan(0.02);
     expect(op.nodes.c).toBeGreaterThan(8.4);
     expect(op.nodes.c).toBeLessThan(8.8);
   });
@@ -61,7 +61,7 @@ describe("NPN bias", () => {
   it("VBE of a small-signal silicon BJT at 1 mA is 0.6–0.75 V (common practice)", () => {
     for (const is of [1e-14, 1e-15]) {
       const c = circuit().bjtModel("n", "npn", { saturationCurrent: is }).i("I1", "gnd", "c", 1e-3).q("Q1", "npn", "c", "c", "gnd", "n").build();
-      const vbe = q(solved(solveOperatingPoint(c)), "Q1").vbe;
+      const vbe = q(solved(solveOperatingPoint(c)), "Q1").baseEmitterVoltage;
       expect(vbe).toBeGreaterThan(0.6);
       expect(vbe).toBeLessThan(0.75);
     }
@@ -70,7 +70,7 @@ describe("NPN bias", () => {
   it("VBE falls about 2 mV/°C at constant current, between −1.5 and −2.5 mV/°C (common practice)", () => {
     const vbeAt = (kelvin: number): number => {
       const c = circuit().at(kelvin).bjtModel("n", "npn").i("I1", "gnd", "c", 1e-3).q("Q1", "npn", "c", "c", "gnd", "n").build();
-      return q(solved(solveOperatingPoint(c)), "Q1").vbe;
+      return q(solved(solveOperatingPoint(c)), "Q1").baseEmitterVoltage;
     };
     const slope = (vbeAt(310.15) - vbeAt(290.15)) / 20;
     expect(slope).toBeLessThan(-1.5e-3);
@@ -90,10 +90,10 @@ describe("NPN bias", () => {
     const t = q(op, "Q1");
     expect(t.region).toBe("saturation");
     expect(t.headroom).toBeLessThan(0);
-    const sigma = t.ic / t.ib; // forced beta, far below βF
+    const sigma = t.collectorCurrent / t.baseCurrent; // forced beta, far below βF
     const alphaR = betaR / (betaR + 1);
     const vceSat = VT * Math.log((1 / alphaR + sigma / betaR) / (1 - sigma / betaF));
-    expect(t.vce).toBeCloseTo(vceSat, 6);
+    expect(t.collectorEmitterVoltage).toBeCloseTo(vceSat, 6);
     expect(kclError(c, op).worst).toBeLessThan(1e-9);
   });
 
@@ -101,7 +101,7 @@ describe("NPN bias", () => {
     const c = circuit().bjtModel("n", "npn").v("VCC", "vcc", "gnd", 5).r("RB", "b", "gnd", 10e3).r("RC", "vcc", "c", 1e3).q("Q1", "npn", "c", "b", "gnd", "n").build();
     const t = q(solved(solveOperatingPoint(c)), "Q1");
     expect(t.region).toBe("cutoff");
-    expect(Math.abs(t.ic)).toBeLessThan(1e-10);
+    expect(Math.abs(t.collectorCurrent)).toBeLessThan(1e-10);
   });
 
   it("reverse region when only the base–collector junction conducts (DESIGN.md §3 regions)", () => {
@@ -128,7 +128,7 @@ describe("NPN bias", () => {
       .build();
     const op = solved(solveOperatingPoint(c));
     const iref = (9 - op.nodes.ref!) / 8.2e3;
-    expect(Math.abs(q(op, "Q2").ic / (iref / (1 + 2 / beta)) - 1)).toBeLessThan(REL);
+    expect(Math.abs(q(op, "Q2").collectorCurrent / (iref / (1 + 2 / beta)) - 1)).toBeLessThan(REL);
   });
 
   it("differential pair: IC1/IC2 = exp(ΔV/VT) and IC1 + IC2 = α·ITAIL (textbook large-signal pair)", () => {
@@ -146,7 +146,7 @@ describe("NPN bias", () => {
       .i("ITAIL", "e", "vee", 1e-3)
       .build();
     const op = solved(solveOperatingPoint(c));
-    const [i1, i2] = [q(op, "Q1").ic, q(op, "Q2").ic];
+    const [i1, i2] = [q(op, "Q1").collectorCurrent, q(op, "Q2").collectorCurrent];
     expect(i1 / i2).toBeCloseTo(Math.exp(dv / VT), 6);
     expect(Math.abs((i1 + i2) / (1e-3 * (beta / (beta + 1))) - 1)).toBeLessThan(REL);
     expect(kclError(c, op).worst).toBeLessThan(1e-9);
@@ -155,7 +155,7 @@ describe("NPN bias", () => {
   it("Early effect: IC grows as (1 + VCB/VA) at fixed VBE (DESIGN.md §3 transport model)", () => {
     const icAt = (vc: number): number => {
       const c = circuit().bjtModel("n", "npn", { earlyVoltage: 60 }).v("VB", "b", "gnd", 0.65).v("VC", "c", "gnd", vc).q("Q1", "npn", "c", "b", "gnd", "n").build();
-      return q(solved(solveOperatingPoint(c)), "Q1").ic;
+      return q(solved(solveOperatingPoint(c)), "Q1").collectorCurrent;
     };
     expect(Math.abs(icAt(10.65) / icAt(0.65) / (1 + 10 / 60) - 1)).toBeLessThan(REL);
   });
@@ -166,10 +166,10 @@ describe("NPN bias", () => {
     const vcb = 5 - 0.65;
     // With the Early factor on IF, IC/IB = β(1 + VCB/VA): that is the β the hybrid-π model sees.
     const betaAc = 120 * (1 + vcb / 100);
-    expect(Math.abs(t.ic / t.ib / betaAc - 1)).toBeLessThan(REL);
-    expect(t.gm / (t.ic / VT)).toBeCloseTo(1, 1); // gm = IC/VT − 1/ro, within VT/VA
-    expect(t.rpi).toBeCloseTo((120 * VT) / (t.ic / (1 + vcb / 100)), 3);
-    expect(t.ro / ((100 + vcb) / t.ic)).toBeCloseTo(1, 6);
-    expect(t.re).toBeCloseTo(1 / (t.gm + 1 / t.rpi), 12);
+    expect(Math.abs(t.collectorCurrent / t.baseCurrent / betaAc - 1)).toBeLessThan(REL);
+    expect(t.transconductance / (t.collectorCurrent / VT)).toBeCloseTo(1, 1); // gm = IC/VT − 1/ro, within VT/VA
+    expect(t.inputResistance).toBeCloseTo((120 * VT) / (t.collectorCurrent / (1 + vcb / 100)), 3);
+    expect(t.outputResistance / ((100 + vcb) / t.collectorCurrent)).toBeCloseTo(1, 6);
+    expect(t.emitterResistance).toBeCloseTo(1 / (t.transconductance + 1 / t.inputResistance), 12);
   });
 });

@@ -41,7 +41,7 @@ export interface DiodeParams {
 export class CircuitBuilder {
   private readonly components: Component[] = [];
   private readonly models = new Map<string, Model>();
-  temperature = 300.15;
+  temperature = 298.15;
   constructor(
     readonly ground = "gnd",
     readonly name = "test",
@@ -64,11 +64,11 @@ export class CircuitBuilder {
     return this;
   }
   v(id: string, plus: string, minus: string, volts: number): this {
-    this.components.push({ id, kind: "voltage-source", pos, pins: { plus, minus }, dc: tol(volts) });
+    this.components.push({ id, kind: "voltage-source", pos, pins: { plus, minus }, voltage: tol(volts) });
     return this;
   }
   i(id: string, from: string, to: string, amps: number): this {
-    this.components.push({ id, kind: "current-source", pos, pins: { from, to }, dc: tol(amps) });
+    this.components.push({ id, kind: "current-source", pos, pins: { from, to }, current: tol(amps) });
     return this;
   }
   vcvs(id: string, plus: string, minus: string, cp: string, cm: string, gain: number): this {

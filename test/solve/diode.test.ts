@@ -12,7 +12,7 @@ function solved(r: SolveResult): OperatingPoint {
   return r;
 }
 
-const T = 300.15;
+const T = 298.15;
 const VT = thermalVoltage(T);
 /**
  * The model puts 1e-12 S across every junction (JUNCTION_LEAK_CONDUCTANCE); at ~0.7 V that is
@@ -43,8 +43,8 @@ describe("diode and resistor", () => {
       const op = solved(solveOperatingPoint(c));
       const exact = diodeResistorCurrent(v, r, is, n * VT);
       const d = op.devices.D1 as DiodePoint;
-      expect(Math.abs(d.id / exact - 1)).toBeLessThan(REL);
-      expect(d.rd).toBeCloseTo((n * VT) / (d.id + is), 6);
+      expect(Math.abs(d.current / exact - 1)).toBeLessThan(REL);
+      expect(d.dynamicResistance).toBeCloseTo((n * VT) / (d.current + is), 6);
       expect(kclError(c, op).worst).toBeLessThan(1e-9);
     });
   }
@@ -54,10 +54,10 @@ describe("diode and resistor", () => {
     const op = solved(solveOperatingPoint(c));
     const exact = diodeResistorCurrent(3, 125, 1e-14, VT);
     const d = op.devices.D1 as DiodePoint;
-    expect(Math.abs(d.id / exact - 1)).toBeLessThan(REL);
+    expect(Math.abs(d.current / exact - 1)).toBeLessThan(REL);
     // vd is the terminal voltage (junction plus series drop); rd includes Rs.
-    expect(d.vd).toBeCloseTo(op.nodes.k!, 15);
-    expect(d.rd).toBeCloseTo(VT / (d.id + 1e-14) + 25, 6);
+    expect(d.voltage).toBeCloseTo(op.nodes.k!, 15);
+    expect(d.dynamicResistance).toBeCloseTo(VT / (d.current + 1e-14) + 25, 6);
     expect(Object.keys(op.nodes).sort()).toEqual(["a", "gnd", "k"]);
   });
 
@@ -68,7 +68,7 @@ describe("diode and resistor", () => {
     const r = solveOperatingPoint(c);
     const op = solved(r);
     const exact = diodeResistorCurrent(20, 1, 1e-14, VT);
-    expect(Math.abs((op.devices.D1 as DiodePoint).id / exact - 1)).toBeLessThan(REL);
+    expect(Math.abs((op.devices.D1 as DiodePoint).current / exact - 1)).toBeLessThan(REL);
     expect(op.stats.iterations).toBeLessThan(50);
   });
 
@@ -81,8 +81,8 @@ describe("diode and resistor", () => {
     const expected = 1e-14 * Math.expm1(each / VT) + 1e-12 * each;
     for (let k = 1; k <= 6; k++) {
       const d = op.devices[`D${k}`] as DiodePoint;
-      expect(d.vd).toBeCloseTo(each, 9);
-      expect(Math.abs(d.id / expected - 1)).toBeLessThan(1e-7);
+      expect(d.voltage).toBeCloseTo(each, 9);
+      expect(Math.abs(d.current / expected - 1)).toBeLessThan(1e-7);
     }
     expect(kclError(c, op).worst).toBeLessThan(1e-9);
   });
@@ -90,7 +90,7 @@ describe("diode and resistor", () => {
   it("a reverse-biased diode passes −IS less the leakage (Shockley equation)", () => {
     const c = circuit().diodeModel("d", { saturationCurrent: 1e-9 }).v("V1", "a", "gnd", -5).r("R1", "a", "k", 1000).d("D1", "k", "gnd", "d").build();
     const op = solved(solveOperatingPoint(c));
-    expect((op.devices.D1 as DiodePoint).id).toBeCloseTo(-1e-9 - 5e-12, 14);
+    expect((op.devices.D1 as DiodePoint).current).toBeCloseTo(-1e-9 - 5e-12, 14);
   });
 });
 
@@ -100,10 +100,10 @@ describe("textbook worked examples", () => {
     const op = solved(solveOperatingPoint(c));
     const d = op.devices.D1 as DiodePoint;
     // The iterative hand method converges to VD ≈ 0.68–0.72 V and I = (5 − VD)/1 kΩ ≈ 4.3 mA.
-    expect(d.vd).toBeGreaterThan(0.66);
-    expect(d.vd).toBeLessThan(0.74);
-    expect(d.id / 4.3e-3).toBeCloseTo(1, 1);
+    expect(d.voltage).toBeGreaterThan(0.66);
+    expect(d.voltage).toBeLessThan(0.74);
+    expect(d.current / 4.3e-3).toBeCloseTo(1, 1);
     // and the solver's own point is self-consistent with Ohm's law on the resistor
-    expect(Math.abs((5 - d.vd) / 1000 - d.id)).toBeLessThan(1e-12);
+    expect(Math.abs((5 - d.voltage) / 1000 - d.current)).toBeLessThan(1e-12);
   });
 });

@@ -34,7 +34,7 @@ models:
     beta: 150
     saturationCurrent: 1e-14 A
 components:
-  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, dc: 9 V }
+  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, voltage: 9 V }
   - { id: R1, kind: resistor, pins: [vcc, b], value: 47k }
   - { id: R2, kind: resistor, pins: [b, gnd], value: 47k }
   - { id: Q1, kind: npn, model: small-npn, pins: { collector: vcc, base: b, emitter: out } }
@@ -46,7 +46,7 @@ writeFileSync(
   `format: opgate-circuit/1
 name: cancelled
 components:
-  - { id: I1, kind: current-source, pins: { from: gnd, to: a }, dc: 1 mA }
+  - { id: I1, kind: current-source, pins: { from: gnd, to: a }, current: 1 mA }
   - { id: R1, kind: resistor, pins: [a, gnd], value: 1k }
   - { id: G1, kind: vccs, pins: { plus: a, minus: gnd, controlPlus: a, controlMinus: gnd }, gain: 1e-3 }
 `,
@@ -56,10 +56,10 @@ writeFileSync(
   `format: opgate-circuit/1
 name: floating
 components:
-  - { id: V1, kind: voltage-source, pins: { plus: a, minus: gnd }, dc: 5 V }
+  - { id: V1, kind: voltage-source, pins: { plus: a, minus: gnd }, voltage: 5 V }
   - { id: C1, kind: capacitor, pins: [a, b], value: 1u }
-  - { id: VG, kind: voltage-source, pins: { plus: b, minus: gnd }, dc: 1 V }
-  - { id: VH, kind: voltage-source, pins: { plus: b, minus: gnd }, dc: 2 V }
+  - { id: VG, kind: voltage-source, pins: { plus: b, minus: gnd }, voltage: 1 V }
+  - { id: VH, kind: voltage-source, pins: { plus: b, minus: gnd }, voltage: 2 V }
 `,
 );
 
@@ -69,7 +69,7 @@ describe("opgate inspect", () => {
     const code = await run(["inspect", "tide-gauge-buffer.yaml"], io);
     expect(io.err).toBe("");
     expect(code).toBe(0);
-    expect(io.out).toMatch(/^tide-gauge-buffer \(tide-gauge-buffer\.yaml\) at 27\.0 °C/);
+    expect(io.out).toMatch(/^tide-gauge-buffer \(tide-gauge-buffer\.yaml\) at 25\.0 °C/);
     expect(io.out).toMatch(/Q1\s+npn\s+active/);
     expect(io.out).toMatch(/out\s+3\.\d\d V/);
   });

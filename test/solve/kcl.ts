@@ -31,26 +31,26 @@ export function kclError(c: Circuit, op: OperatingPoint): { worst: number; node:
       case "capacitor":
         break;
       case "diode": {
-        const d = dev as { id: number };
-        add(comp.pins.anode, -d.id);
-        add(comp.pins.cathode, d.id);
+        const d = dev as { current: number };
+        add(comp.pins.anode, -d.current);
+        add(comp.pins.cathode, d.current);
         break;
       }
       case "npn":
       case "pnp": {
-        const d = dev as { ic: number; ib: number; ie: number };
+        const d = dev as { collectorCurrent: number; baseCurrent: number; emitterCurrent: number };
         const p = comp.kind === "npn" ? 1 : -1;
-        add(comp.pins.collector, -p * d.ic);
-        add(comp.pins.base, -p * d.ib);
-        add(comp.pins.emitter, p * d.ie);
+        add(comp.pins.collector, -p * d.collectorCurrent);
+        add(comp.pins.base, -p * d.baseCurrent);
+        add(comp.pins.emitter, p * d.emitterCurrent);
         break;
       }
       case "nmos":
       case "pmos": {
-        const d = dev as { id: number };
+        const d = dev as { drainCurrent: number };
         const p = comp.kind === "nmos" ? 1 : -1;
-        add(comp.pins.drain, -p * d.id);
-        add(comp.pins.source, p * d.id);
+        add(comp.pins.drain, -p * d.drainCurrent);
+        add(comp.pins.source, p * d.drainCurrent);
         break;
       }
       default: {

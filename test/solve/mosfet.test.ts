@@ -31,10 +31,10 @@ describe("NMOS", () => {
     const [A, B, C] = [0.5 * beta * rs * rs, beta * rs * u + 1, 0.5 * beta * u * u];
     const id = (B - Math.sqrt(B * B - 4 * A * C)) / (2 * A); // the root with Vov > 0
     const t = m(op, "M1");
-    expect(Math.abs(t.id / id - 1)).toBeLessThan(REL);
+    expect(Math.abs(t.drainCurrent / id - 1)).toBeLessThan(REL);
     expect(t.region).toBe("saturation");
-    expect(t.vov).toBeCloseTo(u - id * rs, 6);
-    expect(t.gm).toBeCloseTo(beta * t.vov, 9); // gm = β·Vov (square law)
+    expect(t.overdrive).toBeCloseTo(u - id * rs, 6);
+    expect(t.transconductance).toBeCloseTo(beta * t.overdrive, 9); // gm = β·Vov (square law)
     expect(kclError(c, op).worst).toBeLessThan(1e-9);
   });
 
@@ -53,14 +53,14 @@ describe("NMOS", () => {
     const vds = (B - Math.sqrt(B * B - 4 * A * C)) / (2 * A);
     const t = m(op, "M1");
     expect(t.region).toBe("triode");
-    expect(t.vds).toBeCloseTo(vds, 8);
+    expect(t.drainSourceVoltage).toBeCloseTo(vds, 8);
     expect(t.headroom).toBeLessThan(0);
   });
 
   it("channel-length modulation: ID ∝ (1 + λ·VDS) in saturation (square law with λ)", () => {
     const idAt = (vd: number): number => {
       const c = circuit().mosModel("n", "nmos", { threshold: 1, kPrime: 100e-6, lambda: 0.05 }).v("VG", "g", "gnd", 2).v("VD", "d", "gnd", vd).m("M1", "nmos", "d", "g", "gnd", "n").build();
-      return m(solved(solveOperatingPoint(c)), "M1").id;
+      return m(solved(solveOperatingPoint(c)), "M1").drainCurrent;
     };
     expect(idAt(2)).toBeCloseTo(0.5 * 100e-6 * 1 * 1.1 + GL * 2, 15);
     expect(idAt(6) / idAt(2)).toBeCloseTo(1.3 / 1.1, 6);
@@ -78,17 +78,17 @@ describe("NMOS", () => {
     const op = solved(solveOperatingPoint(c));
     const t = m(op, "M1");
     const vsb = op.nodes.s!;
-    expect(t.vth).toBeCloseTo(vt0 + gamma * (Math.sqrt(phi2 + vsb) - Math.sqrt(phi2)), 12);
-    expect(t.gmb).toBeCloseTo((t.gm * gamma) / (2 * Math.sqrt(phi2 + vsb)), 12);
-    expect(t.id).toBeCloseTo(0.5 * 1e-3 * (t.vgs - t.vth) ** 2 + GL * t.vds, 15);
+    expect(t.threshold).toBeCloseTo(vt0 + gamma * (Math.sqrt(phi2 + vsb) - Math.sqrt(phi2)), 12);
+    expect(t.bodyTransconductance).toBeCloseTo((t.transconductance * gamma) / (2 * Math.sqrt(phi2 + vsb)), 12);
+    expect(t.drainCurrent).toBeCloseTo(0.5 * 1e-3 * (t.gateSourceVoltage - t.threshold) ** 2 + GL * t.drainSourceVoltage, 15);
   });
 
   it("cutoff: only the drain–source leakage flows", () => {
     const c = circuit().mosModel("n", "nmos", { threshold: 1, kPrime: 100e-6 }).v("VDD", "vdd", "gnd", 5).r("RD", "vdd", "d", 10e3).m("M1", "nmos", "d", "gnd", "gnd", "n").build();
     const t = m(solved(solveOperatingPoint(c)), "M1");
     expect(t.region).toBe("cutoff");
-    expect(t.id).toBeLessThan(1e-11);
-    expect(t.vov).toBeLessThan(0);
+    expect(t.drainCurrent).toBeLessThan(1e-11);
+    expect(t.overdrive).toBeLessThan(0);
   });
 
   it("symmetric device: wired with drain and source swapped, the current reverses", () => {
@@ -101,7 +101,7 @@ describe("NMOS", () => {
         .build();
     const a = m(solved(solveOperatingPoint(mk(false))), "M1");
     const b = m(solved(solveOperatingPoint(mk(true))), "M1");
-    expect(b.id).toBeCloseTo(-a.id, 15);
+    expect(b.drainCurrent).toBeCloseTo(-a.drainCurrent, 15);
     expect(b.region).toBe(a.region);
   });
 
@@ -110,8 +110,8 @@ describe("NMOS", () => {
       const c = circuit().at(kelvin).mosModel("n", "nmos", { threshold: 1, kPrime: 100e-6 }).v("VG", "g", "gnd", 2).v("VD", "d", "gnd", 3).m("M1", "nmos", "d", "g", "gnd", "n").build();
       return m(solved(solveOperatingPoint(c)), "M1");
     };
-    const hot = at(350.15);
-    expect(hot.vth).toBeCloseTo(1 - 2e-3 * 50, 12);
-    expect(hot.id).toBeCloseTo(0.5 * 100e-6 * (350.15 / 300.15) ** -1.5 * (2 - 0.9) ** 2 + GL * 3, 15);
+    const hot = at(348.15);
+    expect(hot.threshold).toBeCloseTo(1 - 2e-3 * 50, 12);
+    expect(hot.drainCurrent).toBeCloseTo(0.5 * 100e-6 * (348.15 / 298.15) ** -1.5 * (2 - 0.9) ** 2 + GL * 3, 15);
   });
 });

@@ -14,9 +14,9 @@ function solved(r: SolveResult, seed: number): OperatingPoint {
 }
 
 /** Current-like fields whose magnitudes must agree between a circuit and its mirror. */
-const CURRENTS = ["ic", "ib", "ie", "id", "current", "power", "gm", "rpi", "re", "ro", "gmb", "rd", "headroom", "vov"] as const;
+const CURRENTS = ["collectorCurrent", "baseCurrent", "emitterCurrent", "drainCurrent", "current", "power", "transconductance", "inputResistance", "emitterResistance", "outputResistance", "bodyTransconductance", "dynamicResistance", "headroom", "overdrive"] as const;
 /** Voltage fields that flip sign in the mirror. */
-const VOLTAGES = ["vbe", "vce", "vgs", "vds", "vd", "voltage", "vth"] as const;
+const VOLTAGES = ["baseEmitterVoltage", "collectorEmitterVoltage", "gateSourceVoltage", "drainSourceVoltage", "voltage", "threshold"] as const;
 
 function close(a: number, b: number): boolean {
   return a === b || Math.abs(a - b) <= 1e-9 * Math.max(Math.abs(a), Math.abs(b)) + 1e-18;
@@ -52,7 +52,7 @@ describe(`random bias circuits (${COUNT}, seeded)`, () => {
         for (const key of VOLTAGES) if (typeof f[key] === "number") expect(close(Math.abs(e[key] as number), Math.abs(f[key] as number)), `seed ${seed} ${id}.${key}`).toBe(true);
         if ("region" in f) expect(e.region, `seed ${seed} ${id}`).toBe(f.region);
         // Transistors report normal-direction currents: the same sign for both polarities.
-        for (const key of ["ic", "ib", "id"] as const) if (typeof f[key] === "number" && d.kind !== "diode") expect(close(e[key] as number, f[key] as number), `seed ${seed} ${id}.${key}`).toBe(true);
+        for (const key of ["collectorCurrent", "baseCurrent", "drainCurrent"] as const) if (typeof f[key] === "number" && d.kind !== "diode") expect(close(e[key] as number, f[key] as number), `seed ${seed} ${id}.${key}`).toBe(true);
       }
     }
   });

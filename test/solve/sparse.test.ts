@@ -80,8 +80,8 @@ describe("sparse and dense storage", () => {
       if (Math.max(nodes, devices) <= 1e-12) exact++;
     }
     // A node fixed only by junction leakage (1e-12 S) is known to the convergence tolerance, not
-    // to 1e-12; the generator makes a few such circuits.
-    expect(exact).toBeGreaterThanOrEqual(55);
+    // to 1e-12; the generator makes a few such circuits (8 of these 60 at 25 °C, 5 at 27 °C).
+    expect(exact).toBeGreaterThanOrEqual(50);
   });
 
   it("are chosen by size: sparse from SPARSE_MIN_UNKNOWNS unknowns, with the same answer as forcing it", () => {

@@ -38,13 +38,13 @@ const VZ0 = VZ - ZZT * IZT;
 describe("Zener breakdown", () => {
   it("at its test current the Zener sits exactly at VZ with the dynamic resistance ZZT", () => {
     // A current source forces IZT into the cathode: the datasheet's own test condition.
-    const c = load(`models:\n${ZENER}components:\n  - { id: I1, kind: current-source, pins: { from: gnd, to: k }, dc: 5 mA }\n  - { id: D1, kind: diode, model: z5v1, pins: { anode: gnd, cathode: k } }\n`);
+    const c = load(`models:\n${ZENER}components:\n  - { id: I1, kind: current-source, pins: { from: gnd, to: k }, current: 5 mA }\n  - { id: D1, kind: diode, model: z5v1, pins: { anode: gnd, cathode: k } }\n`);
     const op = solve(c);
     const d = op.devices.D1 as DiodePoint;
     // The junction's own reverse saturation current (1 nA) takes 1 nA of the 5 mA: 10 nV lower.
     expect(op.nodes.k).toBeCloseTo(VZ, 7);
-    expect(d.id).toBeCloseTo(-IZT, 12);
-    expect(d.rd).toBeCloseTo(ZZT, 6);
+    expect(d.current).toBeCloseTo(-IZT, 12);
+    expect(d.dynamicResistance).toBeCloseTo(ZZT, 6);
   });
 
   for (const [vs, r] of [
@@ -54,7 +54,7 @@ describe("Zener breakdown", () => {
     [48, 1500],
   ] as const) {
     it(`a clamp from ${vs} V through ${r} Ω matches the piecewise-linear closed form`, () => {
-      const c = load(`models:\n${ZENER}components:\n  - { id: V1, kind: voltage-source, pins: { plus: s, minus: gnd }, dc: ${vs} V }\n  - { id: R1, kind: resistor, pins: [s, k], value: ${r} }\n  - { id: D1, kind: diode, model: z5v1, pins: { anode: gnd, cathode: k } }\n`);
+      const c = load(`models:\n${ZENER}components:\n  - { id: V1, kind: voltage-source, pins: { plus: s, minus: gnd }, voltage: ${vs} V }\n  - { id: R1, kind: resistor, pins: [s, k], value: ${r} }\n  - { id: D1, kind: diode, model: z5v1, pins: { anode: gnd, cathode: k } }\n`);
       const op = solve(c);
       // Closed form of the loop: IZ = (VS − VZ0)/(R + rz), V = VZ0 + rz·IZ.
       const iz = (vs - VZ0) / (r + ZZT);
@@ -62,28 +62,28 @@ describe("Zener breakdown", () => {
       // The model rounds the line's corner (a softplus a few mV wide) and meets ZZT exactly at IZT,
       // so away from IZT it departs from the straight line by < 0.1 mV at these currents.
       expect(Math.abs(op.nodes.k! - v)).toBeLessThan(1e-4);
-      expect(Math.abs((op.devices.D1 as DiodePoint).id + iz) / iz).toBeLessThan(1e-3);
+      expect(Math.abs((op.devices.D1 as DiodePoint).current + iz) / iz).toBeLessThan(1e-3);
       expect(kclError(c, op).worst).toBeLessThan(1e-9);
       expect(op.stats.iterations).toBeLessThan(60);
     });
   }
 
   it("below breakdown (3 V through 1 kΩ) it blocks: only leakage flows", () => {
-    const c = load(`models:\n${ZENER}components:\n  - { id: V1, kind: voltage-source, pins: { plus: s, minus: gnd }, dc: 3 V }\n  - { id: R1, kind: resistor, pins: [s, k], value: 1k }\n  - { id: D1, kind: diode, model: z5v1, pins: { anode: gnd, cathode: k } }\n`);
+    const c = load(`models:\n${ZENER}components:\n  - { id: V1, kind: voltage-source, pins: { plus: s, minus: gnd }, voltage: 3 V }\n  - { id: R1, kind: resistor, pins: [s, k], value: 1k }\n  - { id: D1, kind: diode, model: z5v1, pins: { anode: gnd, cathode: k } }\n`);
     const op = solve(c);
     expect(op.nodes.k).toBeCloseTo(3, 5);
-    expect(Math.abs((op.devices.D1 as DiodePoint).id)).toBeLessThan(1e-8);
+    expect(Math.abs((op.devices.D1 as DiodePoint).current)).toBeLessThan(1e-8);
   });
 
   it("forward biased it is an ordinary diode (Shockley)", () => {
-    const c = load(`models:\n${ZENER}components:\n  - { id: V1, kind: voltage-source, pins: { plus: s, minus: gnd }, dc: 5 V }\n  - { id: R1, kind: resistor, pins: [s, a], value: 1k }\n  - { id: D1, kind: diode, model: z5v1, pins: { anode: a, cathode: gnd } }\n`);
+    const c = load(`models:\n${ZENER}components:\n  - { id: V1, kind: voltage-source, pins: { plus: s, minus: gnd }, voltage: 5 V }\n  - { id: R1, kind: resistor, pins: [s, a], value: 1k }\n  - { id: D1, kind: diode, model: z5v1, pins: { anode: a, cathode: gnd } }\n`);
     const op = solve(c);
     const d = op.devices.D1 as DiodePoint;
-    expect(d.vd).toBeCloseTo(VT * Math.log(d.id / 1e-9 + 1), 6);
+    expect(d.voltage).toBeCloseTo(VT * Math.log(d.current / 1e-9 + 1), 6);
   });
 
   it("a clamp straight from 200 V through 10 kΩ converges", () => {
-    const c = load(`models:\n${ZENER}components:\n  - { id: V1, kind: voltage-source, pins: { plus: s, minus: gnd }, dc: 200 V }\n  - { id: R1, kind: resistor, pins: [s, k], value: 10k }\n  - { id: D1, kind: diode, model: z5v1, pins: { anode: gnd, cathode: k } }\n`);
+    const c = load(`models:\n${ZENER}components:\n  - { id: V1, kind: voltage-source, pins: { plus: s, minus: gnd }, voltage: 200 V }\n  - { id: R1, kind: resistor, pins: [s, k], value: 10k }\n  - { id: D1, kind: diode, model: z5v1, pins: { anode: gnd, cathode: k } }\n`);
     const op = solve(c);
     const iz = (200 - VZ0) / (10000 + ZZT);
     expect(Math.abs(op.nodes.k! - (VZ0 + ZZT * iz))).toBeLessThan(1e-4);
@@ -91,7 +91,7 @@ describe("Zener breakdown", () => {
 
   it("its breakdown voltage drifts by the temperature coefficient", () => {
     const model = `  z: { kind: diode, saturationCurrent: 1 nA, breakdown: { voltage: 5.1 V, current: 5 mA, resistance: 10 Ω, temperatureCoefficient: 2 mV/K } }\n`;
-    const body = `models:\n${model}components:\n  - { id: I1, kind: current-source, pins: { from: gnd, to: k }, dc: 5 mA }\n  - { id: D1, kind: diode, model: z, pins: { anode: gnd, cathode: k } }\n`;
+    const body = `models:\n${model}components:\n  - { id: I1, kind: current-source, pins: { from: gnd, to: k }, current: 5 mA }\n  - { id: D1, kind: diode, model: z, pins: { anode: gnd, cathode: k } }\n`;
     const hot = solve(load(body, MODEL_TEMPERATURE + 50));
     // At +50 K the junction's reverse saturation current is ~0.7 µA of the 5 mA: ~7 µV lower.
     expect(hot.nodes.k).toBeCloseTo(5.1 + 50 * 0.002, 4);
@@ -103,7 +103,7 @@ describe("Zener breakdown", () => {
     const is = 1e-14;
     const c = load(
       `models:\n${ZENER}  q: { kind: npn, beta: ${beta}, saturationCurrent: ${is} A }\ncomponents:\n` +
-        `  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, dc: 12 V }\n` +
+        `  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, voltage: 12 V }\n` +
         `  - { id: RZ, kind: resistor, pins: [vcc, z], value: 1k }\n` +
         `  - { id: D1, kind: diode, model: z5v1, pins: { anode: gnd, cathode: z } }\n` +
         `  - { id: Q1, kind: npn, model: q, pins: { collector: vcc, base: z, emitter: out } }\n` +
@@ -125,7 +125,7 @@ describe("Zener breakdown", () => {
     expect(Math.abs(op.nodes.out! - vout)).toBeLessThan(1e-4);
     expect(Math.abs(op.nodes.z! - vz)).toBeLessThan(1e-4);
     const q = op.devices.Q1 as BjtPoint;
-    expect(op.nodes.out).toBeCloseTo(op.nodes.z! - q.vbe, 12);
+    expect(op.nodes.out).toBeCloseTo(op.nodes.z! - q.baseEmitterVoltage, 12);
   });
 });
 
@@ -133,13 +133,13 @@ describe("LED in its datasheet form (forward voltage at a test current)", () => 
   // An invented Tidewater status LED: VF = 2.0 V at IF = 20 mA; ideality defaults to 2.
   const LED = `  red-led: { kind: diode, forward: { voltage: 2.0 V, current: 20 mA }, ratings: { forwardCurrent: 30 mA } }\n`;
   const driven = (vs: number, r: number) =>
-    load(`models:\n${LED}components:\n  - { id: V1, kind: voltage-source, pins: { plus: s, minus: gnd }, dc: ${vs} V }\n  - { id: R1, kind: resistor, pins: [s, a], value: ${r} }\n  - { id: D1, kind: diode, model: red-led, pins: { anode: a, cathode: gnd } }\n`);
+    load(`models:\n${LED}components:\n  - { id: V1, kind: voltage-source, pins: { plus: s, minus: gnd }, voltage: ${vs} V }\n  - { id: R1, kind: resistor, pins: [s, a], value: ${r} }\n  - { id: D1, kind: diode, model: red-led, pins: { anode: a, cathode: gnd } }\n`);
 
   it("through the resistor the datasheet's own sizing gives, it carries exactly IF", () => {
     // Datasheet sizing: R = (VS − VF)/IF = (5 − 2)/20 mA = 150 Ω; at I = IF the LED drops exactly VF.
     const op = solve(driven(5, 150));
-    expect((op.devices.D1 as DiodePoint).id).toBeCloseTo(0.02, 9);
-    expect((op.devices.D1 as DiodePoint).vd).toBeCloseTo(2.0, 7);
+    expect((op.devices.D1 as DiodePoint).current).toBeCloseTo(0.02, 9);
+    expect((op.devices.D1 as DiodePoint).voltage).toBeCloseTo(2.0, 7);
   });
 
   for (const [vs, r] of [
@@ -153,7 +153,7 @@ describe("LED in its datasheet form (forward voltage at a test current)", () => 
       const nvt = 2 * VT;
       const exact = (nvt / r) * lambertWOfExp(Math.log((0.02 * r) / nvt) + (vs - 2) / nvt);
       const op = solve(driven(vs, r));
-      const i = (op.devices.D1 as DiodePoint).id;
+      const i = (op.devices.D1 as DiodePoint).current;
       expect(Math.abs(i / exact - 1)).toBeLessThan(1e-8);
       // The first-order estimate (VS − VF)/R is close where the current is near IF.
       if (vs === 3.3) expect(Math.abs(i - (vs - 2) / r) / i).toBeLessThan(0.05);
@@ -162,13 +162,13 @@ describe("LED in its datasheet form (forward voltage at a test current)", () => 
 
   it("ideality and a series resistance are honoured in the conversion", () => {
     const c = load(
-      `models:\n  led: { kind: diode, forward: { voltage: 3.1 V, current: 20 mA }, ideality: 3.5, seriesResistance: 10 }\ncomponents:\n  - { id: I1, kind: current-source, pins: { from: gnd, to: a }, dc: 20 mA }\n  - { id: D1, kind: diode, model: led, pins: { anode: a, cathode: gnd } }\n`,
+      `models:\n  led: { kind: diode, forward: { voltage: 3.1 V, current: 20 mA }, ideality: 3.5, seriesResistance: 10 }\ncomponents:\n  - { id: I1, kind: current-source, pins: { from: gnd, to: a }, current: 20 mA }\n  - { id: D1, kind: diode, model: led, pins: { anode: a, cathode: gnd } }\n`,
     );
     expect(solve(c).nodes.a).toBeCloseTo(3.1, 8);
   });
 
   it("the forward voltage spread becomes a saturation-current spread (highest VF, lowest IS)", () => {
-    const c = load(`models:\n  led: { kind: diode, forward: { voltage: { min: 1.8 V, typ: 2.0 V, max: 2.4 V }, current: 20 mA } }\ncomponents:\n  - { id: I1, kind: current-source, pins: { from: gnd, to: a }, dc: 20 mA }\n  - { id: D1, kind: diode, model: led, pins: { anode: a, cathode: gnd } }\n`);
+    const c = load(`models:\n  led: { kind: diode, forward: { voltage: { min: 1.8 V, typ: 2.0 V, max: 2.4 V }, current: 20 mA } }\ncomponents:\n  - { id: I1, kind: current-source, pins: { from: gnd, to: a }, current: 20 mA }\n  - { id: D1, kind: diode, model: led, pins: { anode: a, cathode: gnd } }\n`);
     const m = c.models.get("led")!;
     if (m.kind !== "diode") throw new Error("diode model expected");
     expect(m.saturationCurrent.min).toBeLessThan(m.saturationCurrent.typ);
@@ -179,7 +179,7 @@ describe("LED in its datasheet form (forward voltage at a test current)", () => 
 
 describe("model errors", () => {
   const errors = (model: string) => {
-    const r = loadCircuitText(`format: opgate-circuit/1\nname: t\nmodels:\n  d: ${model}\ncomponents:\n  - { id: I1, kind: current-source, pins: { from: gnd, to: a }, dc: 1 mA }\n  - { id: D1, kind: diode, model: d, pins: { anode: a, cathode: gnd } }\n`, "t.yaml");
+    const r = loadCircuitText(`format: opgate-circuit/1\nname: t\nmodels:\n  d: ${model}\ncomponents:\n  - { id: I1, kind: current-source, pins: { from: gnd, to: a }, current: 1 mA }\n  - { id: D1, kind: diode, model: d, pins: { anode: a, cathode: gnd } }\n`, "t.yaml");
     if (r.ok) throw new Error("expected errors");
     return r.errors;
   };

@@ -8,14 +8,14 @@ const pos = { file: "t.yaml", line: 1, column: 1 };
 
 function circuit(): Circuit {
   const components: Component[] = [
-    { id: "VCC", kind: "voltage-source", pins: { plus: "vcc", minus: "gnd" }, dc: { nominal: 12, min: 11.4, max: 12.6 }, pos },
+    { id: "VCC", kind: "voltage-source", pins: { plus: "vcc", minus: "gnd" }, voltage: { nominal: 12, min: 11.4, max: 12.6 }, pos },
     { id: "R1", kind: "resistor", pins: { a: "vcc", b: "out" }, value: { nominal: 1000, min: 990, max: 1010 }, pos },
     { id: "R2", kind: "resistor", pins: { a: "out", b: "gnd" }, value: { nominal: 1000, min: 1000, max: 1000 }, pos },
   ];
   return {
     file: "t.yaml",
     name: "t",
-    temperature: 300.15,
+    temperature: 298.15,
     ground: "gnd",
     parameters: new Map(),
     models: new Map([
@@ -47,7 +47,7 @@ function circuit(): Circuit {
 
 describe("variation", () => {
   it("lists only quantities with a band", () => {
-    expect(variedQuantities(circuit()).map((q) => q.key)).toEqual(["VCC.dc", "R1.value", "q.beta"]);
+    expect(variedQuantities(circuit()).map((q) => q.key)).toEqual(["VCC.voltage", "R1.value", "q.beta"]);
   });
 
   it("nominal mode is the circuit itself", () => {

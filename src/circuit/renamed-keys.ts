@@ -1,0 +1,16 @@
+// Keys the format used before its vocabulary was made our own. The format changed in place, so
+// an old key is an error like any unknown key; this table only makes the hint say what replaced it.
+
+/** Old key → the keys that replaced it, in the order they are tried against the object's own keys. */
+const RENAMED: Readonly<Record<string, readonly { readonly key: string; readonly note?: string }[]>> = {
+  dc: [{ key: "voltage" }, { key: "current" }],
+  ac: [{ key: "signal", note: "a peak amplitude used where a signal level matters; it no longer scales the gain" }],
+};
+
+/** A hint for an old key when one of its replacements is allowed where it stands, else undefined. */
+export function renamedKeyHint(key: string, allowed: readonly string[]): string | undefined {
+  for (const r of RENAMED[key] ?? []) {
+    if (allowed.includes(r.key)) return `\`${key}\` is now \`${r.key}\`${r.note ? ` (${r.note})` : ""}`;
+  }
+  return undefined;
+}
