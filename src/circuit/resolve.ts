@@ -31,6 +31,22 @@ function deepFreeze<T>(value: T): T {
   return value;
 }
 
+/**
+ * Optional device-capacitance fields (absent by default: no capacitance unless given). A
+ * transit frequency must be positive; a capacitance may be 0 but not negative.
+ */
+function optionalPositive(ctx: ResolveContext, raw: Obj, path: PathSegment[], what: string, fields: readonly (readonly [string, Quantity])[]): Record<string, number> {
+  const out: Record<string, number> = {};
+  for (const [key, quantity] of fields) {
+    const v = readOptional(ctx, raw, key, path, quantity, what);
+    if (v === undefined) continue;
+    const ok = key === "transitFrequency" ? v > 0 && Number.isFinite(v) : v >= 0 && Number.isFinite(v);
+    if (!ok) ctx.error([...path, key], `${what}: ${key} must be ${key === "transitFrequency" ? "positive" : "zero or positive"} and finite`, "omit it for no capacitance");
+    else out[key] = v;
+  }
+  return out;
+}
+
 /** An optional `ratings:` block of a model: each key a positive magnitude in its quantity. */
 function readRatings<K extends string>(ctx: ResolveContext, raw: Obj, path: readonly PathSegment[], what: string, keys: readonly (readonly [K, Quantity])[]): { ratings?: Partial<Record<K, number>> } {
   if (raw["ratings"] === undefined) return {};
@@ -126,8 +142,12 @@ function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model | undefi
     if (earlyVoltage.min <= 0) ctx.error([...path, "earlyVoltage"], `${what}: earlyVoltage must be a positive magnitude`, "write it without a sign, e.g. 90 V; omit it for no Early effect");
     if (beta.min <= 0) ctx.error([...path, "beta"], `${what}: beta must be positive`);
     if (saturationCurrent.min <= 0) ctx.error([...path, "saturationCurrent"], `${what}: saturationCurrent must be positive`);
+    const caps = optionalPositive(ctx, raw, path, what, [
+      ["transitFrequency", "frequency"],
+      ["baseCollectorCapacitance", "capacitance"],
+    ]);
     const ratings = readRatings(ctx, raw, path, what, [["collectorEmitter", "voltage"], ["collectorBase", "voltage"], ["emitterBase", "voltage"], ["collectorCurrent", "current"]] as const);
-    return { ...base, kind, beta, reverseBeta, saturationCurrent, earlyVoltage, saturationEdge, energyGap, saturationCurrentExponent, betaExponent, ...ratings };
+    return { ...base, kind, beta, reverseBeta, saturationCurrent, earlyVoltage, saturationEdge, energyGap, saturationCurrentExponent, betaExponent, ...caps, ...ratings };
   }
   if (kind === "nmos" || kind === "pmos") {
     const threshold = req("threshold", "voltage");
@@ -153,8 +173,13 @@ function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model | undefi
         `write ${-threshold.typ} V for an enhancement device; keep ${threshold.typ} V only if a depletion device is meant`,
       );
     }
+    const caps = optionalPositive(ctx, raw, path, what, [
+      ["gateSourceCapacitance", "capacitance"],
+      ["gateDrainCapacitance", "capacitance"],
+      ["oxideCapacitance", "capacitance-per-area"],
+    ]);
     const ratings = readRatings(ctx, raw, path, what, [["drainSource", "voltage"], ["gateSource", "voltage"], ["drainCurrent", "current"]] as const);
-    return { ...base, kind, threshold, kPrime, width, length, lambda, bodyEffect, surfacePotential, thresholdTempco, kPrimeExponent, ...ratings };
+    return { ...base, kind, threshold, kPrime, width, length, lambda, bodyEffect, surfacePotential, thresholdTempco, kPrimeExponent, ...caps, ...ratings };
   }
   return undefined;
 }

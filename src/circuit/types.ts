@@ -208,6 +208,10 @@ export interface BjtModel extends ModelBase {
   readonly saturationCurrentExponent: number; // default 3
   /** beta(T) = beta(T0)·(T/T0)^betaExponent; default 1.5 (common practice). */
   readonly betaExponent: number;
+  /** fT in Hz, giving the base–emitter capacitance Cπ = gm/(2π·fT) − Cμ; absent = no Cπ. */
+  readonly transitFrequency?: number;
+  /** Cμ in F; absent = none. */
+  readonly baseCollectorCapacitance?: number;
   readonly ratings?: BjtRatings;
 }
 
@@ -237,6 +241,12 @@ export interface MosfetModel extends ModelBase {
   readonly thresholdTempco: number;
   /** k'(T) = k'(T0)·(T/T0)^kPrimeExponent; default −1.5 (mobility, common practice). */
   readonly kPrimeExponent: number;
+  /** Fixed gate–source capacitance (overlap, package) in F; absent = none. */
+  readonly gateSourceCapacitance?: number;
+  /** Fixed gate–drain capacitance (overlap, package) in F; absent = none. */
+  readonly gateDrainCapacitance?: number;
+  /** Gate oxide capacitance per area Cox in F/m²: adds the channel's share of W·L·Cox by region. */
+  readonly oxideCapacitance?: number;
   readonly ratings?: MosfetRatings;
 }
 

@@ -230,3 +230,19 @@ export class DeviceSetupError extends Error {
     super(message);
   }
 }
+
+/**
+ * A small-signal capacitance of a device at its operating point, between two of its pin nodes.
+ * It is linear around the point and enters every frequency-domain result; midband views treat
+ * it as open (it sets the upper band edge).
+ */
+export interface DeviceCapacitance {
+  /** The device id. */
+  readonly device: string;
+  /** Which capacitance, in words: "base–emitter", "gate–drain". */
+  readonly between: string;
+  readonly a: string;
+  readonly b: string;
+  /** F, ≥ 0. */
+  readonly value: number;
+}

@@ -15,8 +15,10 @@ describe("RC corners", () => {
     const c = circuit("tide-gauge-filter").vsource("VIN", "in", "gnd", 0, 1).resistor("R1", "in", "out", R).capacitor("C1", "out", "gnd", C).gain("lp", "VIN", "out").build();
     const s = sweepGain(c, op, "lp", { start: 1, stop: 1e6, points: 61 });
     expect(s.error).toBeUndefined();
-    // Midband (capacitor short) kills this output; the corner is relative to the passband.
-    expect(s.midband).toBe(0);
+    // Flat-band midband: C1 sets the upper edge, so it is open there and the gain is 1 (issue 14:
+    // a plain RC low-pass has the gain 1 at midband); the corner is relative to it.
+    expect(s.midband).toBe(1);
+    expect(s.reference).toBe(1);
     expect(s.lowCorner).toBeNull();
     expect(relErr(s.highCorner as number, fc)).toBeLessThan(1e-3);
     // Closed form |H| = 1/√(1+(f/fc)²) at every sweep point (handbook formula).
@@ -134,15 +136,17 @@ describe("midband view and frequency points", () => {
     expect(r.gains[0]!.midband).toBeCloseTo(0.5, 14);
   });
 
-  it("judged uses the spec's own frequency, signed by the real part; points are ascending", () => {
+  it("judged uses the spec's own frequency, signed by the midband gain (not by the real part); points are ascending", () => {
     const R = 1e3;
     const C = 1e-6;
     const c = circuit("lp-at-f").vsource("VIN", "in", "gnd", 0, 1).resistor("R1", "in", "x", R).capacitor("C1", "x", "gnd", C).vcvs("E1", "out", "gnd", "x", "gnd", -2).gain("inv", "VIN", "out", "gnd", 100).band(10, 1e4).build();
     const g = analyseSmallSignal(c, op).gains[0]!;
     expect(g.points.map((p) => p.frequency)).toEqual([10, 100, 1e4]);
     const w = 2 * Math.PI * 100 * R * C;
-    expect(relErr(g.judged, -2 / Math.sqrt(1 + w * w))).toBeLessThan(1e-12); // |−2/(1+jωRC)|, re < 0
-    expect(g.midband).toBeCloseTo(0, 15); // midband shorts C1
+    expect(relErr(g.judged, -2 / Math.sqrt(1 + w * w))).toBeLessThan(1e-12); // |−2/(1+jωRC)|, inverting
+    expect(g.midband).toBeCloseTo(-2, 15); // flat band: C1 sets the upper edge and is open
+    expect(g.everyCapacitorShort).toBeCloseTo(0, 15); // the hand-analysis reference shorts it
+    expect(g.openAtMidband).toEqual(["C1"]);
   });
 });
 
@@ -196,8 +200,8 @@ describe("sweep reference and singular loops", () => {
       .gain("bp", "VIN", "out")
       .build();
     const s = sweepGain(c, op, "bp", { start: 0.1, stop: 1e10, points: 111 });
-    expect(s.midband).toBe(0); // C2 is shorted at midband
-    expect(s.reference).toBeGreaterThan(0.999);
+    expect(s.midband).toBe(1); // flat band: C1 short, C2 open
+    expect(s.reference).toBe(1);
     expect(relErr(s.lowCorner as number, 1 / (2 * Math.PI * R1 * C1))).toBeLessThan(1e-3);
     expect(relErr(s.highCorner as number, 1 / (2 * Math.PI * R2 * C2))).toBeLessThan(1e-3);
   });
