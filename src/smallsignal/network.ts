@@ -19,6 +19,7 @@
 
 import type { Circuit, Component } from "../circuit/types.js";
 import type { OperatingPoint } from "../solve/types.js";
+import { SENSED_KINDS_TEXT } from "../circuit/sense.js";
 import { bjtCapacitances } from "../devices/bjt.js";
 import type { DeviceCapacitance } from "../devices/device.js";
 import { mosCapacitances } from "../devices/mosfet.js";
@@ -76,10 +77,21 @@ interface VoltageControlledStamp {
   readonly branch: number;
 }
 
-interface CurrentControlledStamp {
+/**
+ * The small-signal current through a sensed part, first pin → second: a conductance times its
+ * voltage (resistor), a branch current (capacitor: jωC·V, a short's current at midband;
+ * inductor; voltage source), or an independent current source's own signal, which is the drive
+ * when it is the gain's input and zero otherwise.
+ */
+export type SensedSignal =
+  | { readonly kind: "conductance"; readonly a: number; readonly b: number; readonly g: number }
+  | { readonly kind: "branch"; readonly index: number }
+  | { readonly kind: "source"; readonly id: string };
+
+export interface CurrentControlledStamp {
   readonly plus: number;
   readonly minus: number;
-  readonly control: number;
+  readonly sense: SensedSignal;
   readonly gain: number;
   /** Branch of a ccvs; -1 for a cccs. */
   readonly branch: number;
@@ -311,15 +323,23 @@ export function buildNetwork(circuit: Circuit, op: OperatingPoint): BuildResult 
         break;
       case "cccs":
       case "ccvs": {
-        const control = branchIndex.get(c.control);
-        if (control === undefined) {
-          problem ??= `${c.id} is controlled by the current of \`${c.control}\`, which is not a voltage source`;
+        const sensed = circuit.components.find((x) => x.id === c.sense);
+        let sense: SensedSignal | undefined;
+        if (sensed?.kind === "resistor") {
+          const r = sensed.value.nominal;
+          if (r > 0 && Number.isFinite(r)) sense = { kind: "conductance", a: node(sensed.pins.a, c.id), b: node(sensed.pins.b, c.id), g: 1 / r };
+        } else if (sensed?.kind === "current-source") sense = { kind: "source", id: sensed.id };
+        else if (sensed && (sensed.kind === "capacitor" || sensed.kind === "inductor" || sensed.kind === "voltage-source")) {
+          sense = { kind: "branch", index: branchOf(sensed.id) };
+        }
+        if (sense === undefined) {
+          problem ??= `${c.id} senses the current of \`${c.sense}\`, which is not a ${SENSED_KINDS_TEXT} with a usable value`;
           break;
         }
         currentControlled.push({
           plus: node(c.pins.plus, c.id),
           minus: node(c.pins.minus, c.id),
-          control,
+          sense,
           gain: c.gain,
           branch: c.kind === "ccvs" ? branchOf(c.id) : GROUND,
         });
@@ -459,17 +479,25 @@ export function assemble(net: SmallSignalNetwork, view: View): void {
     }
   }
   for (const f of net.currentControlled) {
-    // The controlling current is the one delivered out of the control source's plus pin,
-    // which is minus its branch current (the branch current flows into plus).
+    // I = the sensed current (first pin → second); a sensed source's drive goes in the
+    // right-hand side (see src/smallsignal/index.ts).
+    const s = f.sense;
     if (f.branch !== GROUND) {
-      // ccvs: V(plus) − V(minus) − gain·(−I_control) = 0.
+      // ccvs: V(plus) − V(minus) − gain·I = 0.
       stampBranchKcl(f.plus, f.minus, f.branch);
       stampBranchVoltage(f.branch, f.plus, f.minus);
-      add(f.branch, f.control, f.gain);
-    } else {
-      // cccs: gain·(−I_control) flows into node plus.
-      add(f.plus, f.control, f.gain);
-      add(f.minus, f.control, -f.gain);
+      if (s.kind === "branch") add(f.branch, s.index, -f.gain);
+      else if (s.kind === "conductance") stampBranchVoltage(f.branch, s.a, s.b, -f.gain * s.g);
+    } else if (s.kind === "branch") {
+      // cccs: gain·I flows into node plus (a current −gain·I leaving it).
+      add(f.plus, s.index, -f.gain);
+      add(f.minus, s.index, f.gain);
+    } else if (s.kind === "conductance") {
+      const k = f.gain * s.g;
+      add(f.plus, s.a, -k);
+      add(f.plus, s.b, k);
+      add(f.minus, s.a, k);
+      add(f.minus, s.b, -k);
     }
   }
   for (const d of net.devices) {

@@ -55,6 +55,12 @@ function drive(net: SmallSignalNetwork, g: ResolvedGain): void {
   } else {
     // The source's current flows through it from `from` to `to`, out into node `to`.
     inject(net, net.nodeIndex.get(g.source.pins.to) ?? GROUND, net.nodeIndex.get(g.source.pins.from) ?? GROUND, g.amplitude);
+    // A controlled source sensing this current source sees the drive as its current.
+    for (const f of net.currentControlled) {
+      if (f.sense.kind !== "source" || f.sense.id !== g.source.id) continue;
+      if (f.branch !== GROUND) net.rhsRe[f.branch] = (net.rhsRe[f.branch] as number) + f.gain * g.amplitude;
+      else inject(net, f.plus, f.minus, f.gain * g.amplitude);
+    }
   }
 }
 
