@@ -106,7 +106,8 @@ function diodeBreakdown(ctx: ResolveContext, raw: Obj, path: readonly PathSegmen
   return { breakdownVoltage: voltage, breakdown: { current, resistance, tempco } };
 }
 
-function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model | undefined {
+/** Resolves one model (of a circuit file or a model library); undefined after reporting errors in ctx. */
+export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model | undefined {
   const path: PathSegment[] = ["models", id];
   const what = `model ${id}`;
   const pos = ctx.pos(path, true);
@@ -156,14 +157,15 @@ function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model | undefi
     const length = n("length", "length", NaN);
     const lambda = s("lambda", "per-volt", D.DEFAULT_LAMBDA);
     const bodyEffect = n("bodyEffect", "sqrt-volt", D.DEFAULT_BODY_EFFECT);
-    const surfacePotential = n("surfacePotential", "voltage", D.DEFAULT_SURFACE_POTENTIAL_V);
+    const fermiPotential = n("fermiPotential", "voltage", D.DEFAULT_FERMI_POTENTIAL_V);
     const thresholdTempco = n("thresholdTempco", "volt-per-kelvin", D.DEFAULT_THRESHOLD_TEMPCO_V_PER_K);
     const kPrimeExponent = n("kPrimeExponent", "dimensionless", D.DEFAULT_KPRIME_EXPONENT);
     if (!threshold || !kPrime || !lambda || width === undefined || length === undefined) return undefined;
-    if (bodyEffect === undefined || surfacePotential === undefined || thresholdTempco === undefined || kPrimeExponent === undefined) return undefined;
+    if (bodyEffect === undefined || fermiPotential === undefined || thresholdTempco === undefined || kPrimeExponent === undefined) return undefined;
     if (!(width > 0)) ctx.error([...path, "width"], `${what}: width must be positive`);
     if (!(length > 0)) ctx.error([...path, "length"], `${what}: length must be positive`);
     if (kPrime.min <= 0) ctx.error([...path, "kPrime"], `${what}: kPrime must be positive`);
+    if (!(fermiPotential > 0)) ctx.error([...path, "fermiPotential"], `${what}: fermiPotential φF must be positive`, "typical silicon substrates give 0.3–0.4 V");
     const wrongSign = kind === "nmos" ? threshold.typ < 0 : threshold.typ > 0;
     if (wrongSign) {
       const other = kind === "nmos" ? "a depletion-mode NMOS" : "a depletion-mode PMOS";
@@ -179,7 +181,7 @@ function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model | undefi
       ["oxideCapacitance", "capacitance-per-area"],
     ]);
     const ratings = readRatings(ctx, raw, path, what, [["drainSource", "voltage"], ["gateSource", "voltage"], ["drainCurrent", "current"]] as const);
-    return { ...base, kind, threshold, kPrime, width, length, lambda, bodyEffect, surfacePotential, thresholdTempco, kPrimeExponent, ...caps, ...ratings };
+    return { ...base, kind, threshold, kPrime, width, length, lambda, bodyEffect, fermiPotential, thresholdTempco, kPrimeExponent, ...caps, ...ratings };
   }
   return undefined;
 }
@@ -352,7 +354,7 @@ function resolveSpecs(ctx: ResolveContext, raw: Obj, ground: string): Specs {
 }
 
 /** Resolves a schema-valid tree. Returns the circuit (possibly with errors in ctx) — callers check ctx.errors. */
-export function resolveCircuit(ctx: ResolveContext, root: Obj): Circuit {
+export function resolveCircuit(ctx: ResolveContext, root: Obj, library: ReadonlyMap<string, Model> = new Map()): Circuit {
   ctx.parameters = resolveParameters(ctx, root["parameters"] as Obj | undefined);
   let temperature: number = D.DEFAULT_TEMPERATURE_K;
   if (root["temperature"] !== undefined) {
@@ -365,8 +367,15 @@ export function resolveCircuit(ctx: ResolveContext, root: Obj): Circuit {
     }
   }
   const ground = root["ground"] !== undefined ? String(root["ground"]) : D.DEFAULT_GROUND;
-  const models = new Map<string, Model>();
+  const models = new Map<string, Model>(library);
   for (const [id, m] of Object.entries(asObj(root["models"]))) {
+    const shared = library.get(id);
+    if (shared)
+      ctx.warn(
+        ["models", id],
+        `model \`${id}\` overrides the library model of the same id (${shared.pos.file}:${shared.pos.line})`,
+        "use the library's model, or give this one its own id if it is a different part",
+      );
     const model = resolveModel(ctx, id, asObj(m));
     if (model) models.set(id, model);
   }

@@ -238,7 +238,8 @@ export interface MosfetModel extends ModelBase {
   readonly length: number; // m
   readonly lambda: Spread; // 1/V, default 0
   readonly bodyEffect: number; // γ in √V, default 0
-  readonly surfacePotential: number; // 2φF in V, default 0.6
+  /** Fermi potential φF of the substrate in V (the body-effect law uses 2φF); default 0.35 V. */
+  readonly fermiPotential: number;
   /** d|Vt|/dT in V/K (polarity-normalised), default −2 mV/K (common practice). */
   readonly thresholdTempco: number;
   /** k'(T) = k'(T0)·(T/T0)^kPrimeExponent; default −1.5 (mobility, common practice). */
@@ -308,6 +309,12 @@ export interface CircuitRuleOverride {
   readonly pos: SourcePos;
 }
 
+/** A model library a circuit was resolved with: the file as messages name it and the SHA-256 of its bytes. */
+export interface LibraryUse {
+  readonly file: string;
+  readonly sha256: string;
+}
+
 export interface Circuit {
   readonly file: string;
   readonly name: string;
@@ -326,8 +333,10 @@ export interface Circuit {
   /** Non-fatal remarks from resolution (e.g. a PMOS with a positive threshold). */
   readonly warnings: readonly InputError[];
   readonly pos: SourcePos;
+  /** Model libraries the circuit was resolved with (config's first, then its own), in load order. */
+  readonly libraries?: readonly LibraryUse[];
 }
 
 export type LoadResult =
   | { readonly ok: true; readonly circuit: Circuit }
-  | { readonly ok: false; readonly errors: readonly InputError[] };
+  | { readonly ok: false; readonly errors: readonly InputError[]; readonly libraries?: readonly LibraryUse[] };

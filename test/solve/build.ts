@@ -30,7 +30,7 @@ export interface MosParams {
   length?: number;
   lambda?: number;
   bodyEffect?: number;
-  surfacePotential?: number;
+  fermiPotential?: number;
 }
 export interface DiodeParams {
   saturationCurrent?: number;
@@ -129,7 +129,7 @@ export class CircuitBuilder {
       length: p.length ?? 1e-6,
       lambda: spread(p.lambda ?? 0),
       bodyEffect: p.bodyEffect ?? 0,
-      surfacePotential: p.surfacePotential ?? 0.6,
+      fermiPotential: p.fermiPotential ?? 0.3,
       thresholdTempco: -2e-3,
       kPrimeExponent: -1.5,
     };
