@@ -173,6 +173,8 @@ export interface CircuitResult {
   readonly variation?: VariationEntry;
   /** Monte Carlo yield and distributions (monte-carlo mode). */
   readonly monteCarlo?: MonteCarloEntry;
+  /** Model libraries the circuit was checked with: repository-relative file and SHA-256 of its bytes. */
+  readonly libraries?: readonly { readonly file: string; readonly sha256: string }[];
 }
 
 export interface RuleEntry {

@@ -21,9 +21,13 @@ export interface ResolvedConfig {
   readonly include: readonly string[];
   readonly exclude: readonly string[];
   readonly rules: Readonly<Record<string, RuleSetting>>;
+  /** Absolute paths of the model libraries every circuit uses, in the order listed. */
+  readonly libraries: readonly string[];
   /** Absolute paths of team rule modules, globs expanded, sorted. */
   readonly plugins: readonly string[];
   readonly failOn: Severity;
+  /** Files a folder or glob matches that are not circuit files: skipped (default) or an error. */
+  readonly nonCircuitFiles?: "skip" | "error";
   readonly variation: VariationSettings;
   readonly outputs: {
     readonly json?: string;
