@@ -16,7 +16,7 @@ let sandbox: { math: MathJsInstance; parse: MathJsInstance["parse"] } | null = n
  * What the sandbox instance is made of: mathjs's parser and compiler, and only the arithmetic
  * and elementary functions an expression may call (ALLOWED_OPERATORS, ALLOWED_FUNCTIONS), by
  * the names of their dependency objects in mathjs. A custom instance costs a fraction of the
- * whole library's functions; `test/circuit/expressions.test.ts` checks this list against the
+ * whole library's functions; `test/circuit/math-instance.test.ts` checks this list against the
  * allowlists.
  */
 export const MATH_DEPENDENCIES = [
