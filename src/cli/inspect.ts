@@ -12,6 +12,8 @@ import { swingLimits } from "../review/swing.js";
 import { writeFileSync } from "node:fs";
 import { formatInputError } from "./check.js";
 import { loadConfig } from "../review/config.js";
+import { makeCheckContext } from "../run/context.js";
+import { renderSensitivityTable } from "./sensitivity.js";
 import { EXIT_CLEAN, EXIT_INPUT, type CliIo } from "./io.js";
 import type { CommandSpec } from "./main.js";
 
@@ -66,6 +68,7 @@ export const inspectCommand: CommandSpec = {
       .option("to", { type: "number", describe: "Sweep stop frequency in Hz (default: two decades above band.high)" })
       .option("points", { type: "number", describe: "Number of log-spaced sweep points" })
       .option("csv", { type: "string", describe: "Write the sweep of one gain as CSV to this path" })
+      .option("sensitivity", { type: "boolean", describe: "Also print how every judged quantity moves with every tolerance, spread and temperature" })
       .example("$0 inspect wind-vane.json | less -S", "Page through a wide table")
       .example("$0 inspect preamp.yaml --sweep preamp --csv preamp.csv", "Frequency response of gain `preamp`, also as CSV"),
   handler: async (args, io: CliIo) => {
@@ -98,6 +101,10 @@ export const inspectCommand: CommandSpec = {
       return EXIT_UNSOLVABLE;
     }
     io.stdout(header + INSPECT_SECTIONS.map((s) => s(circuit, result)).join("\n"));
+    if (args.sensitivity === true) {
+      const ctx = await makeCheckContext({ cwd: io.cwd });
+      io.stdout(`\n${await renderSensitivityTable(circuit, ctx)}`);
+    }
     if (args.sweep === undefined && args.csv === undefined) return EXIT_CLEAN;
     const asked = typeof args.sweep === "string" && args.sweep !== "" ? [args.sweep] : circuit.specs.gains.map((g) => g.name);
     if (asked.length === 0) {

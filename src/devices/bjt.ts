@@ -142,6 +142,13 @@ class BjtInstance implements DeviceInstance {
     g[8] = -(g[2]! + g[5]!);
   }
 
+  prime(x: Float64Array): void {
+    const bi = this.base.index;
+    const vb = bi >= 0 ? x[bi]! : 0;
+    this.lastVbe = this.p * (vb - (this.emi.index >= 0 ? x[this.emi.index]! : 0));
+    this.lastVbc = this.p * (vb - (this.col.index >= 0 ? x[this.col.index]! : 0));
+  }
+
   reset(): void {
     this.lastVbe = this.vcrit;
     this.lastVbc = 0;

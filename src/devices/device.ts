@@ -158,6 +158,11 @@ export interface DeviceInstance {
   stampNonlinear?(x: Float64Array, m: StampTarget, st: IterationState): void;
   /** Forget limiting state (start of a new continuation from the initial guess). */
   reset?(): void;
+  /**
+   * Take the controlling voltages at x as the limiting reference (a warm start from a nearby
+   * solved point), so that the first Newton pass is not limited back toward the reset state.
+   */
+  prime?(x: Float64Array): void;
   /** The operating-point record at the solved x (sourceScale is 1 at the end of a solve). */
   point(x: Float64Array): DevicePoint | SourcePoint;
 }

@@ -66,6 +66,9 @@ export function diode(c: Diode, ctx: SetupContext): DeviceInstance {
     reset() {
       last[0] = vcrit;
     },
+    prime(x: Float64Array) {
+      last[0] = volt(x, inner) - volt(x, cathode.index);
+    },
     stampNonlinear(x: Float64Array, m: StampTarget, st: IterationState) {
       let v = st.init ? vcrit : volt(x, inner) - volt(x, cathode.index);
       const vl = limitJunction(v, last[0]!, nvt, vcrit);

@@ -177,6 +177,12 @@ class MosInstance implements DeviceInstance {
     g[11] = -this.gmb;
   }
 
+  prime(x: Float64Array): void {
+    const vs = this.sr.index >= 0 ? x[this.sr.index]! : 0;
+    this.lastVgs = this.p * ((this.gt.index >= 0 ? x[this.gt.index]! : 0) - vs);
+    this.lastVds = this.p * ((this.dr.index >= 0 ? x[this.dr.index]! : 0) - vs);
+  }
+
   reset(): void {
     this.lastVgs = 0;
     this.lastVds = 0;

@@ -32,7 +32,7 @@ function findingText(c: CircuitResult, f: Finding): string {
   const numbers = measuredVsLimit(f);
   const scenario = c.scenarios.find((s) => s.id === f.scenario);
   const where = scenario && scenario.label && scenario.label !== f.scenario ? `${f.scenario} (${scenario.label})` : f.scenario;
-  return inertText(`${findingLocation(f)}: ${f.severity}: ${f.message}${numbers ? ` — ${numbers}` : ""}; worst scenario ${where}`);
+  return inertText(`${findingLocation(f)}: ${f.severity}: ${f.message}${numbers ? ` — ${numbers}` : ""}; worst scenario ${where}${f.corner && !where.includes(f.corner.label) ? `: ${f.corner.label}` : ""}`);
 }
 
 function passedText(p: PassedCheck): string {

@@ -133,17 +133,41 @@ function numbersCells(f: Finding): [Cell, Cell] {
   return [utext(measuredVsLimit ?? all), margin ? utext(margin) : "—"];
 }
 
+/** The three parameters that move a failing quantity most across their bands: "RC +0.12 V … −0.12 V (1.02 %/%)". */
+function topSensitivities(f: Finding): string | null {
+  const top = (f.sensitivities ?? []).filter((e) => e.low !== 0 || e.high !== 0).slice(0, 3);
+  if (top.length === 0) return null;
+  const unit = f.unit ?? "";
+  const signed = (v: number): string => `${v < 0 ? "\u2212" : "+"}${formatQuantity(Math.abs(v), unit)}`;
+  return top
+    .map((e) => `${e.name} ${signed(e.low)} … ${signed(e.high)} across its band${e.normalised !== null ? ` (${formatNumber(e.normalised)} %/%)` : e.perDegree !== null ? ` (${signed(e.perDegree)}/°C)` : ""}`)
+    .join("; ");
+}
+
+/** Monte Carlo yield of a circuit, when it ran. */
+function yieldBlock(c: CircuitResult): RootContent[] {
+  const mc = c.monteCarlo;
+  if (!mc) return [];
+  const pct = (v: number): string => `${formatNumber(100 * v)} %`;
+  const words = `Monte Carlo yield ${pct(mc.yield)} (${mc.samples - mc.failed} of ${mc.samples} samples pass; 95 % ${mc.interval.method} interval ${pct(mc.interval.low)}–${pct(mc.interval.high)})${mc.nonConverged ? `; ${count(mc.nonConverged, "sample")} did not converge (counted as failing)` : ""}${mc.worstSample ? `; worst sample ${mc.worstSample.scenario}: ${mc.worstSample.label}` : ""}`;
+  return [para(utext(words))];
+}
+
 /** The compact table of one circuit's findings, then each finding's message, worst scenario and fix. */
 function circuitFindings(c: CircuitResult): RootContent[] {
   const rows: Cell[][] = c.findings.map((f) => [f.severity, code(f.rule), code(f.subject), ...numbersCells(f)]);
   const items = c.findings.map((f) => {
     const lines: PhrasingContent[] = [strong(text(f.severity)), text(" "), code(f.rule), text(" "), code(f.subject), text(` (line ${f.line}): `), utext(f.message)];
     if (c.scenarios.length > 1 || f.scenario !== "nominal") lines.push(br(), text("Worst scenario: "), utext(scenarioLabel(c, f.scenario)));
+    if (f.corner && !(c.scenarios.find((x) => x.id === f.scenario)?.label === f.corner.label)) lines.push(br(), text("Worst corner: "), utext(f.corner.label));
+    const moves = topSensitivities(f);
+    if (moves) lines.push(br(), text("Moves it most: "), utext(moves));
     if (f.hint) lines.push(br(), text("Fix: "), utext(f.hint));
     return item(para(...lines));
   });
   return [
     heading(3, text(`${STATUS_ICON[c.status]} `), ...circuitLabel(c)),
+    ...yieldBlock(c),
     table([null, null, null, "right", "right"], ["Severity", "Rule", "Subject", "Measured vs limit", "Margin"], rows),
     ...details(`What is wrong, the worst scenario and the fix (${count(c.findings.length, "finding")})`, [list(items, true)]),
   ];

@@ -101,7 +101,7 @@ export function renderSarif(doc: ResultsDocument, options: SarifOptions = {}): s
         ruleId: inertText(f.rule),
         ruleIndex: index.get(f.rule)!,
         level: level(f.severity),
-        message: { text: inertText(`${f.subject}: ${f.message}${numbers ? ` (${numbers}; worst scenario ${f.scenario})` : ""}${f.hint ? ` ${f.hint}` : ""}`) },
+        message: { text: inertText(`${f.subject}: ${f.message}${numbers ? ` (${numbers}; worst scenario ${f.scenario}${f.corner ? `: ${f.corner.label}` : ""})` : ""}${f.hint ? ` ${f.hint}` : ""}`) },
         locations: [
           {
             physicalLocation: {

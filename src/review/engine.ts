@@ -254,7 +254,8 @@ interface RuleState {
   order: number;
   /** One time budget per rule and circuit, over all its scenarios (set on first use). */
   readonly budgetMs: number;
-  deadline: number | null;
+  /** Time this rule itself has taken on this circuit so far, ms (the analyses between its calls do not count). */
+  spentMs: number;
   /** Scenarios this rule has been run on. */
   scenarios: number;
   /** The budget ran out: the rule is not run on further scenarios (one error finding says so). */
@@ -283,7 +284,7 @@ export class RuleSession {
     this.#errors = errors;
     for (const configured of rules) {
       if (configured.severity === "off") continue;
-      this.#states.push({ configured, severity: configured.severity, worst: new Map(), order: 0, budgetMs: this.#budgetMs, deadline: null, scenarios: 0, exhausted: false });
+      this.#states.push({ configured, severity: configured.severity, worst: new Map(), order: 0, budgetMs: this.#budgetMs, spentMs: 0, scenarios: 0, exhausted: false });
     }
   }
 
@@ -357,12 +358,27 @@ async function runOne(
   keepOutcomes: boolean,
   seen: (o: Outcome) => void,
 ): Promise<void> {
+  if (state.exhausted) return;
+  state.scenarios++;
+  const started = Date.now();
+  try {
+    await runTimed(state, circuit, analysis, timeLimitMs, keepOutcomes, seen);
+  } finally {
+    state.spentMs += Date.now() - started;
+  }
+}
+
+async function runTimed(
+  state: RuleState,
+  circuit: Circuit,
+  analysis: ScenarioAnalysis,
+  timeLimitMs: number,
+  keepOutcomes: boolean,
+  seen: (o: Outcome) => void,
+): Promise<void> {
   const { configured, worst } = state;
   const { rule } = configured;
   const options = configured.options ?? {};
-  if (state.exhausted) return;
-  state.deadline ??= Date.now() + state.budgetMs;
-  state.scenarios++;
   const keep = (o: Outcome): void => {
     seen(o);
     // A broken rule is kept even from a measuring step: it must surface as an error finding.
@@ -422,7 +438,8 @@ async function runOne(
     });
   };
   const scenario = analysis.scenario;
-  const left = state.deadline - Date.now();
+  const started = Date.now();
+  const left = state.budgetMs - state.spentMs;
   if (left <= 0) {
     state.exhausted = true;
     broken(scenario.id, `it used up its ${state.budgetMs / 1000} s budget for this circuit before this scenario`);
@@ -434,7 +451,7 @@ async function runOne(
     const outcome = await runContained(rule, [analysis], options, left);
     if (!outcome.ok) {
       state.exhausted = true;
-      const outOfTime = Date.now() >= state.deadline;
+      const outOfTime = Date.now() - started >= left;
       const n = state.scenarios;
       broken(scenario.id, outOfTime ? `checking the circuit's ${n} scenario${n === 1 ? "" : "s"} took longer than ${state.budgetMs / 1000} s` : outcome.reason);
     } else {

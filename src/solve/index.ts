@@ -75,7 +75,10 @@ function solve(circuit: Circuit, options: SolveOptions): SolveResult {
   const warm = options.warmStart;
   if (warm?.x && warm.x.length === plan.n && first === 0) {
     plan.x.set(warm.x);
-    for (const d of plan.nonlinear) d.reset?.();
+    for (const d of plan.nonlinear) {
+      d.reset?.();
+      d.prime?.(plan.x);
+    }
     newton(plan, solver, { gmin: 0, sourceScale: 1, init: false, maxIterations: Math.min(WARM_ITERATION_CAP, cap), polish: true }, rec);
     total.iterations += rec.iterations;
     if (rec.status === "converged") {

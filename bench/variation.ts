@@ -1,0 +1,116 @@
+// Benchmark of the variation stage: what the worst-case analysis costs (analyses and time) on the
+// toleranced 30-node generated chain and on each example, and Monte Carlo of 1,000 samples of the
+// 30-node chain, cold (every sample solved from zero, as before) beside warm-started from the
+// nominal point, with Newton iteration counts. Run alone with `npx tsx bench/variation.ts`.
+import { pathToFileURL } from "node:url";
+import { readdirSync } from "node:fs";
+import { join } from "node:path";
+import { BUILTIN_RULES } from "../rules/index.js";
+import { loadCircuitFile } from "../src/circuit/index.js";
+import type { Circuit, Component, Model } from "../src/circuit/types.js";
+import { runVariation } from "../src/pipeline/variation.js";
+import { RuleSession, type ConfiguredRule } from "../src/review/engine.js";
+import { solveOperatingPoint, type WarmStart } from "../src/solve/index.js";
+import { sampleValues } from "../src/variation/monte-carlo.js";
+import { circuitAt, variationParameters } from "../src/variation/parameters.js";
+import { seededRandom } from "../src/variation/random.js";
+import { chainCircuit } from "./solve.js";
+
+const AMBIENT = { min: 273.15 - 20, max: 273.15 + 60 };
+const SAMPLES = 1000;
+/** Target from the issue: 1,000 samples of the 30-node circuit. */
+export const TARGET_MC_MS = 150;
+
+/** The generated chain with 5 % resistors, a 5 % supply and datasheet-like spreads. */
+export function tolerancedChain(nodes: number): Circuit {
+  const base = chainCircuit(nodes);
+  const band = (v: number, t: number) => ({ nominal: v, min: v * (1 - t), max: v * (1 + t) });
+  const components = base.components.map((c): Component => {
+    if (c.kind === "resistor") return { ...c, value: band(c.value.nominal, 0.05) };
+    if (c.kind === "voltage-source") return { ...c, voltage: band(c.voltage.nominal, 0.05) } as Component;
+    return c;
+  });
+  const models = new Map<string, Model>();
+  for (const [id, m] of base.models) {
+    if (m.kind === "npn") models.set(id, { ...m, beta: { min: 100, typ: 150, max: 250 } });
+    else if (m.kind === "nmos") models.set(id, { ...m, threshold: { min: 0.9, typ: 1, max: 1.1 }, kPrime: { min: 80e-6, typ: 100e-6, max: 120e-6 } });
+    else models.set(id, m);
+  }
+  return { ...base, components, models };
+}
+
+const rules = (): ConfiguredRule[] => [...BUILTIN_RULES.values()].filter((r) => r.severity !== "off").map((rule) => ({ rule, severity: rule.severity as "error", options: {}, source: "builtin" }));
+
+async function worstCaseRow(name: string, circuit: Circuit): Promise<string> {
+  const settings = { mode: "corners" as const, samples: 1, seed: 1, temperature: AMBIENT };
+  const t0 = performance.now();
+  const session = new RuleSession({ circuit, rules: rules() });
+  const v = await runVariation(circuit, settings, session, 2);
+  session.finish();
+  const ms = performance.now() - t0;
+  const s = v.summary;
+  if (!s) return `| ${name} | — | — | — | — | — | — | ${ms.toFixed(1)} |`;
+  return `| ${name} | ${s.variedParameters} | ${s.quantities} | ${s.analyses} (${s.sensitivityAnalyses} + ${s.corners} corners + ${s.refinementAnalyses} re-linearisation) | ${(s.analyses / Math.max(1, s.variedParameters)).toFixed(1)} | ${(s.analyses / Math.max(1, s.quantities)).toFixed(2)} | ${s.refinedQuantities} | ${ms.toFixed(1)} |`;
+}
+
+function monteCarloSolves(circuit: Circuit, warm: boolean): { ms: number; iterations: number; failed: number } {
+  const settings = { temperature: AMBIENT };
+  const params = variationParameters(circuit, settings);
+  const random = seededRandom(1);
+  const values = new Float64Array(params.length);
+  const start: WarmStart = { x: null };
+  if (warm) solveOperatingPoint(circuit, { warmStart: start });
+  let iterations = 0;
+  let failed = 0;
+  const t0 = performance.now();
+  for (let k = 0; k < SAMPLES; k++) {
+    sampleValues(params, random, values);
+    const op = solveOperatingPoint(circuitAt(circuit, params, values), warm ? { warmStart: start } : {});
+    iterations += op.stats.iterations;
+    if (!op.ok) failed++;
+  }
+  return { ms: performance.now() - t0, iterations, failed };
+}
+
+async function monteCarloPipeline(circuit: Circuit): Promise<{ ms: number; iterations: number; yield: number }> {
+  const session = new RuleSession({ circuit, rules: rules() });
+  const t0 = performance.now();
+  const v = await runVariation(circuit, { mode: "monte-carlo", samples: SAMPLES, seed: 1, temperature: AMBIENT }, session, 2);
+  session.finish();
+  return { ms: performance.now() - t0, iterations: v.monteCarlo!.iterations, yield: v.monteCarlo!.yield };
+}
+
+export async function benchVariation(): Promise<void> {
+  console.log("Shared 2-core machine with other engineers' jobs running: figures are noisy; compare ratios within this run.\n");
+  console.log("### Worst-case analysis (sensitivities by central differences, one verified corner per judged quantity and direction)\n");
+  console.log("| circuit | varied parameters | judged quantities | analyses | per varied parameter | per judged quantity | quantities re-linearised | ms |");
+  console.log("|---|---:|---:|---|---:|---:|---:|---:|");
+  const chain = tolerancedChain(30);
+  await worstCaseRow("generated chain, 30 nodes", chain); // warm-up
+  console.log(await worstCaseRow("generated chain, 30 nodes", chain));
+  const dir = join(process.cwd(), "examples");
+  for (const f of readdirSync(dir).filter((n) => n.endsWith(".yaml") && n !== "opgate.config.yaml").sort()) {
+    const loaded = await loadCircuitFile(join(dir, f), { displayPath: `examples/${f}` });
+    if (!loaded.ok) {
+      console.log(`| examples/${f} | (does not load) | | | | | | |`);
+      continue;
+    }
+    console.log(await worstCaseRow(`examples/${f}`, loaded.circuit));
+  }
+  console.log("\nAn analysis is one bias solve (warm-started from nominal), its small-signal analysis and every built-in rule.\n");
+
+  console.log(`### Monte Carlo, ${SAMPLES} samples of the 30-node chain (one process)\n`);
+  monteCarloSolves(chain, false);
+  monteCarloSolves(chain, true);
+  const cold = monteCarloSolves(chain, false);
+  const warm = monteCarloSolves(chain, true);
+  const pipe = await monteCarloPipeline(chain);
+  console.log("| run | ms | Newton iterations | per sample | non-converged |");
+  console.log("|---|---:|---:|---:|---:|");
+  console.log(`| bias solves, each from zero (before) | ${cold.ms.toFixed(1)} | ${cold.iterations} | ${(cold.iterations / SAMPLES).toFixed(2)} | ${cold.failed} |`);
+  console.log(`| bias solves, warm-started from nominal | ${warm.ms.toFixed(1)} | ${warm.iterations} | ${(warm.iterations / SAMPLES).toFixed(2)} | ${warm.failed} |`);
+  console.log(`| whole check (solve, small-signal, every built-in rule, statistics) | ${pipe.ms.toFixed(1)} | ${pipe.iterations} | ${(pipe.iterations / SAMPLES).toFixed(2)} | yield ${(100 * pipe.yield).toFixed(1)} % |`);
+  console.log(`\nwarm/cold time ratio ${(warm.ms / cold.ms).toFixed(2)}; target for ${SAMPLES} samples: ≤ ${TARGET_MC_MS} ms.`);
+}
+
+if (import.meta.url === pathToFileURL(process.argv[1] ?? "").href) await benchVariation();
