@@ -88,7 +88,8 @@ describe("result cache through check", () => {
       writeFileSync(configPath, config);
       writeFileSync(pluginPath, plugin);
     }
-  });
+    // Nine repository runs in corners mode (the worst-case analysis runs 50–150 analyses per file).
+  }, 120_000);
 
   it("ignores corrupt, foreign and unreadable entries with one line, and gives the same reports", async () => {
     const d = join(repo.dir, ".cache-b");
