@@ -1,6 +1,7 @@
 // The rule engine: runs every enabled rule over every scenario of one circuit, keeps per rule
-// and subject the worst scenario, and isolates rules from each other (a throw or a runaway
-// rule becomes an `error` finding; the other rules still run).
+// and subject the worst scenario, and isolates rules from each other (a throw, a runaway rule or
+// a report the results cannot hold becomes an `error` finding; the other rules still run). Team
+// rules from plugins run contained in a thread of their own (contain.ts).
 import vm from "node:vm";
 import type { Circuit, SourcePos } from "../circuit/types.js";
 import type { ScenarioAnalysis } from "../pipeline/types.js";
@@ -8,6 +9,8 @@ import type { Finding, PassedCheck, Severity } from "../report/document.js";
 import { didYouMean } from "./did-you-mean.js";
 import { ConfigError, type ConfigProblem } from "./errors.js";
 import { optionProblems, resolveOptions, type OptionsOrigin } from "./options.js";
+import { isContained, RULE_BUDGET_MS, runContained } from "./contain.js";
+import { failReportProblems, passReportProblems } from "./report-check.js";
 import type { Bound, FailReport, PassReport, Reporter, Rule, RuleSeverity } from "./rule.js";
 
 /**
@@ -38,6 +41,8 @@ export interface RunRulesInput {
   readonly rules: readonly ConfiguredRule[];
   /** Per rule and scenario; defaults to RULE_TIME_LIMIT_MS. */
   readonly timeLimitMs?: number;
+  /** Per rule and circuit, all scenarios together; defaults to RULE_BUDGET_MS. */
+  readonly budgetMs?: number;
 }
 
 export interface RuleResults {
@@ -219,6 +224,7 @@ async function runOne(
   circuit: Circuit,
   analyses: readonly ScenarioAnalysis[],
   timeLimitMs: number,
+  budgetMs: number | undefined,
 ): Promise<Map<string, Outcome>> {
   const { rule } = configured;
   const options = configured.options ?? {};
@@ -228,40 +234,87 @@ async function runOne(
     const prev = worst.get(o.subject);
     if (!prev || worseThan(o, prev)) worst.set(o.subject, o);
   };
+  const broken = (scenario: string, reason: string): void =>
+    keep({
+      kind: "fail",
+      subject: circuit.name,
+      message: `rule \`${rule.id}\` could not check circuit \`${circuit.name}\` in scenario ${scenario}: ${reason}`,
+      measured: null,
+      limit: null,
+      unit: null,
+      margin: null,
+      scenario,
+      order: order++,
+      hint: configured.source === "builtin" ? "this is a bug in opgate; please report it with the circuit file" : `fix the rule in ${configured.source}, or turn it off in the config`,
+      broken: true,
+    });
+  // Every report is checked against the results contract before it becomes a finding.
+  const fail = (scenario: string, f: unknown): void => {
+    const problems = failReportProblems(f);
+    if (problems.length > 0) return broken(scenario, `it reported a finding the results cannot hold: ${problems.join("; ")}`);
+    const r = f as FailReport;
+    keep({
+      kind: "fail",
+      subject: r.subject,
+      message: r.message,
+      measured: num(r.measured),
+      limit: num(r.limit),
+      unit: r.unit ?? null,
+      margin: marginOf(r.measured, r.limit, r.bound),
+      scenario,
+      order: order++,
+      ...(r.hint ? { hint: r.hint } : {}),
+      ...(r.pos ? { pos: { file: r.pos.file, line: r.pos.line, column: r.pos.column } } : {}),
+    });
+  };
+  const pass = (scenario: string, subject: unknown, p: unknown): void => {
+    const problems = passReportProblems(subject, p);
+    if (problems.length > 0) return broken(scenario, `it reported a pass the results cannot hold: ${problems.join("; ")}`);
+    const r = (p ?? {}) as PassReport;
+    keep({
+      kind: "pass",
+      subject: subject as string,
+      message: "",
+      measured: num(r.measured),
+      limit: num(r.limit),
+      unit: r.unit ?? null,
+      margin: marginOf(r.measured, r.limit, r.bound),
+      scenario,
+      order: order++,
+    });
+  };
+
+  if (isContained(rule)) {
+    // A team rule from a plugin: run in the plugin thread, one budget for all scenarios.
+    const outcome = await runContained(rule, analyses, options, budgetMs);
+    if (!outcome.ok) broken(analyses[0]?.scenario.id ?? "nominal", outcome.reason);
+    else {
+      for (const r of outcome.reports) {
+        if (r.kind === "fail") fail(r.scenario, r.report);
+        else pass(r.scenario, r.subject, r.report);
+      }
+      for (const e of outcome.errors) broken(e.scenario, e.reason);
+    }
+    return worst;
+  }
+
+  const budget = budgetMs ?? RULE_BUDGET_MS;
+  const deadline = Date.now() + budget;
   for (const analysis of analyses) {
     const scenario = analysis.scenario;
+    const left = deadline - Date.now();
+    if (left <= 0) {
+      broken(scenario.id, `it used up its ${budget / 1000} s budget for this circuit before this scenario`);
+      break;
+    }
     const view = { circuit: scenario.circuit, specs: scenario.circuit.specs, options, scenario };
     let open = true;
     const reporter: Reporter = {
       fail(f: FailReport) {
-        if (!open) return;
-        keep({
-          kind: "fail",
-          subject: String(f.subject),
-          message: String(f.message),
-          measured: num(f.measured),
-          limit: num(f.limit),
-          unit: f.unit ?? null,
-          margin: marginOf(f.measured, f.limit, f.bound),
-          scenario: scenario.id,
-          order: order++,
-          ...(f.hint ? { hint: f.hint } : {}),
-          ...(f.pos ? { pos: f.pos } : {}),
-        });
+        if (open) fail(scenario.id, f);
       },
-      pass(subject: string, p: PassReport = {}) {
-        if (!open) return;
-        keep({
-          kind: "pass",
-          subject: String(subject),
-          message: "",
-          measured: num(p.measured),
-          limit: num(p.limit),
-          unit: p.unit ?? null,
-          margin: marginOf(p.measured, p.limit, p.bound),
-          scenario: scenario.id,
-          order: order++,
-        });
+      pass(subject: string, p?: PassReport) {
+        if (open) pass(scenario.id, subject, p);
       },
     };
     const solve = analysis.solve;
@@ -272,21 +325,9 @@ async function runOne(
         : undefined;
     if (!work) continue;
     try {
-      await withTimeLimit(work, timeLimitMs, configured.source !== "builtin");
+      await withTimeLimit(work, Math.min(timeLimitMs, left), configured.source !== "builtin");
     } catch (err) {
-      keep({
-        kind: "fail",
-        subject: circuit.name,
-        message: `rule \`${rule.id}\` could not check circuit \`${circuit.name}\` in scenario ${scenario.id}: ${reasonOf(err)}`,
-        measured: null,
-        limit: null,
-        unit: null,
-        margin: null,
-        scenario: scenario.id,
-        order: order++,
-        hint: configured.source === "builtin" ? "this is a bug in opgate; please report it with the circuit file" : `fix the rule in ${configured.source}, or turn it off in the config`,
-        broken: true,
-      });
+      broken(scenario.id, reasonOf(err));
     } finally {
       open = false;
     }
@@ -314,7 +355,7 @@ export async function runRules(input: RunRulesInput): Promise<RuleResults> {
   for (const configured of rules) {
     if (configured.severity === "off") continue;
     const severity: Severity = configured.severity;
-    const outcomes = await runOne(configured, circuit, analyses, input.timeLimitMs ?? RULE_TIME_LIMIT_MS);
+    const outcomes = await runOne(configured, circuit, analyses, input.timeLimitMs ?? RULE_TIME_LIMIT_MS, input.budgetMs);
     for (const o of outcomes.values()) {
       if (o.kind === "pass") {
         passed.push({ rule: configured.rule.id, subject: o.subject, measured: o.measured, limit: o.limit, unit: o.unit, margin: o.margin, scenario: o.scenario });

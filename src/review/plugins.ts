@@ -1,15 +1,18 @@
 // Team rule plugins: modules in the user's repository (JavaScript, or TypeScript loaded through
 // tsx without a build step) whose default export is a rule or a list of rules — made with
 // `defineRule` from the `opgate` package, or plain objects of the same shape. Also assembles the
-// rules in play (built-in + plugins) with the config's severities and options.
-import { extname, relative } from "node:path";
-import { pathToFileURL } from "node:url";
+// rules in play (built-in + plugins) with the config's severities and options. Plugins are
+// imported, and their rules run, in a thread of their own (contain.ts, plugin-host.ts).
+import { statSync } from "node:fs";
+import { relative } from "node:path";
 import { BUILTIN_RULES } from "../../rules/index.js";
 import type { ResolvedConfig } from "./config-types.js";
 import { didYouMean } from "./did-you-mean.js";
 import { validateRuleOptions, type ConfiguredRule } from "./engine.js";
 import { ConfigError, problemAt, type ConfigProblem } from "./errors.js";
-import { describeValue, ruleShapeProblems, toRule, type Rule } from "./rule.js";
+import { containedRule, PluginHost } from "./contain.js";
+import type { WireExport } from "./contain-protocol.js";
+import type { Rule } from "./rule.js";
 
 export interface LoadedPlugin {
   /** Absolute path of the module. */
@@ -19,62 +22,83 @@ export interface LoadedPlugin {
   readonly rules: readonly Rule[];
 }
 
-const TYPESCRIPT = [".ts", ".mts"];
 /** Lines of a load error worth showing; the rest is usually a stack or a code frame. */
 const ERROR_LINES = 4;
 
-function loadError(err: unknown): string {
-  const text = err instanceof Error ? err.message : String(err);
+function loadError(text: string): string {
   return text.split("\n").filter((l) => l.trim() !== "").slice(0, ERROR_LINES).join(" | ");
 }
 
-async function importModule(path: string): Promise<Record<string, unknown>> {
-  const url = pathToFileURL(path).href;
-  if (TYPESCRIPT.includes(extname(path).toLowerCase())) {
-    // tsx costs ~50 ms to load: only a run with a TypeScript plugin pays for it.
-    const { tsImport } = await import("tsx/esm/api");
-    return (await tsImport(url, import.meta.url)) as Record<string, unknown>;
+/**
+ * One plugin thread per set of plugin files (same paths, same modification times) in this
+ * thread or process: every circuit of a run, and every context a test builds, shares it.
+ */
+const hosts = new Map<string, PluginHost>();
+
+function hostFor(paths: readonly string[]): PluginHost {
+  const key = paths
+    .map((p) => {
+      try {
+        const st = statSync(p);
+        return `${p}\0${st.mtimeMs}\0${st.size}`;
+      } catch {
+        return p;
+      }
+    })
+    .join("\n");
+  let host = hosts.get(key);
+  if (!host) {
+    host = new PluginHost(paths);
+    hosts.set(key, host);
   }
-  return (await import(url)) as Record<string, unknown>;
+  return host;
 }
 
-/** Imports every plugin of the config; throws one ConfigError listing every broken plugin. */
+/**
+ * Imports every plugin of the config in the plugin thread (contain.ts), within a deadline;
+ * throws one ConfigError listing every broken plugin. The rules returned run in that thread.
+ */
 export async function loadPlugins(config: ResolvedConfig): Promise<LoadedPlugin[]> {
+  if (config.plugins.length === 0) return [];
   const problems: ConfigProblem[] = [];
   const loaded: LoadedPlugin[] = [];
   const owner = new Map<string, string>([...BUILTIN_RULES.keys()].map((id) => [id, "the built-in rules"]));
-  for (const path of config.plugins) {
+  const host = hostFor(config.plugins);
+  let exports: readonly WireExport[];
+  try {
+    exports = await host.load();
+  } catch (err) {
+    const shown = config.plugins.map((p) => relative(config.root, p).split("\\").join("/") || p).join(", ");
+    throw new ConfigError({
+      file: shown,
+      message: `plugin ${shown} did not load: ${err instanceof Error ? err.message : String(err)}`,
+      hint: "a plugin's top level must finish promptly and must not end the process: move slow or waiting work into the rule",
+    });
+  }
+  for (const [pluginIndex, path] of config.plugins.entries()) {
     const shown = relative(config.root, path).split("\\").join("/") || path;
-    let mod: Record<string, unknown>;
-    try {
-      mod = await importModule(path);
-    } catch (err) {
-      const hint = /Cannot find (package|module) 'opgate'/.test(String(err))
+    const result = exports[pluginIndex]!;
+    if ("error" in result) {
+      const hint = /Cannot find (package|module) 'opgate'/.test(result.error)
         ? "install opgate in the repository (npm install --save-dev opgate), or export a plain rule object that needs no import"
-        : /Unexpected token 'export'|Cannot use import statement/.test(String(err))
+        : /Unexpected token 'export'|Cannot use import statement/.test(result.error)
           ? "this .js file is ESM but the package is CommonJS: rename it to .mjs, or add \"type\": \"module\" to package.json"
           : "fix the module so that it loads with node";
-      problems.push({ file: shown, message: `plugin ${shown} failed to load: ${loadError(err)}`, hint });
+      problems.push({ file: shown, message: `plugin ${shown} failed to load: ${loadError(result.error)}`, hint });
       continue;
     }
-    // tsx may wrap a CommonJS-style module as { default: { default: … } }.
-    let exported = mod.default;
-    if (exported && typeof exported === "object" && !Array.isArray(exported) && "default" in exported && !("id" in exported))
-      exported = (exported as { default: unknown }).default;
-    if (exported === undefined) {
+    if ("noDefault" in result) {
       problems.push({ file: shown, message: `plugin ${shown} has no default export`, hint: "end the module with `export default defineRule({ … })` or `export default [ruleA, ruleB]`" });
       continue;
     }
-    const values = Array.isArray(exported) ? exported : [exported];
     const rules: Rule[] = [];
-    for (const [i, value] of values.entries()) {
-      const which = Array.isArray(exported) ? ` (item ${i} of its default export)` : "";
-      const shape = ruleShapeProblems(value);
-      if (shape.length) {
-        problems.push({ file: shown, message: `plugin ${shown} exports something that is not a rule${which}: ${shape.join("; ")}`, hint: `got ${describeValue(value)}; see \`opgate init\` for an example rule` });
+    for (const [i, item] of result.items.entries()) {
+      const which = result.array ? ` (item ${i} of its default export)` : "";
+      if ("problems" in item) {
+        problems.push({ file: shown, message: `plugin ${shown} exports something that is not a rule${which}: ${item.problems.join("; ")}`, hint: `got ${item.described}; see \`opgate init\` for an example rule` });
         continue;
       }
-      const rule = toRule(value);
+      const rule = containedRule(item.meta, host, pluginIndex, i);
       const first = owner.get(rule.id);
       if (first) {
         problems.push({ file: shown, message: `plugin ${shown} defines rule \`${rule.id}\`, which ${first} already define${first.startsWith("the") ? "" : "s"}`, hint: "rule ids must be unique; give team rules a prefix such as `team/…`" });
