@@ -22,6 +22,8 @@ export type * from "./types.js";
  * one of its assumptions fails here, and the explanation names it.
  */
 export const AGREEMENT = 0.05;
+/** When no single assumption exceeds AGREEMENT, the shares above 0.5 % are named (smaller ones are rounding). */
+const SHARE_SHOWN = 0.005;
 
 const ohm = (r: number | null): string => (r === null ? "open" : formatSiPrefixed(r, "Ω", { significant: 3 }));
 const num = (v: number): string => String(Number(v.toPrecision(3))).replace("-", "−");
@@ -274,14 +276,22 @@ export function explainGain(circuit: Circuit, op: OperatingPoint, spec: GainSpec
       }
       // Whatever is left is not one of the hand method's named assumptions.
       const target = noRo ?? exactMid;
+      if (target && differs(corrected, target)) {
+        say(
+          "unexplained",
+          `with every correction above the formula gives ${num(corrected)} against ${num(target.re)} (exact, capacitors shorted, ro removed): the stage has a path the single-stage formula leaves out (feedback from output to input, or signal reaching the output around the device)`,
+        );
+      }
       if (reasons.length === 0) {
         // No single assumption is off by more than the agreement band: name the shares.
-        const shares = [
+        const shares: { code: Reason["code"]; what: string; share: number }[] = [
           { code: "bypass" as const, what: "capacitors at this frequency", share: view.kind === "frequency" && exactMid ? relative(exact, exactMid) : 0 },
           { code: "output-resistance" as const, what: "ro", share: exactMid && noRo ? relative(exactMid, noRo) : 0 },
           { code: "loading" as const, what: "loading by the other transistors", share: relative(formulaLoaded, formula.value) },
           { code: "unexplained" as const, what: "paths the formula leaves out", share: target ? relative(corrected, target) : 0 },
-        ].filter((x): x is { code: Reason["code"]; what: string; share: number } => x.share !== null && x.share > 0.005);
+        ]
+          .map((x) => ({ ...x, share: x.share ?? 0 }))
+          .filter((x) => x.share > SHARE_SHOWN);
         shares.sort((a, b) => b.share - a.share);
         if (shares.length > 0) {
           say(
@@ -289,11 +299,6 @@ export function explainGain(circuit: Circuit, op: OperatingPoint, spec: GainSpec
             `no single assumption is off by more than ${AGREEMENT * 100} %, but together they are: ${shares.map((x) => `${x.what} ${num(x.share * 100)} %`).join(", ")}`,
           );
         }
-      } else if (target && differs(corrected, target)) {
-        say(
-          "unexplained",
-          `with every correction above the formula gives ${num(corrected)} against ${num(target.re)} (exact, capacitors shorted, ro removed): the stage has a path the single-stage formula leaves out (feedback from output to input, or signal reaching the output around the device)`,
-        );
       }
     }
     stages.push({
