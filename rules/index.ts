@@ -1,10 +1,11 @@
 // The built-in rules: an explicit registry, sorted by id (a meta-test keeps it in step with the
 // files in this folder). No filesystem scanning.
 import type { OptionsOf, Rule } from "../src/review/rule.js";
+import bandEdges from "./band-edges.js";
+import bandFlatness from "./band-flatness.js";
 import capacitorPolarity from "./capacitor-polarity.js";
 import capacitorVoltage from "./capacitor-voltage.js";
 import coilDrive from "./coil-drive.js";
-import couplingAdequacy from "./coupling-adequacy.js";
 import deviceCurrent from "./device-current.js";
 import devicePower from "./device-power.js";
 import deviceRatings from "./device-ratings.js";
@@ -16,10 +17,11 @@ import solve from "./solve.js";
 import supplyBudget from "./supply-budget.js";
 
 export const BUILTIN_RULES: ReadonlyMap<string, Rule> = new Map<string, Rule>([
+  ["band-edges", bandEdges],
+  ["band-flatness", bandFlatness],
   ["capacitor-polarity", capacitorPolarity],
   ["capacitor-voltage", capacitorVoltage],
   ["coil-drive", coilDrive],
-  ["coupling-adequacy", couplingAdequacy],
   ["device-current", deviceCurrent],
   ["device-power", devicePower],
   ["device-ratings", deviceRatings],
@@ -37,7 +39,7 @@ export function builtinRules(): readonly Rule[] {
 
 // Option types of the built-in rules, derived from their schemas (defaults filled in).
 export type CapacitorVoltageOptions = OptionsOf<typeof capacitorVoltage>;
-export type CouplingAdequacyOptions = OptionsOf<typeof couplingAdequacy>;
+export type BandFlatnessOptions = OptionsOf<typeof bandFlatness>;
 export type DevicePowerOptions = OptionsOf<typeof devicePower>;
 export type HeadroomOptions = OptionsOf<typeof headroom>;
 export type ResistorPowerOptions = OptionsOf<typeof resistorPower>;

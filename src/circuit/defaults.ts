@@ -35,8 +35,12 @@ export const DEFAULT_BETA_EXPONENT = 1.5;
 export const DEFAULT_LAMBDA = 0;
 /** Body-effect coefficient γ: 0 (body effect off unless given). */
 export const DEFAULT_BODY_EFFECT = 0;
-/** 2φF: 0.6 V (common practice for a lightly doped silicon substrate). */
-export const DEFAULT_SURFACE_POTENTIAL_V = 0.6;
+/**
+ * Fermi potential φF of the substrate: 0.35 V. Textbook formula φF = (kT/q)·ln(NA/ni) with a
+ * lightly doped substrate NA = 1e16 cm⁻³ and silicon's intrinsic density ni ≈ 1e10 cm⁻³
+ * (textbook value; from memory) at 25 °C: 25.69 mV · ln(1e6) = 0.355 V, rounded; so 2φF ≈ 0.7 V.
+ */
+export const DEFAULT_FERMI_POTENTIAL_V = 0.35;
 /** d|Vt|/dT: −2 mV/K (common practice for silicon MOSFETs). */
 export const DEFAULT_THRESHOLD_TEMPCO_V_PER_K = -0.002;
 /** k'(T) ∝ (T/T0)^−1.5 (mobility falls with temperature; common practice). */

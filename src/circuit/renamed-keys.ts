@@ -5,6 +5,8 @@
 const RENAMED: Readonly<Record<string, readonly { readonly key: string; readonly note?: string }[]>> = {
   dc: [{ key: "voltage" }, { key: "current" }],
   ac: [{ key: "signal", note: "a peak amplitude used where a signal level matters; it no longer scales the gain" }],
+  surfacePotential: [{ key: "fermiPotential", note: "the Fermi potential φF, half the old value: 2φF = 0.6 V is φF = 0.3 V" }],
+  control: [{ key: "sense", note: "the id of any resistor, capacitor, inductor or source; the current through it from its first pin to its second" }],
 };
 
 /** A hint for an old key when one of its replacements is allowed where it stands, else undefined. */

@@ -31,6 +31,22 @@ function deepFreeze<T>(value: T): T {
   return value;
 }
 
+/**
+ * Optional device-capacitance fields (absent by default: no capacitance unless given). A
+ * transit frequency must be positive; a capacitance may be 0 but not negative.
+ */
+function optionalPositive(ctx: ResolveContext, raw: Obj, path: PathSegment[], what: string, fields: readonly (readonly [string, Quantity])[]): Record<string, number> {
+  const out: Record<string, number> = {};
+  for (const [key, quantity] of fields) {
+    const v = readOptional(ctx, raw, key, path, quantity, what);
+    if (v === undefined) continue;
+    const ok = key === "transitFrequency" ? v > 0 && Number.isFinite(v) : v >= 0 && Number.isFinite(v);
+    if (!ok) ctx.error([...path, key], `${what}: ${key} must be ${key === "transitFrequency" ? "positive" : "zero or positive"} and finite`, "omit it for no capacitance");
+    else out[key] = v;
+  }
+  return out;
+}
+
 /** An optional `ratings:` block of a model: each key a positive magnitude in its quantity. */
 function readRatings<K extends string>(ctx: ResolveContext, raw: Obj, path: readonly PathSegment[], what: string, keys: readonly (readonly [K, Quantity])[]): { ratings?: Partial<Record<K, number>> } {
   if (raw["ratings"] === undefined) return {};
@@ -90,7 +106,8 @@ function diodeBreakdown(ctx: ResolveContext, raw: Obj, path: readonly PathSegmen
   return { breakdownVoltage: voltage, breakdown: { current, resistance, tempco } };
 }
 
-function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model | undefined {
+/** Resolves one model (of a circuit file or a model library); undefined after reporting errors in ctx. */
+export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model | undefined {
   const path: PathSegment[] = ["models", id];
   const what = `model ${id}`;
   const pos = ctx.pos(path, true);
@@ -126,8 +143,12 @@ function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model | undefi
     if (earlyVoltage.min <= 0) ctx.error([...path, "earlyVoltage"], `${what}: earlyVoltage must be a positive magnitude`, "write it without a sign, e.g. 90 V; omit it for no Early effect");
     if (beta.min <= 0) ctx.error([...path, "beta"], `${what}: beta must be positive`);
     if (saturationCurrent.min <= 0) ctx.error([...path, "saturationCurrent"], `${what}: saturationCurrent must be positive`);
+    const caps = optionalPositive(ctx, raw, path, what, [
+      ["transitFrequency", "frequency"],
+      ["baseCollectorCapacitance", "capacitance"],
+    ]);
     const ratings = readRatings(ctx, raw, path, what, [["collectorEmitter", "voltage"], ["collectorBase", "voltage"], ["emitterBase", "voltage"], ["collectorCurrent", "current"]] as const);
-    return { ...base, kind, beta, reverseBeta, saturationCurrent, earlyVoltage, saturationEdge, energyGap, saturationCurrentExponent, betaExponent, ...ratings };
+    return { ...base, kind, beta, reverseBeta, saturationCurrent, earlyVoltage, saturationEdge, energyGap, saturationCurrentExponent, betaExponent, ...caps, ...ratings };
   }
   if (kind === "nmos" || kind === "pmos") {
     const threshold = req("threshold", "voltage");
@@ -136,14 +157,15 @@ function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model | undefi
     const length = n("length", "length", NaN);
     const lambda = s("lambda", "per-volt", D.DEFAULT_LAMBDA);
     const bodyEffect = n("bodyEffect", "sqrt-volt", D.DEFAULT_BODY_EFFECT);
-    const surfacePotential = n("surfacePotential", "voltage", D.DEFAULT_SURFACE_POTENTIAL_V);
+    const fermiPotential = n("fermiPotential", "voltage", D.DEFAULT_FERMI_POTENTIAL_V);
     const thresholdTempco = n("thresholdTempco", "volt-per-kelvin", D.DEFAULT_THRESHOLD_TEMPCO_V_PER_K);
     const kPrimeExponent = n("kPrimeExponent", "dimensionless", D.DEFAULT_KPRIME_EXPONENT);
     if (!threshold || !kPrime || !lambda || width === undefined || length === undefined) return undefined;
-    if (bodyEffect === undefined || surfacePotential === undefined || thresholdTempco === undefined || kPrimeExponent === undefined) return undefined;
+    if (bodyEffect === undefined || fermiPotential === undefined || thresholdTempco === undefined || kPrimeExponent === undefined) return undefined;
     if (!(width > 0)) ctx.error([...path, "width"], `${what}: width must be positive`);
     if (!(length > 0)) ctx.error([...path, "length"], `${what}: length must be positive`);
     if (kPrime.min <= 0) ctx.error([...path, "kPrime"], `${what}: kPrime must be positive`);
+    if (!(fermiPotential > 0)) ctx.error([...path, "fermiPotential"], `${what}: fermiPotential φF must be positive`, "typical silicon substrates give 0.3–0.4 V");
     const wrongSign = kind === "nmos" ? threshold.typ < 0 : threshold.typ > 0;
     if (wrongSign) {
       const other = kind === "nmos" ? "a depletion-mode NMOS" : "a depletion-mode PMOS";
@@ -153,8 +175,13 @@ function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model | undefi
         `write ${-threshold.typ} V for an enhancement device; keep ${threshold.typ} V only if a depletion device is meant`,
       );
     }
+    const caps = optionalPositive(ctx, raw, path, what, [
+      ["gateSourceCapacitance", "capacitance"],
+      ["gateDrainCapacitance", "capacitance"],
+      ["oxideCapacitance", "capacitance-per-area"],
+    ]);
     const ratings = readRatings(ctx, raw, path, what, [["drainSource", "voltage"], ["gateSource", "voltage"], ["drainCurrent", "current"]] as const);
-    return { ...base, kind, threshold, kPrime, width, length, lambda, bodyEffect, surfacePotential, thresholdTempco, kPrimeExponent, ...ratings };
+    return { ...base, kind, threshold, kPrime, width, length, lambda, bodyEffect, fermiPotential, thresholdTempco, kPrimeExponent, ...caps, ...ratings };
   }
   return undefined;
 }
@@ -250,7 +277,7 @@ function resolveComponent(ctx: ResolveContext, raw: Obj, index: number): Compone
     case "ccvs": {
       const gain = readValue(ctx, raw["gain"], [...path, "gain"], raw["kind"] === "cccs" ? "gain" : "resistance", `${what} \`gain\``);
       if (gain === undefined) return undefined;
-      return { ...base, kind: raw["kind"], pins: { plus: pins["plus"]!, minus: pins["minus"]! }, control: String(raw["control"]), gain };
+      return { ...base, kind: raw["kind"], pins: { plus: pins["plus"]!, minus: pins["minus"]! }, sense: String(raw["sense"]), gain };
     }
     default:
       return undefined;
@@ -327,7 +354,7 @@ function resolveSpecs(ctx: ResolveContext, raw: Obj, ground: string): Specs {
 }
 
 /** Resolves a schema-valid tree. Returns the circuit (possibly with errors in ctx) — callers check ctx.errors. */
-export function resolveCircuit(ctx: ResolveContext, root: Obj): Circuit {
+export function resolveCircuit(ctx: ResolveContext, root: Obj, library: ReadonlyMap<string, Model> = new Map()): Circuit {
   ctx.parameters = resolveParameters(ctx, root["parameters"] as Obj | undefined);
   let temperature: number = D.DEFAULT_TEMPERATURE_K;
   if (root["temperature"] !== undefined) {
@@ -340,8 +367,15 @@ export function resolveCircuit(ctx: ResolveContext, root: Obj): Circuit {
     }
   }
   const ground = root["ground"] !== undefined ? String(root["ground"]) : D.DEFAULT_GROUND;
-  const models = new Map<string, Model>();
+  const models = new Map<string, Model>(library);
   for (const [id, m] of Object.entries(asObj(root["models"]))) {
+    const shared = library.get(id);
+    if (shared)
+      ctx.warn(
+        ["models", id],
+        `model \`${id}\` overrides the library model of the same id (${shared.pos.file}:${shared.pos.line})`,
+        "use the library's model, or give this one its own id if it is a different part",
+      );
     const model = resolveModel(ctx, id, asObj(m));
     if (model) models.set(id, model);
   }

@@ -1,6 +1,7 @@
 // Topology checks on a resolved circuit: ids, model references, DC paths to ground, loops of
 // voltage sources and DC shorts, nodes fed only by current sources, and spec references.
 import { shortestPath } from "./graph-path.js";
+import { isSensable, SENSED_KINDS_TEXT } from "./sense.js";
 import { didYouMean } from "./suggest.js";
 import type { Circuit, Component, InputError, SourcePos } from "./types.js";
 
@@ -93,9 +94,10 @@ export function checkTopology(circuit: Circuit): TopologyResult {
       }
     }
     if (c.kind === "cccs" || c.kind === "ccvs") {
-      const ctl = byId.get(c.control);
-      if (!ctl) errors.push({ ...at(c.pos), message: `component ${c.id}: control \`${c.control}\` is not a component in this file`, hint: didYouMean(c.control, [...byId.values()].filter((x) => x.kind === "voltage-source").map((x) => x.id)) ?? "name a voltage source; its current controls this source", parts: [c.id] });
-      else if (ctl.kind !== "voltage-source") errors.push({ ...at(c.pos), message: `component ${c.id}: control \`${c.control}\` is a ${ctl.kind}, not a voltage source`, hint: "put a 0 V voltage source in series where the current is sensed and name it", parts: [c.id, c.control] });
+      const sensed = byId.get(c.sense);
+      const candidates = [...byId.values()].filter(isSensable).map((x) => x.id);
+      if (!sensed) errors.push({ ...at(c.pos), message: `component ${c.id}: sense \`${c.sense}\` is not a component in this file`, hint: didYouMean(c.sense, candidates) ?? `name the ${SENSED_KINDS_TEXT} whose current controls this source`, parts: [c.id] });
+      else if (!isSensable(sensed)) errors.push({ ...at(c.pos), message: `component ${c.id}: sense \`${c.sense}\` is a ${sensed.kind}; a controlled source senses the current of a ${SENSED_KINDS_TEXT}`, hint: "sense a resistor in series with it instead", parts: [c.id, c.sense] });
     }
   }
 

@@ -136,13 +136,15 @@ export interface VoltageControlled extends ComponentBase {
 }
 
 /**
- * Current-controlled sources. The controlling current is the current delivered out of the
- * `plus` pin of the voltage source named by `control`. cccs output current as for vccs.
+ * Current-controlled sources. The controlling current is the current through the two-terminal
+ * part named by `sense`, from its first pin to its second (a→b; plus→minus; from→to). cccs
+ * output current as for vccs; ccvs: V(plus) − V(minus) = gain·I.
  */
 export interface CurrentControlled extends ComponentBase {
   readonly kind: "cccs" | "ccvs";
   readonly pins: { readonly plus: string; readonly minus: string };
-  readonly control: string;
+  /** Id of the sensed part (one of SENSED_KINDS in src/circuit/sense.ts). */
+  readonly sense: string;
   readonly gain: number;
 }
 
@@ -208,6 +210,10 @@ export interface BjtModel extends ModelBase {
   readonly saturationCurrentExponent: number; // default 3
   /** beta(T) = beta(T0)·(T/T0)^betaExponent; default 1.5 (common practice). */
   readonly betaExponent: number;
+  /** fT in Hz, giving the base–emitter capacitance Cπ = gm/(2π·fT) − Cμ; absent = no Cπ. */
+  readonly transitFrequency?: number;
+  /** Cμ in F; absent = none. */
+  readonly baseCollectorCapacitance?: number;
   readonly ratings?: BjtRatings;
 }
 
@@ -232,11 +238,18 @@ export interface MosfetModel extends ModelBase {
   readonly length: number; // m
   readonly lambda: Spread; // 1/V, default 0
   readonly bodyEffect: number; // γ in √V, default 0
-  readonly surfacePotential: number; // 2φF in V, default 0.6
+  /** Fermi potential φF of the substrate in V (the body-effect law uses 2φF); default 0.35 V. */
+  readonly fermiPotential: number;
   /** d|Vt|/dT in V/K (polarity-normalised), default −2 mV/K (common practice). */
   readonly thresholdTempco: number;
   /** k'(T) = k'(T0)·(T/T0)^kPrimeExponent; default −1.5 (mobility, common practice). */
   readonly kPrimeExponent: number;
+  /** Fixed gate–source capacitance (overlap, package) in F; absent = none. */
+  readonly gateSourceCapacitance?: number;
+  /** Fixed gate–drain capacitance (overlap, package) in F; absent = none. */
+  readonly gateDrainCapacitance?: number;
+  /** Gate oxide capacitance per area Cox in F/m²: adds the channel's share of W·L·Cox by region. */
+  readonly oxideCapacitance?: number;
   readonly ratings?: MosfetRatings;
 }
 
@@ -296,6 +309,12 @@ export interface CircuitRuleOverride {
   readonly pos: SourcePos;
 }
 
+/** A model library a circuit was resolved with: the file as messages name it and the SHA-256 of its bytes. */
+export interface LibraryUse {
+  readonly file: string;
+  readonly sha256: string;
+}
+
 export interface Circuit {
   readonly file: string;
   readonly name: string;
@@ -314,8 +333,10 @@ export interface Circuit {
   /** Non-fatal remarks from resolution (e.g. a PMOS with a positive threshold). */
   readonly warnings: readonly InputError[];
   readonly pos: SourcePos;
+  /** Model libraries the circuit was resolved with (config's first, then its own), in load order. */
+  readonly libraries?: readonly LibraryUse[];
 }
 
 export type LoadResult =
   | { readonly ok: true; readonly circuit: Circuit }
-  | { readonly ok: false; readonly errors: readonly InputError[] };
+  | { readonly ok: false; readonly errors: readonly InputError[]; readonly libraries?: readonly LibraryUse[] };

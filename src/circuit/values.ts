@@ -19,6 +19,7 @@ export type Quantity =
   | "per-volt"
   | "sqrt-volt"
   | "volt-per-kelvin"
+  | "capacitance-per-area"
   | "gain"
   | "dimensionless"
   /** Parameters: any unit is accepted and dropped (the value is in SI base units). */
@@ -46,6 +47,7 @@ const Q: Record<Exclude<Quantity, "any">, QuantityInfo> = {
   "per-volt": { units: ["1/V", "/V"], shown: "1/V" },
   "sqrt-volt": { units: ["√V", "V^0.5", "V^(1/2)"], shown: "√V" },
   "volt-per-kelvin": { units: ["V/K"], shown: "V/K" },
+  "capacitance-per-area": { units: ["F/m²", "F/m^2", "F/m2"], shown: "F/m² (5 fF/µm² is 5 mF/m²)" },
   gain: { units: ["V/V", "A/A", "dB"], shown: "V/V (or dB)" },
   dimensionless: { units: [], shown: "a plain number" },
 };

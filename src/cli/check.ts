@@ -18,7 +18,9 @@ import { renderSarif } from "../report/sarif.js";
 import { DocumentError, readDocument } from "../report/validate.js";
 import { makeCheckContext } from "../run/context.js";
 import { discover, DiscoveryError, type Discovery } from "../run/discover.js";
+import { configModels, defaultCacheDir, ResultCache, runKey } from "../run/cache.js";
 import { runCheck } from "../run/run-check.js";
+import { toolVersion } from "../run/version.js";
 import { parseShard, type Shard } from "../run/shard.js";
 import { CliExit, EXIT_INPUT, type CliIo } from "./io.js";
 import { checkOutputTargets, writeAtomically, type Input } from "./outputs.js";
@@ -193,6 +195,15 @@ function skippedLine(skipped: readonly string[]): string {
   return `opgate: skipped ${skipped.length} file${skipped.length === 1 ? "" : "s"} that ${skipped.length === 1 ? "is" : "are"} not circuit files (no \`format: opgate-circuit/…\`): ${shown}${more}\n`;
 }
 
+/** The result cache when --cache or --cache-dir asks for it. */
+function openCache(args: Record<string, unknown>, ctx: CheckContext, io: CliIo): ResultCache | undefined {
+  const dirFlag = args["cache-dir"];
+  if (dirFlag === "") throw new CliExit(EXIT_INPUT, "--cache-dir needs a folder");
+  if (args.cache !== true && typeof dirFlag !== "string") return undefined;
+  const dir = typeof dirFlag === "string" ? resolve(io.cwd, dirFlag) : defaultCacheDir(io.env);
+  return new ResultCache(dir, runKey(ctx, toolVersion(), configModels(ctx)));
+}
+
 export const checkCommand: CommandSpec = {
   command: "check [paths..]",
   describe: "Check circuit files (paths, folders or globs; default: the config's include globs)",
@@ -216,6 +227,8 @@ export const checkCommand: CommandSpec = {
         describe: "Under GitHub Actions, annotate findings and append the step summary (--no-annotations in shard jobs: merge does it once)",
       })
       .option("timestamp", { type: "boolean", default: false, describe: "Record the time in the results document (off: reproducible output)" })
+      .option("cache", { type: "boolean", default: false, describe: "Reuse results of unchanged files from the result cache (OPGATE_CACHE_DIR, else the user cache folder)" })
+      .option("cache-dir", { type: "string", describe: "Result cache folder (implies --cache; e.g. a CI cache directory)" })
       .example("$0 check examples", "Check every circuit file under examples/")
       .example("$0 check 'boards/**/*.yaml' --fail-on warning", "Fail on warnings too")
       .example("$0 check --json results.json --markdown report.md --sarif opgate.sarif", "Write the reports")
@@ -265,6 +278,7 @@ export const checkCommand: CommandSpec = {
       throw new CliExit(EXIT_INPUT, `no circuit files (.json, .yaml, .yml declaring format: opgate-circuit/…) match ${patterns.length ? patterns.join(" ") : ctx.config.include.join(" ")}`);
     }
 
+    const cache = openCache(args, ctx, io);
     // The bar is drawn on stderr: whether stderr is a terminal decides, not stdout.
     const showProgress = io.stderrIsTTY === true && io.env.CI !== "true" && !io.env.GITHUB_ACTIONS && files.length >= PROGRESS_MIN_FILES;
     const doc = await runCheck(files, {
@@ -276,8 +290,10 @@ export const checkCommand: CommandSpec = {
       ...(args.timestamp === true ? { timestamp: new Date().toISOString() } : {}),
       ...(showProgress ? { onProgress: progressWriter(io) } : {}),
       onNotice: (message) => io.stderr(`opgate: ${message}\n`),
+      ...(cache ? { cache } : {}),
     });
     if (showProgress) io.stderr("\n");
+    if (cache) io.stderr(`opgate: ${cache.summary()}\n`);
     if (shard && doc.circuits.length === 0) io.stderr(`opgate: shard ${shard.index}/${shard.count} has no files (${files.length} in all)\n`);
 
     const reportOptions: ReportOptions = baselineDoc ? { baseline: diffDocuments(baselineDoc, doc) } : {};

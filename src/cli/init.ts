@@ -38,7 +38,8 @@ rules:
   capacitor-voltage:
     options:
       fraction: 0.8 # of the voltage rating
-  coupling-adequacy: warning
+  band-edges: error
+  band-flatness: warning
   tidewater/divider-current: warning
 
 # Team rules: JavaScript (.js, .mjs) or TypeScript (.ts) modules whose default export is a rule.

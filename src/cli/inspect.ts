@@ -13,6 +13,7 @@ import { explainGains } from "../smallsignal/explain/index.js";
 import { jsonSafe } from "../pipeline/gain-extras.js";
 import { renderExplanationText } from "../report/explain-text.js";
 import { formatInputError } from "./check.js";
+import { loadConfig } from "../review/config.js";
 import { EXIT_CLEAN, EXIT_INPUT, type CliIo } from "./io.js";
 import type { CommandSpec } from "./main.js";
 
@@ -55,7 +56,18 @@ export const inspectCommand: CommandSpec = {
     const file = String(args.file);
     const abs = resolve(io.cwd, file);
     const shown = relative(io.cwd, abs) || file;
-    const loaded = await loadCircuitFile(abs, { displayPath: shown });
+    // The repository's model libraries, as `check` uses them; a config that cannot be read is
+    // `check`'s business, so inspect then goes on without them (and says so).
+    let libraries: { path: string; shown: string }[] = [];
+    let root: string | undefined;
+    try {
+      const config = await loadConfig({ cwd: io.cwd });
+      root = config.root;
+      libraries = config.libraries.map((path) => ({ path, shown: relative(io.cwd, path) || path }));
+    } catch (err) {
+      io.stderr(`note: the repository config could not be read, so its model libraries are not used: ${err instanceof Error ? err.message.split("\n")[0] : String(err)}\n`);
+    }
+    const loaded = await loadCircuitFile(abs, { displayPath: shown, libraries, ...(root !== undefined ? { root } : {}) });
     if (!loaded.ok) {
       for (const e of loaded.errors) io.stderr(`${formatInputError(e)}\n`);
       return EXIT_INPUT;

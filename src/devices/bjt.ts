@@ -17,6 +17,7 @@ import {
   pinOffsets,
   terminal,
   volt,
+  type DeviceCapacitance,
   type DeviceInstance,
   type IterationState,
   type SetupContext,
@@ -264,4 +265,20 @@ export function bjtRegion(vbe: number, vbc: number, vce: number, saturationEdge:
   if (!be) return bc ? "reverse" : "cutoff";
   if (vce < saturationEdge) return "saturation";
   return "active";
+}
+
+/**
+ * The hybrid-π capacitances at the operating point (textbook: fT = gm / (2π·(Cπ + Cμ)), so
+ * Cπ = gm/(2π·fT) − Cμ). Each is absent unless the model gives it; Cπ is not negative (an fT
+ * too high for the given Cμ leaves Cπ at 0).
+ */
+export function bjtCapacitances(c: Bjt, model: BjtModel, point: BjtPoint): DeviceCapacitance[] {
+  const out: DeviceCapacitance[] = [];
+  const cmu = model.baseCollectorCapacitance ?? 0;
+  if (model.transitFrequency !== undefined && point.transconductance > 0) {
+    const cpi = point.transconductance / (2 * Math.PI * model.transitFrequency) - cmu;
+    if (cpi > 0) out.push({ device: c.id, between: "base–emitter", a: c.pins.base, b: c.pins.emitter, value: cpi });
+  }
+  if (cmu > 0) out.push({ device: c.id, between: "base–collector", a: c.pins.base, b: c.pins.collector, value: cmu });
+  return out;
 }

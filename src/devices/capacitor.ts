@@ -13,6 +13,7 @@ export function capacitor(c: Capacitor, ctx: SetupContext): DeviceInstance {
     nonlinear: false,
     dcLinks: [],
     voltageLinks: [],
+    sensed: { kind: "none" }, // open at DC: no current
     point(x): CapacitorPoint {
       return { kind: "capacitor", voltage: volt(x, a.index) - volt(x, b.index) };
     },

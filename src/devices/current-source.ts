@@ -15,6 +15,7 @@ export function currentSource(c: CurrentSource, ctx: SetupContext): DeviceInstan
     nonlinear: false,
     dcLinks: [],
     voltageLinks: [],
+    sensed: { kind: "constant", current: i },
     stampSource(b: Float64Array) {
       // KCL rows are currents leaving a node: +i leaves `from`, −i leaves `to`; moved to the RHS.
       addB(b, from.index, -i);

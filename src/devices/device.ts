@@ -21,10 +21,22 @@ export interface SetupContext {
   model(id: string): Model | undefined;
 }
 
-/** Second phase of setup: references between devices (a current-controlled source's control). */
+/**
+ * How the current through a sensed two-terminal part (first pin → second) is read from the
+ * unknowns: a conductance times its pin voltage difference (resistor), a branch unknown
+ * (inductor, voltage source), a constant (current source, at full source value) or nothing
+ * (capacitor: open at DC).
+ */
+export type SensedCurrent =
+  | { readonly kind: "conductance"; readonly a: number; readonly b: number; readonly g: number }
+  | { readonly kind: "branch"; readonly index: number }
+  | { readonly kind: "constant"; readonly current: number }
+  | { readonly kind: "none" };
+
+/** Second phase of setup: references between devices (what a current-controlled source senses). */
 export interface BindContext {
-  /** Branch unknown of the voltage source `id`, or undefined when `id` is not a voltage source. */
-  voltageSourceBranch(id: string): number | undefined;
+  /** How to read the current through part `id`, or undefined when it cannot be sensed. */
+  sensedCurrent(id: string): SensedCurrent | undefined;
 }
 
 /**
@@ -132,6 +144,8 @@ export interface DeviceInstance {
   readonly dcLinks: readonly (readonly [Terminal, Terminal])[];
   /** Terminal pairs joined by a branch that fixes their voltage difference (for source-loop diagnosis). */
   readonly voltageLinks: readonly (readonly [Terminal, Terminal])[];
+  /** Two-terminal parts a cccs/ccvs may sense: how their current (first pin → second) is read. */
+  readonly sensed?: SensedCurrent;
   /** Resolves references to other devices; returns an error sentence, or undefined. */
   bind?(ctx: BindContext): string | undefined;
   /** Constant matrix entries (linear devices), stamped once per plan. */
@@ -229,4 +243,20 @@ export class DeviceSetupError extends Error {
   ) {
     super(message);
   }
+}
+
+/**
+ * A small-signal capacitance of a device at its operating point, between two of its pin nodes.
+ * It is linear around the point and enters every frequency-domain result; midband views treat
+ * it as open (it sets the upper band edge).
+ */
+export interface DeviceCapacitance {
+  /** The device id. */
+  readonly device: string;
+  /** Which capacitance, in words: "base–emitter", "gate–drain". */
+  readonly between: string;
+  readonly a: string;
+  readonly b: string;
+  /** F, ≥ 0. */
+  readonly value: number;
 }

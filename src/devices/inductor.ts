@@ -17,6 +17,7 @@ export function inductor(c: Inductor, ctx: SetupContext): DeviceInstance {
     nonlinear: false,
     dcLinks: [[a, b]],
     voltageLinks: rs === 0 ? [[a, b]] : [],
+    sensed: { kind: "branch", index: br },
     stampStatic(m: StampTarget) {
       addA(m, a.index, br, 1);
       addA(m, b.index, br, -1);

@@ -22,6 +22,7 @@ import {
   pinOffsets,
   terminal,
   volt,
+  type DeviceCapacitance,
   type DeviceInstance,
   type IterationState,
   type SetupContext,
@@ -271,6 +272,29 @@ export function mosfet(c: Mosfet, ctx: SetupContext): DeviceInstance {
   const t = ctx.temperature;
   const vt0 = p * m.threshold.typ + m.thresholdTempco * (t - MODEL_TEMPERATURE);
   const beta = (powerLawAt(m.kPrime.typ, t, m.kPrimeExponent) * m.width) / m.length;
-  const phi2 = Math.max(m.surfacePotential, 0);
+  const phi2 = 2 * Math.max(m.fermiPotential, 0);
   return new MosInstance(c.id, c.kind, p, dr, gt, sr, bd, vt0, beta, m.lambda.typ, m.bodyEffect, phi2, Math.sqrt(phi2));
+}
+
+/**
+ * Gate capacitances at the operating point. The fixed parts (overlap, package) are the model's
+ * gateSourceCapacitance and gateDrainCapacitance; with oxideCapacitance the channel's share of
+ * W·L·Cox is added by region (textbook square-law values: saturation 2/3 to gate–source and
+ * none to gate–drain; triode half to each; cutoff none, the gate–body part being neglected).
+ */
+export function mosCapacitances(c: Mosfet, model: MosfetModel, point: MosPoint): DeviceCapacitance[] {
+  let cgs = model.gateSourceCapacitance ?? 0;
+  let cgd = model.gateDrainCapacitance ?? 0;
+  if (model.oxideCapacitance !== undefined) {
+    const channel = model.width * model.length * model.oxideCapacitance;
+    if (point.region === "saturation") cgs += (2 / 3) * channel;
+    else if (point.region === "triode") {
+      cgs += channel / 2;
+      cgd += channel / 2;
+    }
+  }
+  const out: DeviceCapacitance[] = [];
+  if (cgs > 0) out.push({ device: c.id, between: "gate–source", a: c.pins.gate, b: c.pins.source, value: cgs });
+  if (cgd > 0) out.push({ device: c.id, between: "gate–drain", a: c.pins.gate, b: c.pins.drain, value: cgd });
+  return out;
 }

@@ -1,7 +1,7 @@
 // Resistor: a constant conductance between its two pins.
 import type { Resistor } from "../circuit/types.js";
 import type { ResistorPoint } from "../solve/types.js";
-import { DeviceSetupError, NO_LINKS, stampConductance, terminal, volt, type DeviceInstance, type SetupContext, type StampTarget, type Terminal } from "./device.js";
+import { DeviceSetupError, NO_LINKS, stampConductance, terminal, volt, type DeviceInstance, type SensedCurrent, type SetupContext, type StampTarget, type Terminal } from "./device.js";
 
 /**
  * A class, not an object of closures: a plan builds one per resistor on every solve, and
@@ -23,6 +23,10 @@ class ResistorInstance implements DeviceInstance {
     const pins: readonly [Terminal, Terminal] = [a, b];
     this.terminals = pins;
     this.dcLinks = [pins];
+  }
+  /** A getter, so a plan that senses no resistor allocates nothing for it. */
+  get sensed(): SensedCurrent {
+    return { kind: "conductance", a: this.a.index, b: this.b.index, g: this.g };
   }
   stampStatic(m: StampTarget): void {
     stampConductance(m, this.a.index, this.b.index, this.g);

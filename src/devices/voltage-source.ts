@@ -4,12 +4,7 @@ import type { VoltageSource } from "../circuit/types.js";
 import type { SourcePoint } from "../solve/types.js";
 import { addA, addB, terminal, volt, type DeviceInstance, type SetupContext, type StampTarget } from "./device.js";
 
-export interface VoltageSourceInstance extends DeviceInstance {
-  /** Branch unknown (current plus → minus inside the source). */
-  readonly branchIndex: number;
-}
-
-export function voltageSource(c: VoltageSource, ctx: SetupContext): VoltageSourceInstance {
+export function voltageSource(c: VoltageSource, ctx: SetupContext): DeviceInstance {
   const plus = terminal(ctx, "plus", c.pins.plus);
   const minus = terminal(ctx, "minus", c.pins.minus);
   const br = ctx.branch(c.id);
@@ -17,7 +12,8 @@ export function voltageSource(c: VoltageSource, ctx: SetupContext): VoltageSourc
   return {
     id: c.id,
     kind: c.kind,
-    branchIndex: br,
+    // Sensed current plus → minus through the source: the branch unknown itself.
+    sensed: { kind: "branch", index: br },
     terminals: [plus, minus],
     nonlinear: false,
     dcLinks: [[plus, minus]],

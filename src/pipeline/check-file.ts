@@ -5,7 +5,8 @@ import type { ResolvedConfig } from "../review/config-types.js";
 import type { ConfiguredRule } from "../review/engine.js";
 import { runRules } from "../review/engine.js";
 import { loadCircuitFile } from "../circuit/index.js";
-import type { Circuit, InputError } from "../circuit/types.js";
+import type { Circuit, InputError, LibraryUse } from "../circuit/types.js";
+import { relative, sep } from "node:path";
 import { solveOperatingPoint } from "../solve/index.js";
 import { analyseSmallSignal } from "../smallsignal/index.js";
 import { buildScenarios } from "../variation/index.js";
@@ -51,7 +52,8 @@ export function inputErrorFindings(errors: readonly InputError[], file: string):
     unit: null,
     margin: null,
     scenario: "nominal",
-    file,
+    // An error inside a model library is reported at the library's own file.
+    file: e.file || file,
     line: e.line ?? 1,
     column: e.column ?? 1,
     ...(e.hint ? { hint: e.hint } : {}),
@@ -65,8 +67,18 @@ export function fileWarningFindings(warnings: readonly InputError[], file: strin
 
 export const FILE_WARNING_RULE = "file-warning";
 
-function errorResult(file: string, name: string | null, findings: Finding[]): CircuitResult {
-  return { file, name, status: "error", operatingPoint: null, gains: [], scenarios: [], findings, passed: [] };
+function errorResult(file: string, name: string | null, findings: Finding[], libraries?: readonly LibraryUse[]): CircuitResult {
+  return { file, name, status: "error", operatingPoint: null, gains: [], scenarios: [], findings, passed: [], ...librariesEntry(libraries) };
+}
+
+/** The results document's record of the model libraries a circuit used (absent when none). */
+function librariesEntry(libraries: readonly LibraryUse[] | undefined): { libraries?: LibraryUse[] } {
+  return libraries?.length ? { libraries: libraries.map((l) => ({ file: l.file, sha256: l.sha256 })) } : {};
+}
+
+/** The config's libraries as a circuit load takes them: absolute path and the repository-relative name. */
+export function configLibraries(ctx: CheckContext): { path: string; shown: string }[] {
+  return (ctx.config.libraries ?? []).map((path) => ({ path, shown: relative(ctx.root, path).split(sep).join("/") }));
 }
 
 /** Solves and linearises one scenario; a throw inside a stage becomes a solve failure, not a crash. */
@@ -107,12 +119,13 @@ export async function checkCircuit(circuit: Circuit, ctx: CheckContext, displayP
     scenarios: analyses.map((a) => ({ id: a.scenario.id, label: a.scenario.label, converged: a.solve.ok })),
     findings: located,
     passed,
+    ...librariesEntry(circuit.libraries),
   };
 }
 
 export async function checkFile(absPath: string, ctx: CheckContext, displayPath: string): Promise<CircuitResult> {
-  const loaded = await loadCircuitFile(absPath, { displayPath });
-  if (!loaded.ok) return errorResult(displayPath, null, inputErrorFindings(loaded.errors, displayPath));
+  const loaded = await loadCircuitFile(absPath, { displayPath, root: ctx.root, libraries: configLibraries(ctx) });
+  if (!loaded.ok) return errorResult(displayPath, null, inputErrorFindings(loaded.errors, displayPath), loaded.libraries);
   try {
     return await checkCircuit(loaded.circuit, ctx, displayPath);
   } catch (err) {

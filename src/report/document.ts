@@ -123,6 +123,8 @@ export interface CircuitResult {
   readonly scenarios: readonly ScenarioEntry[];
   readonly findings: readonly Finding[];
   readonly passed: readonly PassedCheck[];
+  /** Model libraries the circuit was checked with: repository-relative file and SHA-256 of its bytes. */
+  readonly libraries?: readonly { readonly file: string; readonly sha256: string }[];
 }
 
 export interface RuleEntry {

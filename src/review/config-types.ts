@@ -21,6 +21,8 @@ export interface ResolvedConfig {
   readonly include: readonly string[];
   readonly exclude: readonly string[];
   readonly rules: Readonly<Record<string, RuleSetting>>;
+  /** Absolute paths of the model libraries every circuit uses, in the order listed. */
+  readonly libraries: readonly string[];
   /** Absolute paths of team rule modules, globs expanded, sorted. */
   readonly plugins: readonly string[];
   readonly failOn: Severity;

@@ -74,6 +74,7 @@ interface RawConfig {
   exclude?: string[];
   rules?: Record<string, RuleSeverity | { severity?: RuleSeverity; options?: Record<string, unknown> }>;
   plugins?: string[];
+  libraries?: string[];
   failOn?: Severity;
   variation?: { mode?: VariationSettings["mode"]; samples?: number; seed?: number; temperature?: { min: string | number; max: string | number } };
   outputs?: Record<string, string>;
@@ -159,6 +160,12 @@ export async function loadConfig(options: LoadConfigOptions): Promise<ResolvedCo
   }
 
   const plugins = await expandPlugins(raw.plugins ?? [], root, doc, problems);
+  const libraries = (raw.libraries ?? []).map((entry, i) => {
+    const path = resolve(root, entry);
+    if (!existsSync(path) || !statSync(path).isFile())
+      problems.push(problemAt(positionOf(doc, ["libraries", i]), doc.file, `model library \`${entry}\` does not exist (relative to ${relativeOr(process.cwd(), root) || "."})`, "library paths are relative to the config file's folder; `opgate init` writes a starter lib/parts.yaml"));
+    return path;
+  });
 
   let variation: VariationSettings = { ...DEFAULT_VARIATION, ...pick(raw.variation, ["mode", "samples", "seed"]) };
   if (raw.variation?.temperature) {
@@ -183,6 +190,7 @@ export async function loadConfig(options: LoadConfigOptions): Promise<ResolvedCo
     exclude: [...DEFAULT_EXCLUDE, ...(raw.exclude ?? [])],
     rules,
     plugins,
+    libraries,
     failOn: raw.failOn ?? "error",
     variation,
     outputs,
@@ -197,7 +205,7 @@ function pick<T extends object, K extends keyof T>(obj: T | undefined, keys: rea
 
 /** The config that applies when the repository has none. */
 export function defaultConfig(cwd: string): ResolvedConfig {
-  return freezeConfig({ file: null, root: resolve(cwd), include: [...DEFAULT_INCLUDE], exclude: [...DEFAULT_EXCLUDE], rules: {}, plugins: [], failOn: "error", variation: DEFAULT_VARIATION, outputs: {} });
+  return freezeConfig({ file: null, root: resolve(cwd), include: [...DEFAULT_INCLUDE], exclude: [...DEFAULT_EXCLUDE], rules: {}, plugins: [], libraries: [], failOn: "error", variation: DEFAULT_VARIATION, outputs: {} });
 }
 
 function freezeConfig(c: ResolvedConfig): ResolvedConfig {

@@ -26,4 +26,4 @@ export { ConfigError, formatConfigProblem } from "./errors.js";
 export type { ConfigProblem } from "./errors.js";
 export { defaultOptions, resolveOptions } from "./options.js";
 export { BUILTIN_RULES, builtinRules } from "../../rules/index.js";
-export type { CapacitorVoltageOptions, CouplingAdequacyOptions, DevicePowerOptions, HeadroomOptions, ResistorPowerOptions } from "../../rules/index.js";
+export type { CapacitorVoltageOptions, BandFlatnessOptions, DevicePowerOptions, HeadroomOptions, ResistorPowerOptions } from "../../rules/index.js";

@@ -3,20 +3,36 @@
 // source, controlled voltage source, capacitor and inductor. Every capacitor and inductor
 // keeps its branch in both views, so one matrix size (and one preallocated factoriser) serves
 // the midband solve and every frequency of a sweep:
-//   midband:      capacitor  V(a) − V(b) = 0      (short, exact and non-singular)
+//   midband:      capacitor  V(a) − V(b) = 0      (short, exact and non-singular), or
+//                            I = 0                (open: the view's `open` mask, for capacitors
+//                                                  that set the upper band edge)
 //                 inductor   I = 0                (open; its series resistance is irrelevant)
 //   frequency f:  capacitor  jωC·(V(a) − V(b)) − I = 0
 //                 inductor   V(a) − V(b) − (R + jωL)·I = 0
 // Independent sources are zeroed (voltage sources stay as 0 V branches, current sources are
 // open); the drive of a gain's input source goes in the right-hand side only, so one
 // factorisation serves every gain and the output-impedance test current.
-// Nonlinear devices are stamped from their `linear` admittance matrix, whatever their kind.
+// Nonlinear devices are stamped from their `linear` admittance matrix, whatever their kind;
+// their capacitances (Cπ, Cμ, Cgs, Cgd, when the model gives them) follow the circuit's
+// capacitors in the same list, without a branch: jωC between two nodes at a frequency, open
+// in every midband view.
 
 import type { Circuit, Component } from "../circuit/types.js";
 import type { OperatingPoint } from "../solve/types.js";
+import { SENSED_KINDS_TEXT } from "../circuit/sense.js";
+import { bjtCapacitances } from "../devices/bjt.js";
+import type { DeviceCapacitance } from "../devices/device.js";
+import { mosCapacitances } from "../devices/mosfet.js";
 import { ComplexLu } from "./complex-lu.js";
 
-export type View = { readonly kind: "midband" } | { readonly kind: "frequency"; readonly frequency: number };
+/**
+ * midband: every circuit capacitor short except those marked in `open` (indexed like
+ * `capacitors`); device capacitances always open. frequency: real impedances, with one
+ * capacitor's value optionally replaced (to find the value an edge needs).
+ */
+export type View =
+  | { readonly kind: "midband"; readonly open?: Uint8Array }
+  | { readonly kind: "frequency"; readonly frequency: number; readonly replace?: { readonly index: number; readonly value: number } };
 
 export const MIDBAND: View = { kind: "midband" };
 
@@ -35,9 +51,14 @@ interface VoltageBranch {
   readonly branch: number;
 }
 
-interface Reactive {
+export interface Reactive {
+  /** The capacitor's or inductor's id; for a device capacitance, the device's id. */
+  readonly id: string;
+  /** For a device capacitance: which one ("base–collector"); undefined for a circuit part. */
+  readonly between?: string;
   readonly a: number;
   readonly b: number;
+  /** Branch unknown; GROUND for a device capacitance (stamped as an admittance). */
   readonly branch: number;
   readonly value: number;
   /** Inductor winding resistance; 0 for capacitors. */
@@ -56,10 +77,21 @@ interface VoltageControlledStamp {
   readonly branch: number;
 }
 
-interface CurrentControlledStamp {
+/**
+ * The small-signal current through a sensed part, first pin → second: a conductance times its
+ * voltage (resistor), a branch current (capacitor: jωC·V, a short's current at midband;
+ * inductor; voltage source), or an independent current source's own signal, which is the drive
+ * when it is the gain's input and zero otherwise.
+ */
+export type SensedSignal =
+  | { readonly kind: "conductance"; readonly a: number; readonly b: number; readonly g: number }
+  | { readonly kind: "branch"; readonly index: number }
+  | { readonly kind: "source"; readonly id: string };
+
+export interface CurrentControlledStamp {
   readonly plus: number;
   readonly minus: number;
-  readonly control: number;
+  readonly sense: SensedSignal;
   readonly gain: number;
   /** Branch of a ccvs; -1 for a cccs. */
   readonly branch: number;
@@ -175,6 +207,20 @@ class Islands {
   }
 }
 
+/** The device's capacitances at its point, from its model (none unless the model gives them). */
+function deviceCapacitances(circuit: Circuit, c: Component, point: unknown): readonly DeviceCapacitance[] {
+  if (c.kind === "npn" || c.kind === "pnp") {
+    const model = circuit.models.get(c.model);
+    const p = point as { kind?: string };
+    if (model && (model.kind === "npn" || model.kind === "pnp") && (p.kind === "npn" || p.kind === "pnp")) return bjtCapacitances(c, model, point as Parameters<typeof bjtCapacitances>[2]);
+  } else if (c.kind === "nmos" || c.kind === "pmos") {
+    const model = circuit.models.get(c.model);
+    const p = point as { kind?: string };
+    if (model && (model.kind === "nmos" || model.kind === "pmos") && (p.kind === "nmos" || p.kind === "pmos")) return mosCapacitances(c, model, point as Parameters<typeof mosCapacitances>[2]);
+  }
+  return [];
+}
+
 /** Lays out the unknowns and compiles the stamps of every component; nothing is assembled yet. */
 export function buildNetwork(circuit: Circuit, op: OperatingPoint): BuildResult {
   // Unknown order decides the fill-in of the dense factorisation (it skips zeros): nodes with
@@ -224,6 +270,7 @@ export function buildNetwork(circuit: Circuit, op: OperatingPoint): BuildResult 
   const voltageControlled: VoltageControlledStamp[] = [];
   const currentControlled: CurrentControlledStamp[] = [];
   const devices: DeviceStamp[] = [];
+  const deviceCaps: Reactive[] = [];
 
   for (const c of circuit.components) {
     switch (c.kind) {
@@ -238,6 +285,7 @@ export function buildNetwork(circuit: Circuit, op: OperatingPoint): BuildResult 
       }
       case "capacitor":
         capacitors.push({
+          id: c.id,
           a: node(c.pins.a, c.id),
           b: node(c.pins.b, c.id),
           branch: branchOf(c.id),
@@ -248,6 +296,7 @@ export function buildNetwork(circuit: Circuit, op: OperatingPoint): BuildResult 
         break;
       case "inductor":
         inductors.push({
+          id: c.id,
           a: node(c.pins.a, c.id),
           b: node(c.pins.b, c.id),
           branch: branchOf(c.id),
@@ -274,15 +323,23 @@ export function buildNetwork(circuit: Circuit, op: OperatingPoint): BuildResult 
         break;
       case "cccs":
       case "ccvs": {
-        const control = branchIndex.get(c.control);
-        if (control === undefined) {
-          problem ??= `${c.id} is controlled by the current of \`${c.control}\`, which is not a voltage source`;
+        const sensed = circuit.components.find((x) => x.id === c.sense);
+        let sense: SensedSignal | undefined;
+        if (sensed?.kind === "resistor") {
+          const r = sensed.value.nominal;
+          if (r > 0 && Number.isFinite(r)) sense = { kind: "conductance", a: node(sensed.pins.a, c.id), b: node(sensed.pins.b, c.id), g: 1 / r };
+        } else if (sensed?.kind === "current-source") sense = { kind: "source", id: sensed.id };
+        else if (sensed && (sensed.kind === "capacitor" || sensed.kind === "inductor" || sensed.kind === "voltage-source")) {
+          sense = { kind: "branch", index: branchOf(sensed.id) };
+        }
+        if (sense === undefined) {
+          problem ??= `${c.id} senses the current of \`${c.sense}\`, which is not a ${SENSED_KINDS_TEXT} with a usable value`;
           break;
         }
         currentControlled.push({
           plus: node(c.pins.plus, c.id),
           minus: node(c.pins.minus, c.id),
-          control,
+          sense,
           gain: c.gain,
           branch: c.kind === "ccvs" ? branchOf(c.id) : GROUND,
         });
@@ -304,6 +361,10 @@ export function buildNetwork(circuit: Circuit, op: OperatingPoint): BuildResult 
         const pins = new Int32Array(n);
         for (let i = 0; i < n; i++) pins[i] = node(linear.pins[i] as string, c.id);
         devices.push({ id: c.id, pins, y: linear.y });
+        for (const dc of deviceCapacitances(circuit, c, point)) {
+          if (!(dc.value > 0) || dc.a === dc.b) continue;
+          deviceCaps.push({ id: c.id, between: dc.between, a: node(dc.a, c.id), b: node(dc.b, c.id), branch: GROUND, value: dc.value, resistance: 0, redundantShort: false });
+        }
       }
     }
   }
@@ -318,6 +379,7 @@ export function buildNetwork(circuit: Circuit, op: OperatingPoint): BuildResult 
   for (const v of voltageControlled) if (v.branch !== GROUND) loops.union(v.plus, v.minus);
   for (const v of currentControlled) if (v.branch !== GROUND) loops.union(v.plus, v.minus);
   for (const c of capacitors) c.redundantShort = !loops.union(c.a, c.b);
+  capacitors.push(...deviceCaps);
 
   const size = unknownNames.length;
   const scratch = scratchFor(size);
@@ -369,14 +431,27 @@ export function assemble(net: SmallSignalNetwork, view: View): void {
     stampBranchVoltage(v.branch, v.plus, v.minus);
   }
   const omega = view.kind === "frequency" ? 2 * Math.PI * view.frequency : 0;
-  for (const c of net.capacitors) {
+  const caps = net.capacitors;
+  for (let i = 0; i < caps.length; i++) {
+    const c = caps[i] as Reactive;
+    const value = view.kind === "frequency" && view.replace?.index === i ? view.replace.value : c.value;
+    if (c.branch === GROUND) {
+      // A device capacitance: an admittance jωC, nothing at midband.
+      if (view.kind === "midband") continue;
+      const b = omega * value;
+      add(c.a, c.a, 0, b);
+      add(c.b, c.b, 0, b);
+      add(c.a, c.b, 0, -b);
+      add(c.b, c.a, 0, -b);
+      continue;
+    }
     stampBranchKcl(c.a, c.b, c.branch);
     if (view.kind === "midband") {
-      if (c.redundantShort) add(c.branch, c.branch, 1);
+      if (c.redundantShort || view.open?.[i] === 1) add(c.branch, c.branch, 1);
       else stampBranchVoltage(c.branch, c.a, c.b);
     } else {
-      add(c.branch, c.a, 0, omega * c.value);
-      add(c.branch, c.b, 0, -omega * c.value);
+      add(c.branch, c.a, 0, omega * value);
+      add(c.branch, c.b, 0, -omega * value);
       add(c.branch, c.branch, -1);
     }
   }
@@ -404,17 +479,25 @@ export function assemble(net: SmallSignalNetwork, view: View): void {
     }
   }
   for (const f of net.currentControlled) {
-    // The controlling current is the one delivered out of the control source's plus pin,
-    // which is minus its branch current (the branch current flows into plus).
+    // I = the sensed current (first pin → second); a sensed source's drive goes in the
+    // right-hand side (see src/smallsignal/index.ts).
+    const s = f.sense;
     if (f.branch !== GROUND) {
-      // ccvs: V(plus) − V(minus) − gain·(−I_control) = 0.
+      // ccvs: V(plus) − V(minus) − gain·I = 0.
       stampBranchKcl(f.plus, f.minus, f.branch);
       stampBranchVoltage(f.branch, f.plus, f.minus);
-      add(f.branch, f.control, f.gain);
-    } else {
-      // cccs: gain·(−I_control) flows into node plus.
-      add(f.plus, f.control, f.gain);
-      add(f.minus, f.control, -f.gain);
+      if (s.kind === "branch") add(f.branch, s.index, -f.gain);
+      else if (s.kind === "conductance") stampBranchVoltage(f.branch, s.a, s.b, -f.gain * s.g);
+    } else if (s.kind === "branch") {
+      // cccs: gain·I flows into node plus (a current −gain·I leaving it).
+      add(f.plus, s.index, -f.gain);
+      add(f.minus, s.index, f.gain);
+    } else if (s.kind === "conductance") {
+      const k = f.gain * s.g;
+      add(f.plus, s.a, -k);
+      add(f.plus, s.b, k);
+      add(f.minus, s.a, k);
+      add(f.minus, s.b, -k);
     }
   }
   for (const d of net.devices) {
@@ -432,7 +515,9 @@ export function assemble(net: SmallSignalNetwork, view: View): void {
 
 function describeView(view: View): string {
   return view.kind === "midband"
-    ? "at midband (capacitors short, inductors open)"
+    ? view.open?.includes(1)
+      ? "at midband (coupling and bypass capacitors short, band-edge capacitors open, inductors open)"
+      : "at midband (capacitors short, inductors open)"
     : `at ${formatHz(view.frequency)}`;
 }
 
@@ -450,7 +535,10 @@ function explainSingular(net: SmallSignalNetwork, view: View, failedColumn: numb
   const islands = new Islands(nodeCount);
   for (const r of net.conductances) islands.union(r.a, r.b);
   for (const v of net.voltageSources) islands.union(v.plus, v.minus);
-  for (const c of net.capacitors) if (view.kind === "midband" || view.frequency > 0) islands.union(c.a, c.b);
+  net.capacitors.forEach((c, i) => {
+    const joins = view.kind === "midband" ? c.branch !== GROUND && view.open?.[i] !== 1 : view.frequency > 0;
+    if (joins) islands.union(c.a, c.b);
+  });
   if (view.kind === "frequency") for (const l of net.inductors) islands.union(l.a, l.b);
   for (const e of net.voltageControlled) if (e.branch !== GROUND) islands.union(e.plus, e.minus);
   for (const f of net.currentControlled) if (f.branch !== GROUND) islands.union(f.plus, f.minus);
@@ -481,7 +569,7 @@ function explainSingular(net: SmallSignalNetwork, view: View, failedColumn: numb
  * through other, zeroed, sources) is harmless: the ideal source wins, as at every frequency.
  * Returns the message for that gain, or null when the input is free.
  */
-export function midbandInputShort(net: SmallSignalNetwork, inputBranch: number): string | null {
+export function midbandInputShort(net: SmallSignalNetwork, inputBranch: number, open?: Uint8Array): string | null {
   const source = net.voltageSources.find((v) => v.branch === inputBranch);
   if (!source) return null;
   const islands = new Islands(net.nodeIndex.size);
@@ -490,13 +578,15 @@ export function midbandInputShort(net: SmallSignalNetwork, inputBranch: number):
   for (const f of net.currentControlled) if (f.branch !== GROUND) islands.union(f.plus, f.minus);
   const plus = islands.find(source.plus);
   const minus = islands.find(source.minus);
-  const across = net.capacitors.map((c) => {
+  const shorted = (i: number): boolean => (net.capacitors[i] as Reactive).branch !== GROUND && open?.[i] !== 1;
+  const across = net.capacitors.map((c, i) => {
+    if (!shorted(i)) return false;
     const a = islands.find(c.a);
     const b = islands.find(c.b);
     return (a === plus && b === minus) || (a === minus && b === plus);
   });
   net.capacitors.forEach((c, i) => {
-    if (!across[i]) islands.union(c.a, c.b);
+    if (shorted(i) && !across[i]) islands.union(c.a, c.b);
   });
   if (islands.find(source.plus) !== islands.find(source.minus)) return null;
   const id = net.unknownNames[inputBranch] ?? "the input";

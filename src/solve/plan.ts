@@ -10,7 +10,7 @@ import { diode } from "../devices/diode.js";
 import { inductor } from "../devices/inductor.js";
 import { mosfet } from "../devices/mosfet.js";
 import { resistor } from "../devices/resistor.js";
-import { voltageSource, type VoltageSourceInstance } from "../devices/voltage-source.js";
+import { voltageSource } from "../devices/voltage-source.js";
 import { scratchFloat64, scratchInt32, scratchUint8 } from "./scratch.js";
 
 export type UnknownKind = "node" | "internal" | "branch";
@@ -147,19 +147,19 @@ export function compilePlan(circuit: Circuit, storage: MatrixStorage = "auto"): 
     model: (id) => circuit.models.get(id),
   };
   const devices: DeviceInstance[] = [];
-  const vsources = new Map<string, VoltageSourceInstance>();
+  const byId = new Map<string, DeviceInstance>();
   try {
     for (const c of circuit.components) {
       const d = instantiate(c, ctx);
       devices.push(d);
-      if (c.kind === "voltage-source") vsources.set(c.id, d as VoltageSourceInstance);
+      byId.set(c.id, d);
     }
   } catch (err) {
     if (err instanceof DeviceSetupError) return { ok: false, reason: err.message, parts: err.parts };
     throw err;
   }
   for (const d of devices) {
-    const msg = d.bind?.({ voltageSourceBranch: (id) => vsources.get(id)?.branchIndex });
+    const msg = d.bind?.({ sensedCurrent: (id) => byId.get(id)?.sensed });
     if (msg !== undefined) return { ok: false, reason: msg, parts: [d.id] };
   }
   const n = unknowns.length;

@@ -47,7 +47,7 @@ const CORPUS: Record<string, [RegExp, boolean]> = {
   "cyclic-parameters.yaml": [/parameters form a cycle: a → b → c → a/, true],
   "unknown-parameter.yaml": [/unknown parameter `rLaod`/, true],
   "wrong-format.yaml": [/`format` must be `opgate-circuit\/1`/, true],
-  "control-not-voltage-source.yaml": [/control `R1` is a resistor, not a voltage source/, true],
+  "sense-not-two-terminal.yaml": [/sense `D1` is a diode; a controlled source senses the current of a resistor, capacitor, inductor, voltage-source or current-source/, true],
   "spread-out-of-order.yaml": [/range \{min: 300, typ: 200, max: 400\} is out of order/, true],
   "ground-unconnected.yaml": [/no component connects to the ground node `gnd`.*ground: 0/, true],
   "not-a-mapping.yaml": [/must be a mapping/, true],
@@ -58,6 +58,8 @@ const CORPUS: Record<string, [RegExp, boolean]> = {
   "old-key-dc.yaml": [/unknown key `dc` in component V1.*`dc` is now `voltage`/, true],
   "old-key-dc-current.yaml": [/unknown key `dc` in component I1.*`dc` is now `current`/, true],
   "old-key-ac.yaml": [/unknown key `ac` in component V1.*`ac` is now `signal`/, true],
+  "old-key-surface-potential.yaml": [/unknown key `surfacePotential` in model n1.*`surfacePotential` is now `fermiPotential` \(the Fermi potential φF, half the old value/, true],
+  "old-key-control.yaml": [/unknown key `control` in component F1.*`control` is now `sense`/, true],
   "signal-negative.yaml": [/component V1: the signal amplitude must be positive/, true],
 };
 

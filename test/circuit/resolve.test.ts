@@ -33,7 +33,7 @@ describe("defaults (DESIGN.md section 3)", () => {
     const m = c.models.get("n") as MosfetModel;
     expect(m.lambda.typ).toBe(D.DEFAULT_LAMBDA);
     expect(m.bodyEffect).toBe(0);
-    expect(m.surfacePotential).toBe(0.6);
+    expect(m.fermiPotential).toBe(0.35); // φF = VT·ln(NA/ni), src/circuit/defaults.ts
     expect(m.thresholdTempco).toBe(-0.002);
     expect(m.kPrimeExponent).toBe(-1.5);
     expect(m.width).toBeCloseTo(10e-6, 15);

@@ -38,10 +38,10 @@ describe("schemas/circuit.schema.json", () => {
     const props = (k: string) => Object.keys(defs[`model-${k}`]!["properties"] as Json).sort();
     const base = ["description", "kind", "powerRating", "ratings"];
     expect(props("diode")).toEqual([...base, "saturationCurrent", "forward", "breakdown", "ideality", "seriesResistance", "energyGap", "saturationCurrentExponent"].sort());
-    const bjt = [...base, "beta", "reverseBeta", "saturationCurrent", "earlyVoltage", "saturationEdge", "energyGap", "saturationCurrentExponent", "betaExponent"].sort();
+    const bjt = [...base, "beta", "reverseBeta", "saturationCurrent", "earlyVoltage", "saturationEdge", "energyGap", "saturationCurrentExponent", "betaExponent", "transitFrequency", "baseCollectorCapacitance"].sort();
     expect(props("npn")).toEqual(bjt);
     expect(props("pnp")).toEqual(bjt);
-    const mos = [...base, "threshold", "kPrime", "width", "length", "lambda", "bodyEffect", "surfacePotential", "thresholdTempco", "kPrimeExponent"].sort();
+    const mos = [...base, "threshold", "kPrime", "width", "length", "lambda", "bodyEffect", "fermiPotential", "thresholdTempco", "kPrimeExponent", "gateSourceCapacitance", "gateDrainCapacitance", "oxideCapacitance"].sort();
     expect(props("nmos")).toEqual(mos);
     expect(props("pmos")).toEqual(mos);
   });

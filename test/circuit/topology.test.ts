@@ -46,9 +46,10 @@ describe("topology", () => {
     expect(errorsOf(yaml(base + "  - { id: Q1, kind: npn, model: smal-npn, pins: { collector: c, base: b, emitter: gnd } }\n", models))[0]!.hint).toBe("did you mean `small-npn`?");
     expect(errorsOf(yaml(base + "  - { id: Q1, kind: pnp, model: small-npn, pins: { collector: gnd, base: b, emitter: c } }\n", models))[0]!.message).toMatch(/Q1 is a pnp but model `small-npn` is of kind npn/);
   });
-  it("a current-controlled source must name a voltage source", () => {
-    expect(errorsOf(yaml(VCC + R("R1", "vcc", "gnd") + "  - { id: H1, kind: ccvs, pins: { plus: o, minus: gnd }, control: R1, gain: 1k }\n" + R("R2", "o", "gnd")))[0]!.message).toMatch(/control `R1` is a resistor, not a voltage source/);
-    expect(errorsOf(yaml(VCC + R("R1", "vcc", "gnd") + "  - { id: F1, kind: cccs, pins: { plus: o, minus: gnd }, control: V9, gain: 2 }\n" + R("R2", "o", "gnd")))[0]!.message).toMatch(/control `V9` is not a component/);
+  it("a current-controlled source must sense a two-terminal part that exists", () => {
+    expect(errorsOf(yaml(VCC + R("R1", "vcc", "gnd") + "  - { id: H1, kind: ccvs, pins: { plus: o, minus: gnd }, sense: E1, gain: 1k }\n  - { id: E1, kind: vcvs, pins: { plus: e, minus: gnd, controlPlus: vcc, controlMinus: gnd }, gain: 1 }\n" + R("R2", "o", "gnd") + R("R3", "e", "gnd")))[0]!.message).toMatch(/sense `E1` is a vcvs; a controlled source senses the current of a resistor, capacitor, inductor, voltage-source or current-source/);
+    expect(load(yaml(VCC + R("R1", "vcc", "gnd") + "  - { id: F1, kind: cccs, pins: { plus: o, minus: gnd }, sense: R1, gain: 2 }\n" + R("R2", "o", "gnd"))).components.at(-2)).toMatchObject({ kind: "cccs", sense: "R1" });
+    expect(errorsOf(yaml(VCC + R("R1", "vcc", "gnd") + "  - { id: F1, kind: cccs, pins: { plus: o, minus: gnd }, sense: V9, gain: 2 }\n" + R("R2", "o", "gnd")))[0]!.message).toMatch(/sense `V9` is not a component/);
   });
   it("spec references to missing parts and nodes, and a gain input that is not a source", () => {
     const base = VCC + R("R1", "vcc", "out") + R("R2", "out", "gnd");

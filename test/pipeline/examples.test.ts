@@ -36,7 +36,7 @@ describe("the example boards under the Tidewater policy (corners, −20…60 °C
     const r = await check("tide-gauge-preamp-rev-b.yaml");
     expect(r.status).toBe("fail");
     const rules = new Set(r.findings.map((f) => f.rule));
-    for (const rule of ["region", "headroom", "device-current", "gain-window", "resistor-power", "coupling-adequacy"]) expect(rules).toContain(rule);
+    for (const rule of ["region", "headroom", "device-current", "gain-window", "resistor-power", "band-edges"]) expect(rules).toContain(rule);
     const headroom = r.findings.find((f) => f.rule === "headroom")!;
     expect(headroom.measured).toBeLessThan(0);
     expect(headroom.margin).toBeLessThan(0);

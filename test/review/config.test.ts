@@ -41,7 +41,7 @@ include: ["boards/**/*.yaml"]
 exclude: ["boards/scratch/**"]
 failOn: warning
 rules:
-  coupling-adequacy: note
+  band-flatness: note
   headroom:
     severity: warning
     options: { bjt: 0.7 }
@@ -60,7 +60,7 @@ outputs: { junit: reports/junit.xml }
     expect(c.exclude).toContain("boards/scratch/**");
     expect(c.failOn).toBe("warning");
     expect(c.plugins).toEqual([join(repo, "team-rules", "stiff.ts")]);
-    expect(c.rules["coupling-adequacy"]).toMatchObject({ severity: "note" });
+    expect(c.rules["band-flatness"]).toMatchObject({ severity: "note" });
     expect(c.rules.headroom).toMatchObject({ severity: "warning", options: { bjt: 0.7 }, pos: { line: 7 }, optionsPos: { bjt: { line: 9 } } });
     // −20 °C = 253.15 K (SI: T/K = t/°C + 273.15); a bare number is kelvin.
     expect(c.variation.mode).toBe("corners");

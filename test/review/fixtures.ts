@@ -66,7 +66,7 @@ export function failure(reason: string, parts: string[] = [], nodes: string[] = 
 
 export function gain(name: string, judged: number, extra: Partial<GainResult> = {}): GainResult {
   const magnitude = Math.abs(judged);
-  return { name, midband: judged, magnitude, db: 20 * Math.log10(magnitude), points: [], judged, inputImpedance: 1e4, outputImpedance: 100, ...extra };
+  return { name, midband: judged, everyCapacitorShort: judged, openAtMidband: [], magnitude, db: 20 * Math.log10(magnitude), points: [], judged, inputImpedance: 1e4, outputImpedance: 100, ...extra };
 }
 
 export function small(gains: GainResult[], errors: SmallSignalResult["errors"] = []): SmallSignalResult {

@@ -46,7 +46,7 @@ export interface MosParams {
   length?: number;
   lambda?: number;
   bodyEffect?: number;
-  surfacePotential?: number;
+  fermiPotential?: number;
 }
 
 export function mosModel(id: string, kind: "nmos" | "pmos", p: MosParams = {}): MosfetModel {
@@ -60,7 +60,7 @@ export function mosModel(id: string, kind: "nmos" | "pmos", p: MosParams = {}): 
     length: p.length ?? 1e-6,
     lambda: spread(p.lambda ?? 0),
     bodyEffect: p.bodyEffect ?? 0,
-    surfacePotential: p.surfacePotential ?? 0.6,
+    fermiPotential: p.fermiPotential ?? 0.3,
     thresholdTempco: -2e-3,
     kPrimeExponent: -1.5,
   };
@@ -105,12 +105,12 @@ export class CircuitBuilder {
     this.components.push({ id, pos: POS, kind: "vccs", pins: { plus, minus, controlPlus, controlMinus }, gain });
     return this;
   }
-  cccs(id: string, plus: string, minus: string, control: string, gain: number): this {
-    this.components.push({ id, pos: POS, kind: "cccs", pins: { plus, minus }, control, gain });
+  cccs(id: string, plus: string, minus: string, sense: string, gain: number): this {
+    this.components.push({ id, pos: POS, kind: "cccs", pins: { plus, minus }, sense, gain });
     return this;
   }
-  ccvs(id: string, plus: string, minus: string, control: string, gain: number): this {
-    this.components.push({ id, pos: POS, kind: "ccvs", pins: { plus, minus }, control, gain });
+  ccvs(id: string, plus: string, minus: string, sense: string, gain: number): this {
+    this.components.push({ id, pos: POS, kind: "ccvs", pins: { plus, minus }, sense, gain });
     return this;
   }
   diode(id: string, anode: string, cathode: string, model: string): this {

@@ -15,8 +15,10 @@ describe("RC corners", () => {
     const c = circuit("tide-gauge-filter").vsource("VIN", "in", "gnd", 0, 1).resistor("R1", "in", "out", R).capacitor("C1", "out", "gnd", C).gain("lp", "VIN", "out").build();
     const s = sweepGain(c, op, "lp", { start: 1, stop: 1e6, points: 61 });
     expect(s.error).toBeUndefined();
-    // Midband (capacitor short) kills this output; the corner is relative to the passband.
-    expect(s.midband).toBe(0);
+    // Flat-band midband: C1 sets the upper edge, so it is open there and the gain is 1 (issue 14:
+    // a plain RC low-pass has the gain 1 at midband); the corner is relative to it.
+    expect(s.midband).toBe(1);
+    expect(s.reference).toBe(1);
     expect(s.lowCorner).toBeNull();
     expect(relErr(s.highCorner as number, fc)).toBeLessThan(1e-3);
     // Closed form |H| = 1/√(1+(f/fc)²) at every sweep point (handbook formula).
@@ -116,12 +118,35 @@ describe("controlled sources follow the conventions of src/circuit/types.ts", ()
     const c = circuit("g").vsource("VIN", "in", "gnd", 0, 1).vccs("G1", "out", "gnd", "in", "gnd", 2e-3).resistor("RL", "out", "gnd", 1e3).gain("g", "VIN", "out").build();
     expect(analyseSmallSignal(c, op).gains[0]!.midband).toBeCloseTo(2, 12);
   });
-  it("cccs and ccvs: controlled by the current delivered out of the control source's plus pin", () => {
-    // VIN delivers 1 V / 1 kΩ = 1 mA out of its plus pin.
-    const f = circuit("f").vsource("VIN", "in", "gnd", 0, 1).resistor("R0", "in", "gnd", 1e3).cccs("F1", "out", "gnd", "VIN", 10).resistor("RL", "out", "gnd", 1e3).gain("f", "VIN", "out").build();
+  it("cccs and ccvs: controlled by the current through the sensed part, first pin to second", () => {
+    // R0 carries 1 V / 1 kΩ = 1 mA from in to gnd; VIN carries −1 mA plus → minus (it delivers 1 mA).
+    const f = circuit("f").vsource("VIN", "in", "gnd", 0, 1).resistor("R0", "in", "gnd", 1e3).cccs("F1", "out", "gnd", "R0", 10).resistor("RL", "out", "gnd", 1e3).gain("f", "VIN", "out").build();
     expect(analyseSmallSignal(f, op).gains[0]!.midband).toBeCloseTo(10, 12);
     const h = circuit("h").vsource("VIN", "in", "gnd", 0, 1).resistor("R0", "in", "gnd", 1e3).ccvs("H1", "out", "gnd", "VIN", 500).resistor("RL", "out", "gnd", 1e3).gain("h", "VIN", "out").build();
-    expect(analyseSmallSignal(h, op).gains[0]!.midband).toBeCloseTo(0.5, 12);
+    expect(analyseSmallSignal(h, op).gains[0]!.midband).toBeCloseTo(-0.5, 12);
+    const hr = circuit("hr").vsource("VIN", "in", "gnd", 0, 1).resistor("R0", "in", "gnd", 2e3).ccvs("H1", "out", "gnd", "R0", 500).resistor("RL", "out", "gnd", 1e3).gain("h", "VIN", "out").build();
+    expect(analyseSmallSignal(hr, op).gains[0]!.midband).toBeCloseTo(0.25, 12);
+  });
+
+  it("sense a capacitor: jωC·V at a frequency; an inductor: V/(R + jωL) (impedance of C and L, handbook formulas)", () => {
+    const f0 = 1e3;
+    const w = 2 * Math.PI * f0;
+    const cap = circuit("fc").vsource("VIN", "in", "gnd", 0, 1).capacitor("C1", "in", "gnd", 1e-6).cccs("F1", "out", "gnd", "C1", 10).resistor("RL", "out", "gnd", 1e3).gain("c", "VIN", "out", "gnd", f0).build();
+    expect(relErr(Math.abs(analyseSmallSignal(cap, op).gains[0]!.judged), 10 * w * 1e-6 * 1e3)).toBeLessThan(1e-12);
+    const ind = circuit("fl").vsource("VIN", "in", "gnd", 0, 1).inductor("L1", "in", "gnd", 10e-3, 50).ccvs("H1", "out", "gnd", "L1", 100).resistor("RL", "out", "gnd", 1e3).gain("l", "VIN", "out", "gnd", f0).build();
+    const g = analyseSmallSignal(ind, op).gains[0]!;
+    expect(relErr(g.judged, 100 / Math.hypot(50, w * 10e-3))).toBeLessThan(1e-12); // real part > 0
+    // At midband the inductor is open: no current, no output.
+    expect(g.midband).toBeCloseTo(0, 15);
+  });
+
+  it("sense the gain's own current input: the drive is its current; any other current source is zeroed", () => {
+    const c = circuit("fi").isource("I1", "gnd", "in", 0, 1e-6).resistor("R0", "in", "gnd", 1e3).cccs("F1", "out", "gnd", "I1", 3).resistor("RL", "out", "gnd", 2e3)
+      .isource("I2", "gnd", "z", 1e-3).resistor("RZ", "z", "gnd", 1e3).ccvs("H2", "out2", "gnd", "I2", 100).resistor("R2", "out2", "gnd", 1e3)
+      .gain("fi", "I1", "out").gain("zero", "I1", "out2").build();
+    const r = analyseSmallSignal(c, op);
+    expect(r.gains[0]!.midband).toBeCloseTo(3 * 2e3, 9); // V/A: 3·1 A into 2 kΩ
+    expect(r.gains[1]!.midband).toBe(0);
   });
 });
 
@@ -134,15 +159,17 @@ describe("midband view and frequency points", () => {
     expect(r.gains[0]!.midband).toBeCloseTo(0.5, 14);
   });
 
-  it("judged uses the spec's own frequency, signed by the real part; points are ascending", () => {
+  it("judged uses the spec's own frequency, signed by the midband gain (not by the real part); points are ascending", () => {
     const R = 1e3;
     const C = 1e-6;
     const c = circuit("lp-at-f").vsource("VIN", "in", "gnd", 0, 1).resistor("R1", "in", "x", R).capacitor("C1", "x", "gnd", C).vcvs("E1", "out", "gnd", "x", "gnd", -2).gain("inv", "VIN", "out", "gnd", 100).band(10, 1e4).build();
     const g = analyseSmallSignal(c, op).gains[0]!;
     expect(g.points.map((p) => p.frequency)).toEqual([10, 100, 1e4]);
     const w = 2 * Math.PI * 100 * R * C;
-    expect(relErr(g.judged, -2 / Math.sqrt(1 + w * w))).toBeLessThan(1e-12); // |−2/(1+jωRC)|, re < 0
-    expect(g.midband).toBeCloseTo(0, 15); // midband shorts C1
+    expect(relErr(g.judged, -2 / Math.sqrt(1 + w * w))).toBeLessThan(1e-12); // |−2/(1+jωRC)|, inverting
+    expect(g.midband).toBeCloseTo(-2, 15); // flat band: C1 sets the upper edge and is open
+    expect(g.everyCapacitorShort).toBeCloseTo(0, 15); // the hand-analysis reference shorts it
+    expect(g.openAtMidband).toEqual(["C1"]);
   });
 });
 
@@ -196,8 +223,8 @@ describe("sweep reference and singular loops", () => {
       .gain("bp", "VIN", "out")
       .build();
     const s = sweepGain(c, op, "bp", { start: 0.1, stop: 1e10, points: 111 });
-    expect(s.midband).toBe(0); // C2 is shorted at midband
-    expect(s.reference).toBeGreaterThan(0.999);
+    expect(s.midband).toBe(1); // flat band: C1 short, C2 open
+    expect(s.reference).toBe(1);
     expect(relErr(s.lowCorner as number, 1 / (2 * Math.PI * R1 * C1))).toBeLessThan(1e-3);
     expect(relErr(s.highCorner as number, 1 / (2 * Math.PI * R2 * C2))).toBeLessThan(1e-3);
   });

@@ -30,7 +30,7 @@ export interface MosParams {
   length?: number;
   lambda?: number;
   bodyEffect?: number;
-  surfacePotential?: number;
+  fermiPotential?: number;
 }
 export interface DiodeParams {
   saturationCurrent?: number;
@@ -79,12 +79,12 @@ export class CircuitBuilder {
     this.components.push({ id, kind: "vccs", pos, pins: { plus, minus, controlPlus: cp, controlMinus: cm }, gain });
     return this;
   }
-  cccs(id: string, plus: string, minus: string, control: string, gain: number): this {
-    this.components.push({ id, kind: "cccs", pos, pins: { plus, minus }, control, gain });
+  cccs(id: string, plus: string, minus: string, sense: string, gain: number): this {
+    this.components.push({ id, kind: "cccs", pos, pins: { plus, minus }, sense, gain });
     return this;
   }
-  ccvs(id: string, plus: string, minus: string, control: string, gain: number): this {
-    this.components.push({ id, kind: "ccvs", pos, pins: { plus, minus }, control, gain });
+  ccvs(id: string, plus: string, minus: string, sense: string, gain: number): this {
+    this.components.push({ id, kind: "ccvs", pos, pins: { plus, minus }, sense, gain });
     return this;
   }
   diodeModel(id: string, p: DiodeParams = {}): this {
@@ -129,7 +129,7 @@ export class CircuitBuilder {
       length: p.length ?? 1e-6,
       lambda: spread(p.lambda ?? 0),
       bodyEffect: p.bodyEffect ?? 0,
-      surfacePotential: p.surfacePotential ?? 0.6,
+      fermiPotential: p.fermiPotential ?? 0.3,
       thresholdTempco: -2e-3,
       kPrimeExponent: -1.5,
     };

@@ -56,8 +56,8 @@ describe("unsolvable circuits", () => {
     expect(failed(solveOperatingPoint(circuit().v("V1", "a", "gnd", 1).r("R1", "a", "gnd", 0).build())).reason).toMatch(/R1 has value 0/);
     const c = circuit().diodeModel("d").v("V1", "a", "gnd", 1).r("R1", "a", "b", 1).q("Q1", "npn", "b", "b", "gnd", "d").build();
     expect(failed(solveOperatingPoint(c)).parts).toEqual(["Q1"]);
-    const h = circuit().v("V1", "a", "gnd", 1).r("R1", "a", "gnd", 1).ccvs("H1", "h", "gnd", "R1", 2).r("R2", "h", "gnd", 1).build();
-    expect(failed(solveOperatingPoint(h)).reason).toMatch(/H1 is controlled by `R1`, which is not a voltage source/);
+    const h = circuit().diodeModel("d").v("V1", "a", "gnd", 1).r("R1", "a", "k", 1).d("D1", "k", "gnd", "d").ccvs("H1", "h", "gnd", "D1", 2).r("R2", "h", "gnd", 1).build();
+    expect(failed(solveOperatingPoint(h)).reason).toMatch(/ccvs H1 senses `D1`, which is not a resistor, capacitor, inductor, voltage-source or current-source/);
   });
 });
 

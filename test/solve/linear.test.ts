@@ -82,7 +82,7 @@ describe("linear networks", () => {
       .r("RE", "e", "gnd", 1000)
       .vccs("G1", "g", "gnd", "in", "gnd", 1e-3)
       .r("RG", "g", "gnd", 2000)
-      .cccs("F1", "f", "gnd", "VIN", 3)
+      .cccs("F1", "f", "gnd", "RIN", 3)
       .r("RF", "f", "gnd", 100)
       .ccvs("H1", "h", "gnd", "VIN", 200)
       .r("RH", "h", "gnd", 1000)
@@ -92,8 +92,33 @@ describe("linear networks", () => {
     expect(iin).toBeCloseTo(0.5e-3, 15);
     expect(op.nodes.e).toBeCloseTo(2, 12);
     expect(op.nodes.g).toBeCloseTo(0.5e-3 * 2000, 12); // gain·Vc flows into node g
-    expect(op.nodes.f).toBeCloseTo(3 * iin * 100, 12);
-    expect(op.nodes.h).toBeCloseTo(200 * iin, 12);
+    // F1 senses RIN: V/R = 0.5 mA from its pin a (in) to pin b (gnd); 3·I flows into node f.
+    expect(op.nodes.f).toBeCloseTo(3 * 0.5e-3 * 100, 12);
+    // H1 senses VIN: the current through it plus → minus is −0.5 mA (it delivers +0.5 mA out of plus).
+    expect(op.nodes.h).toBeCloseTo(200 * -iin, 12);
+    expect(kclError(c, op).worst).toBeLessThan(1e-12);
+  });
+
+  it("sense: an inductor's branch current, a current source's value, a capacitor's zero at DC (Ohm's law, KCL)", () => {
+    const c = circuit()
+      .v("V1", "a", "gnd", 2)
+      .l("L1", "a", "b", 1e-3, 0)
+      .r("R1", "b", "gnd", 400) // 5 mA through L1, a → b
+      .i("I1", "gnd", "x", 2e-3) // 2 mA from gnd to x through I1
+      .r("RX", "x", "gnd", 1000)
+      .c("C1", "a", "gnd", 1e-6)
+      .cccs("FL", "fl", "gnd", "L1", 10)
+      .r("RFL", "fl", "gnd", 100)
+      .ccvs("HI", "hi", "gnd", "I1", 500)
+      .r("RHI", "hi", "gnd", 1000)
+      .cccs("FC", "fc", "gnd", "C1", 10)
+      .r("RFC", "fc", "gnd", 100)
+      .build();
+    const op = solved(solveOperatingPoint(c));
+    expect(op.nodes.fl).toBeCloseTo(10 * 5e-3 * 100, 12);
+    expect(op.nodes.hi).toBeCloseTo(500 * 2e-3, 12);
+    expect(op.nodes.fc).toBe(0);
+    expect((op.devices.FL as { current: number }).current).toBeCloseTo(10 * 5e-3, 15);
     expect(kclError(c, op).worst).toBeLessThan(1e-12);
   });
 });
