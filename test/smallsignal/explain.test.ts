@@ -262,7 +262,7 @@ specs:
     const { chains } = run(`format: opgate-circuit/1
 name: t
 models:
-  m1: { kind: nmos, threshold: 1 V, kPrime: 200u, width: 10 um, length: 1 um, bodyEffect: 0.8, surfacePotential: 0.35 V }
+  m1: { kind: nmos, threshold: 1 V, kPrime: 200u, width: 10 um, length: 1 um, bodyEffect: 0.8 }
 components:
   - { id: VDD, kind: voltage-source, pins: { plus: vdd, minus: gnd }, voltage: 12 V }
   - { id: VIN, kind: voltage-source, pins: { plus: in, minus: gnd }, voltage: 0 V }
