@@ -1,7 +1,8 @@
 // `opgate check`: the gate. Finds circuit files, checks them (on worker threads with --jobs,
 // one slice with --shard), prints a line per file and its findings, writes the requested
 // reports, annotates the pull request under GitHub Actions, and exits 0 / 1 / 2.
-import { appendFileSync, existsSync, readFileSync, statSync } from "node:fs";
+import { spawnSync } from "node:child_process";
+import { appendFileSync, existsSync, readFileSync, realpathSync, statSync } from "node:fs";
 import { availableParallelism } from "node:os";
 import { isAbsolute, relative, resolve, sep } from "node:path";
 import type { InputError } from "../circuit/types.js";
@@ -14,7 +15,7 @@ import type { ResultsDocument, Severity } from "../report/document.js";
 import { renderJson } from "../report/json.js";
 import { renderJunit } from "../report/junit.js";
 import { renderMarkdown, truncateMarkdown } from "../report/markdown.js";
-import { renderSarif } from "../report/sarif.js";
+import { renderSarif, type SarifOptions } from "../report/sarif.js";
 import { DocumentError, readDocument } from "../report/validate.js";
 import { makeCheckContext } from "../run/context.js";
 import { discover, DiscoveryError, type Discovery } from "../run/discover.js";
@@ -37,6 +38,33 @@ type Format = (typeof FORMATS)[number];
 
 export interface ReportOptions {
   readonly baseline?: BaselineDiff;
+  readonly sarif?: SarifOptions;
+}
+
+/**
+ * SARIF locations are resolved from the repository root: GITHUB_WORKSPACE under Actions, else the
+ * git top level of `root`, else `root` itself. Returns the path of `root` (the folder the results
+ * document's paths are relative to) from there, and the repository's web address at this commit
+ * when the CI environment names it (team rules' help links point at their source there).
+ */
+export function sarifOptionsFor(root: string, env: CliIo["env"]): SarifOptions {
+  let repository = env.GITHUB_WORKSPACE;
+  if (!repository) {
+    const git = spawnSync("git", ["rev-parse", "--show-toplevel"], { cwd: root, encoding: "utf8" });
+    repository = git.status === 0 ? git.stdout.trim() : root;
+  }
+  let rel = relative(realpathOr(repository), realpathOr(root)).split(sep).join("/");
+  if (rel.startsWith("..") || isAbsolute(rel)) rel = ""; // the root is outside the repository: keep paths as they are
+  const { GITHUB_SERVER_URL: server, GITHUB_REPOSITORY: repo, GITHUB_SHA: sha } = env;
+  return { rootFromRepository: rel, ...(server && repo && sha ? { repositoryBlobUri: `${server}/${repo}/blob/${sha}` } : {}) };
+}
+
+function realpathOr(path: string): string {
+  try {
+    return realpathSync(path);
+  } catch {
+    return path;
+  }
 }
 
 export function renderFormat(format: Format, doc: ResultsDocument, options: ReportOptions): string {
@@ -48,7 +76,7 @@ export function renderFormat(format: Format, doc: ResultsDocument, options: Repo
     case "markdown":
       return renderMarkdown(doc, options.baseline ? { baseline: options.baseline } : {});
     case "sarif":
-      return renderSarif(doc);
+      return renderSarif(doc, options.sarif ?? {});
   }
 }
 
@@ -90,14 +118,17 @@ export function writeCiOutputs(doc: ResultsDocument, io: CliIo, options: ReportO
   if (!summaryFile) return;
   const already = existsSync(summaryFile) ? statSync(summaryFile).size : 0;
   let markdown = renderMarkdown(doc, options.baseline ? { baseline: options.baseline } : {});
-  const room = STEP_SUMMARY_MAX_BYTES - already - 1;
+  // Earlier steps (or tools in this step) may have left a paragraph without a line end: starting
+  // with a blank line keeps our verdict from being glued to it (it would render with literal `**`).
+  const lead = "\n\n";
+  const room = STEP_SUMMARY_MAX_BYTES - already - lead.length - 1;
   if (Buffer.byteLength(markdown) > room) {
     // Characters are at most 4 bytes in UTF-8: cutting to room/4 characters always fits.
     markdown = truncateMarkdown(markdown, Math.max(0, Math.floor(room / 4)));
     if (Buffer.byteLength(markdown) > room) return;
   }
   try {
-    appendFileSync(summaryFile, `${markdown}\n`);
+    appendFileSync(summaryFile, `${lead}${markdown}\n`);
   } catch (err) {
     io.stderr(`opgate: cannot append to the step summary: ${err instanceof Error ? err.message : String(err)}\n`);
   }
@@ -144,10 +175,16 @@ function progressWriter(io: CliIo): (done: number, total: number) => void {
 }
 
 /** `--jobs N` as given, or (auto) one lane per core at most, added only where they pay (pool.ts). */
-function parseJobs(value: unknown): { jobs: number; auto: boolean } {
+function parseJobs(value: unknown, io: CliIo): { jobs: number; auto: boolean } {
   if (value === undefined) return { jobs: availableParallelism(), auto: true };
   const n = Number(value);
   if (!Number.isInteger(n) || n < 1) throw new CliExit(EXIT_INPUT, `--jobs ${String(value)}: expected a whole number of 1 or more`);
+  // More lanes than cores only add memory (each lane is a whole engine) and switching.
+  const cores = availableParallelism();
+  if (n > cores) {
+    io.stderr(`opgate: --jobs ${n} capped at ${cores}, the number of cores\n`);
+    return { jobs: cores, auto: false };
+  }
   return { jobs: n, auto: false };
 }
 
@@ -226,6 +263,7 @@ export const checkCommand: CommandSpec = {
         default: true,
         describe: "Under GitHub Actions, annotate findings and append the step summary (--no-annotations in shard jobs: merge does it once)",
       })
+      .option("strict", { type: "boolean", default: false, describe: "A matched .json/.yaml file that is not a circuit file (no format: opgate-circuit/…) is an error instead of skipped" })
       .option("timestamp", { type: "boolean", default: false, describe: "Record the time in the results document (off: reproducible output)" })
       .option("cache", { type: "boolean", default: false, describe: "Reuse results of unchanged files from the result cache (OPGATE_CACHE_DIR, else the user cache folder)" })
       .option("cache-dir", { type: "string", describe: "Result cache folder (implies --cache; e.g. a CI cache directory)" })
@@ -236,7 +274,7 @@ export const checkCommand: CommandSpec = {
       .example("$0 check --baseline main-results.json", "Show what changed against an earlier run")
       .example("$0 check --rule headroom=off --jobs 4", "Turn a rule off and use four threads"),
   handler: async (args, io: CliIo) => {
-    const { jobs, auto: autoJobs } = parseJobs(args.jobs);
+    const { jobs, auto: autoJobs } = parseJobs(args.jobs, io);
     let shard: Shard | undefined;
     if (typeof args.shard === "string") {
       const parsed = parseShard(args.shard);
@@ -273,7 +311,11 @@ export const checkCommand: CommandSpec = {
     }
     const files = found.files;
     checkOutputTargets(targets, runInputs(files, ctx, typeof args.baseline === "string" ? resolve(io.cwd, args.baseline) : undefined), io.cwd);
-    if (found.skipped.length > 0) io.stderr(skippedLine(found.skipped));
+    if (found.skipped.length > 0) {
+      if (args.strict === true || ctx.config.nonCircuitFiles === "error")
+        throw new CliExit(EXIT_INPUT, `${skippedLine(found.skipped).replace(/^opgate: skipped/, "found").trimEnd()} — ${args.strict === true ? "--strict" : "the config's nonCircuitFiles: error"} makes that an error: exclude them, or add \`format: opgate-circuit/1\` if they are circuits`);
+      io.stderr(skippedLine(found.skipped));
+    }
     if (files.length === 0) {
       throw new CliExit(EXIT_INPUT, `no circuit files (.json, .yaml, .yml declaring format: opgate-circuit/…) match ${patterns.length ? patterns.join(" ") : ctx.config.include.join(" ")}`);
     }
@@ -296,7 +338,10 @@ export const checkCommand: CommandSpec = {
     if (cache) io.stderr(`opgate: ${cache.summary()}\n`);
     if (shard && doc.circuits.length === 0) io.stderr(`opgate: shard ${shard.index}/${shard.count} has no files (${files.length} in all)\n`);
 
-    const reportOptions: ReportOptions = baselineDoc ? { baseline: diffDocuments(baselineDoc, doc) } : {};
+    const reportOptions: ReportOptions = {
+      ...(baselineDoc ? { baseline: diffDocuments(baselineDoc, doc) } : {}),
+      ...(targets.sarif ? { sarif: sarifOptionsFor(ctx.root, io.env) } : {}),
+    };
     const reportOnStdout = writeReports(doc, targets, io, reportOptions);
     const consoleText = renderConsole(doc, {
       color: colourEnabled(io.env, reportOnStdout ? io.stderrIsTTY === true : io.isTTY),

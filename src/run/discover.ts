@@ -85,12 +85,20 @@ function leavesRoot(pattern: string): boolean {
   return isAbsolute(pattern) || /^[A-Za-z]:/.test(pattern) || pattern.split(/[\\/]/).includes("..");
 }
 
+/**
+ * Files matching `patterns` under `cwd`. Links to folders are not followed (a link back to a
+ * parent folder would have the crawl go round until the system's link limit, re-reading the tree
+ * each time); a link to a file is taken, and de-duplicated by its real path by the caller.
+ */
 async function glob(patterns: string | readonly string[], cwd: string, ignore: readonly string[]): Promise<string[]> {
+  let entries: fg.Entry[];
   try {
-    return await fg(typeof patterns === "string" ? patterns : [...patterns], {
+    entries = await fg(typeof patterns === "string" ? patterns : [...patterns], {
       cwd,
       absolute: true,
-      onlyFiles: true,
+      onlyFiles: false,
+      objectMode: true,
+      followSymbolicLinks: false,
       dot: false,
       ignore: [...ignore],
       suppressErrors: false,
@@ -99,6 +107,18 @@ async function glob(patterns: string | readonly string[], cwd: string, ignore: r
     const path = (err as { path?: string }).path;
     throw new DiscoveryError(`cannot read ${path ? relative(cwd, path) || "." : cwd}: ${reason(err)}`);
   }
+  const files: string[] = [];
+  for (const e of entries) {
+    if (e.dirent.isFile()) files.push(e.path);
+    else if (e.dirent.isSymbolicLink()) {
+      try {
+        if (statSync(e.path).isFile()) files.push(e.path);
+      } catch {
+        // a link to nothing, or in a circle: not a file
+      }
+    }
+  }
+  return files;
 }
 
 /**
