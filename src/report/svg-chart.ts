@@ -122,7 +122,8 @@ function gainChart(g: GainEntry, top: number): { svg: string; height: number } {
   parts.push(
     `<rect x="${LEFT}" y="${fix(yHi)}" width="${fix(plotRight - LEFT)}" height="${fix(Math.max(0.5, yLo - yHi))}" class="mark window" data-min="${g.window.min}" data-max="${g.window.max}"><title>gain window ${g.window.min} … ${g.window.max} V/V</title></rect>`,
   );
-  parts.push(`<text x="${fix(plotRight - 4)}" y="${fix(yHi - 4)}" class="label window-label" text-anchor="end">window ${xmlEscape(`${g.window.min} … ${g.window.max} V/V`)}</text>`);
+  const v = (x: number): string => String(Number(x.toPrecision(3)));
+  parts.push(`<text x="${fix(plotRight - 4)}" y="${fix(Math.min(yLo + 12, TOP + MAG_HEIGHT - 4))}" class="label window-label" text-anchor="end">gain window ${xmlEscape(`${v(g.window.min)} … ${v(g.window.max)} V/V`)}</text>`);
   // Band edges and −3 dB corners.
   const vline = (f: number, cls: string, label: string, row: number): void => {
     if (!(f >= s.fMin && f <= s.fMax)) return;
