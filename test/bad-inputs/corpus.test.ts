@@ -60,6 +60,12 @@ const CORPUS: Record<string, [RegExp, boolean]> = {
   "old-key-ac.yaml": [/unknown key `ac` in component V1.*`ac` is now `signal`/, true],
   "old-key-surface-potential.yaml": [/unknown key `surfacePotential` in model n1.*`surfacePotential` is now `fermiPotential` \(the Fermi potential φF, half the old value/, true],
   "old-key-control.yaml": [/unknown key `control` in component F1.*`control` is now `sense`/, true],
+  // Issue 12 items 10 and 15: text that was read as something other than what it says.
+  "yaml-1-1-directive.yaml": [/yaml-1-1-directive\.yaml:1:1 .*the `%YAML 1\.1` directive is not allowed: circuit files are read as YAML 1\.2/, true],
+  "nul-in-comment.yaml": [/nul-in-comment\.yaml:3:\d+ .*the file contains a NUL character/, true],
+  "invalid-utf8-with-fffd.yaml": [/invalid-utf8-with-fffd\.yaml:4:1 .*the file is not valid UTF-8 text/, true],
+  "cr-only-line-endings.yaml": [/cr-only-line-endings\.yaml:5:\d+ .*unknown key `vaule` in component R1/, true],
+  "proto-name.yaml": [/proto-name\.yaml:5:\d+ .*the name `__proto__` is not allowed/, true],
   "signal-negative.yaml": [/component V1: the signal amplitude must be positive/, true],
 };
 
