@@ -66,6 +66,10 @@ const CORPUS: Record<string, [RegExp, boolean]> = {
   "invalid-utf8-with-fffd.yaml": [/invalid-utf8-with-fffd\.yaml:4:1 .*the file is not valid UTF-8 text/, true],
   "cr-only-line-endings.yaml": [/cr-only-line-endings\.yaml:5:\d+ .*unknown key `vaule` in component R1/, true],
   "proto-name.yaml": [/proto-name\.yaml:5:\d+ .*the name `__proto__` is not allowed/, true],
+  // Issue 12 items 11 and 13.
+  "parameter-shadows-constant.yaml": [/parameter-shadows-constant\.yaml:4:\d+ .*parameter `e` has the name of a constant of expressions/, true],
+  "tolerance-over-100-percent.yaml": [/tolerance 300% is more than 100 %/, true],
+  "tolerance-reaches-zero.yaml": [/tolerance 100% takes value down to zero/, true],
   "signal-negative.yaml": [/component V1: the signal amplitude must be positive/, true],
 };
 
