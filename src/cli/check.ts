@@ -1,7 +1,8 @@
 // `opgate check`: the gate. Finds circuit files, checks them (on worker threads with --jobs,
 // one slice with --shard), prints a line per file and its findings, writes the requested
 // reports, annotates the pull request under GitHub Actions, and exits 0 / 1 / 2.
-import { appendFileSync, existsSync, readFileSync, statSync } from "node:fs";
+import { spawnSync } from "node:child_process";
+import { appendFileSync, existsSync, readFileSync, realpathSync, statSync } from "node:fs";
 import { availableParallelism } from "node:os";
 import { isAbsolute, relative, resolve, sep } from "node:path";
 import type { InputError } from "../circuit/types.js";
@@ -14,7 +15,7 @@ import type { ResultsDocument, Severity } from "../report/document.js";
 import { renderJson } from "../report/json.js";
 import { renderJunit } from "../report/junit.js";
 import { renderMarkdown, truncateMarkdown } from "../report/markdown.js";
-import { renderSarif } from "../report/sarif.js";
+import { renderSarif, type SarifOptions } from "../report/sarif.js";
 import { DocumentError, readDocument } from "../report/validate.js";
 import { makeCheckContext } from "../run/context.js";
 import { discover, DiscoveryError, type Discovery } from "../run/discover.js";
@@ -37,6 +38,33 @@ type Format = (typeof FORMATS)[number];
 
 export interface ReportOptions {
   readonly baseline?: BaselineDiff;
+  readonly sarif?: SarifOptions;
+}
+
+/**
+ * SARIF locations are resolved from the repository root: GITHUB_WORKSPACE under Actions, else the
+ * git top level of `root`, else `root` itself. Returns the path of `root` (the folder the results
+ * document's paths are relative to) from there, and the repository's web address at this commit
+ * when the CI environment names it (team rules' help links point at their source there).
+ */
+export function sarifOptionsFor(root: string, env: CliIo["env"]): SarifOptions {
+  let repository = env.GITHUB_WORKSPACE;
+  if (!repository) {
+    const git = spawnSync("git", ["rev-parse", "--show-toplevel"], { cwd: root, encoding: "utf8" });
+    repository = git.status === 0 ? git.stdout.trim() : root;
+  }
+  let rel = relative(realpathOr(repository), realpathOr(root)).split(sep).join("/");
+  if (rel.startsWith("..") || isAbsolute(rel)) rel = ""; // the root is outside the repository: keep paths as they are
+  const { GITHUB_SERVER_URL: server, GITHUB_REPOSITORY: repo, GITHUB_SHA: sha } = env;
+  return { rootFromRepository: rel, ...(server && repo && sha ? { repositoryBlobUri: `${server}/${repo}/blob/${sha}` } : {}) };
+}
+
+function realpathOr(path: string): string {
+  try {
+    return realpathSync(path);
+  } catch {
+    return path;
+  }
 }
 
 export function renderFormat(format: Format, doc: ResultsDocument, options: ReportOptions): string {
@@ -48,7 +76,7 @@ export function renderFormat(format: Format, doc: ResultsDocument, options: Repo
     case "markdown":
       return renderMarkdown(doc, options.baseline ? { baseline: options.baseline } : {});
     case "sarif":
-      return renderSarif(doc);
+      return renderSarif(doc, options.sarif ?? {});
   }
 }
 
@@ -310,7 +338,10 @@ export const checkCommand: CommandSpec = {
     if (cache) io.stderr(`opgate: ${cache.summary()}\n`);
     if (shard && doc.circuits.length === 0) io.stderr(`opgate: shard ${shard.index}/${shard.count} has no files (${files.length} in all)\n`);
 
-    const reportOptions: ReportOptions = baselineDoc ? { baseline: diffDocuments(baselineDoc, doc) } : {};
+    const reportOptions: ReportOptions = {
+      ...(baselineDoc ? { baseline: diffDocuments(baselineDoc, doc) } : {}),
+      ...(targets.sarif ? { sarif: sarifOptionsFor(ctx.root, io.env) } : {}),
+    };
     const reportOnStdout = writeReports(doc, targets, io, reportOptions);
     const consoleText = renderConsole(doc, {
       color: colourEnabled(io.env, reportOnStdout ? io.stderrIsTTY === true : io.isTTY),

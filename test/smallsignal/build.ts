@@ -33,9 +33,8 @@ export function bjtModel(id: string, kind: "npn" | "pnp", p: BjtParams = {}): Bj
     saturationCurrent: spread(p.saturationCurrent ?? 1e-14),
     earlyVoltage: spread(p.earlyVoltage ?? Infinity),
     saturationEdge: 0.3,
-    energyGap: 1.11,
-    saturationCurrentExponent: 3,
-    betaExponent: 1.5,
+    drift: { voltage: -0.002, current: 1e-3 },
+    betaDrift: 0.005,
   };
 }
 
