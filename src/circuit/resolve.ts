@@ -206,6 +206,16 @@ export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model |
   return undefined;
 }
 
+/**
+ * A node name as written: `01`, `0x2` or `1.0e0` are read by YAML as numbers, but as node names
+ * they are text (the number 1 would merge `01` with node `1`), so the source text is kept.
+ */
+function nodeName(ctx: ResolveContext, path: readonly PathSegment[], v: unknown): string {
+  if (typeof v !== "number") return String(v);
+  const node = ctx.positioned.doc.getIn(path as PathSegment[], true) as { source?: unknown } | undefined;
+  return typeof node?.source === "string" && node.source !== "" ? node.source : String(v);
+}
+
 function resolveComponent(ctx: ResolveContext, raw: Obj, index: number): Component | undefined {
   const path: PathSegment[] = ["components", index];
   const id = String(raw["id"]);
@@ -213,8 +223,8 @@ function resolveComponent(ctx: ResolveContext, raw: Obj, index: number): Compone
   const pos: SourcePos = ctx.pos(path);
   const pinsRaw = raw["pins"];
   // Node names may be written as whole numbers (`0`); inside they are always text.
-  const pins = Object.fromEntries(Object.entries(asObj(pinsRaw)).map(([k, v]) => [k, String(v)])) as Record<string, string>;
-  const two = Array.isArray(pinsRaw) ? { a: String(pinsRaw[0]), b: String(pinsRaw[1]) } : { a: "", b: "" };
+  const pins = Object.fromEntries(Object.entries(asObj(pinsRaw)).map(([k, v]) => [k, nodeName(ctx, [...path, "pins", k], v)])) as Record<string, string>;
+  const two = Array.isArray(pinsRaw) ? { a: nodeName(ctx, [...path, "pins", 0], pinsRaw[0]), b: nodeName(ctx, [...path, "pins", 1], pinsRaw[1]) } : { a: "", b: "" };
   const tol = (key: string, q: Quantity): Toleranced | undefined => readToleranced(ctx, raw, key, path, q, what);
   const opt = (key: string, q: Quantity) => readOptional(ctx, raw, key, path, q, what);
   const base = { id, pos };
@@ -249,7 +259,7 @@ function resolveComponent(ctx: ResolveContext, raw: Obj, index: number): Compone
       const voltageRating = opt("voltageRating", "voltage");
       if (!value) return undefined;
       if (value.min <= 0) ctx.error([...path, "value"], `${what}: capacitance must be positive`);
-      const positive = raw["positive"] !== undefined ? String(raw["positive"]) : undefined;
+      const positive = raw["positive"] !== undefined ? nodeName(ctx, [...path, "positive"], raw["positive"]) : undefined;
       if (positive !== undefined && positive !== two.a && positive !== two.b)
         ctx.error([...path, "positive"], `${what}: \`positive: ${positive}\` is not one of its pins (${two.a}, ${two.b})`, "name the node the capacitor's + terminal is on");
       return { ...base, kind: "capacitor", pins: two, value, ...(voltageRating !== undefined ? { voltageRating } : {}), ...(positive !== undefined ? { positive } : {}) };
@@ -313,7 +323,7 @@ function resolveSpecs(ctx: ResolveContext, raw: Obj, ground: string): Specs {
     const target = readValue(ctx, g["target"], [...path, "target"], "gain", `${what} \`target\``);
     const frequency = readOptional(ctx, g, "frequency", path, "frequency", what);
     const out = g["output"];
-    const output = typeof out === "string" || typeof out === "number" ? { plus: String(out), minus: ground } : { plus: String(asObj(out)["plus"]), minus: String(asObj(out)["minus"]) };
+    const output = typeof out === "string" || typeof out === "number" ? { plus: nodeName(ctx, [...path, "output"], out), minus: ground } : { plus: nodeName(ctx, [...path, "output", "plus"], asObj(out)["plus"]), minus: nodeName(ctx, [...path, "output", "minus"], asObj(out)["minus"]) };
     if (target === undefined) return;
     let window: { min: number; max: number } | undefined;
     const tol = g["tolerance"];
@@ -386,7 +396,7 @@ export function resolveCircuit(ctx: ResolveContext, root: Obj, library: Readonly
         ctx.warn(["temperature"], `\`temperature: ${t}\` is read as ${t} K (a bare number is kelvin)`, `write "${t} °C" if Celsius was meant`);
     }
   }
-  const ground = root["ground"] !== undefined ? String(root["ground"]) : D.DEFAULT_GROUND;
+  const ground = root["ground"] !== undefined ? nodeName(ctx, ["ground"], root["ground"]) : D.DEFAULT_GROUND;
   const models = new Map<string, Model>(library);
   for (const [id, m] of Object.entries(asObj(root["models"]))) {
     const shared = library.get(id);
