@@ -133,6 +133,7 @@ export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model |
   const what = `model ${id}`;
   const pos = ctx.pos(path, true);
   const powerRating = readOptional(ctx, raw, "powerRating", path, "power", what);
+  if (powerRating !== undefined && !(powerRating > 0)) ctx.error([...path, "powerRating"], `${what}: powerRating must be a positive power`, "write the datasheet's total dissipation, e.g. 625 mW");
   const base = { id, pos, ...(powerRating !== undefined ? { powerRating } : {}) };
   const n = (key: string, q: Quantity, fallback: number) => readNumberOr(ctx, raw, key, path, q, what, fallback);
   const s = (key: string, q: Quantity, fallback: number) => readSpreadOr(ctx, raw, key, path, q, what, fallback);
@@ -147,6 +148,8 @@ export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model |
     const breakdown = diodeBreakdown(ctx, raw, path, what);
     const ratings = readRatings(ctx, raw, path, what, [["reverseVoltage", "voltage"], ["forwardCurrent", "current"]] as const);
     if (!forward?.saturationCurrent || !breakdown || !drift) return undefined;
+    if (!(ideality.min > 0)) ctx.error([...path, "ideality"], `${what}: ideality must be positive`, "silicon junctions have 1 to 2");
+    if (!(forward.saturationCurrent.min > 0)) ctx.error([...path, "saturationCurrent"], `${what}: saturationCurrent must be positive`, "write the datasheet's IS, e.g. 2.5 nA");
     return { ...base, kind, ...forward, saturationCurrent: forward.saturationCurrent, ideality, seriesResistance, drift, ...breakdown, ...ratings };
   }
   if (kind === "npn" || kind === "pnp") {
@@ -162,6 +165,7 @@ export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model |
     if (!(Math.abs(betaDrift) < MAX_BETA_DRIFT_PER_K)) ctx.error([...path, "betaDrift"], `${what}: betaDrift ${betaDrift * 100} %/°C is outside ±${MAX_BETA_DRIFT_PER_K * 100} %/°C`, "small-signal transistors' gain rises about 0.5 %/°C; write e.g. 0.5 %/°C");
     if (earlyVoltage.min <= 0) ctx.error([...path, "earlyVoltage"], `${what}: earlyVoltage must be a positive magnitude`, "write it without a sign, e.g. 90 V; omit it for no Early effect");
     if (beta.min <= 0) ctx.error([...path, "beta"], `${what}: beta must be positive`);
+    if (!(reverseBeta.min > 0)) ctx.error([...path, "reverseBeta"], `${what}: reverseBeta must be positive`, "small-signal transistors have about 1 to 10; omit it for the default");
     if (saturationCurrent.min <= 0) ctx.error([...path, "saturationCurrent"], `${what}: saturationCurrent must be positive`);
     const caps = optionalPositive(ctx, raw, path, what, [
       ["transitFrequency", "frequency"],
@@ -183,6 +187,8 @@ export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model |
     if (!threshold || !kPrime || !lambda || width === undefined || length === undefined) return undefined;
     if (bodyEffect === undefined || fermiPotential === undefined || thresholdTempco === undefined || kPrimeExponent === undefined) return undefined;
     if (!(width > 0)) ctx.error([...path, "width"], `${what}: width must be positive`);
+    if (!(lambda.min >= 0)) ctx.error([...path, "lambda"], `${what}: lambda must be zero or positive`, "write it without a sign, e.g. 0.02 /V; omit it for no channel-length modulation");
+    if (!(bodyEffect >= 0)) ctx.error([...path, "bodyEffect"], `${what}: bodyEffect must be zero or positive`, "write it without a sign, e.g. 0.4 √V");
     if (!(length > 0)) ctx.error([...path, "length"], `${what}: length must be positive`);
     if (kPrime.min <= 0) ctx.error([...path, "kPrime"], `${what}: kPrime must be positive`);
     if (!(fermiPotential > 0)) ctx.error([...path, "fermiPotential"], `${what}: fermiPotential φF must be positive`, "typical silicon substrates give 0.3–0.4 V");
@@ -232,6 +238,7 @@ function resolveComponent(ctx: ResolveContext, raw: Obj, index: number): Compone
     case "resistor": {
       const value = tol("value", "resistance");
       const powerRating = opt("powerRating", "power");
+      if (powerRating !== undefined && !(powerRating > 0)) ctx.error([...path, "powerRating"], `${what}: powerRating must be a positive power`, "write the resistor's rating, e.g. 250 mW");
       const mustOperateCurrent = opt("mustOperateCurrent", "current");
       const mustOperateVoltage = opt("mustOperateVoltage", "voltage");
       if (!value) return undefined;
@@ -257,6 +264,7 @@ function resolveComponent(ctx: ResolveContext, raw: Obj, index: number): Compone
     case "capacitor": {
       const value = tol("value", "capacitance");
       const voltageRating = opt("voltageRating", "voltage");
+      if (voltageRating !== undefined && !(voltageRating > 0)) ctx.error([...path, "voltageRating"], `${what}: voltageRating must be a positive magnitude`, "write it without a sign, e.g. 25 V");
       if (!value) return undefined;
       if (value.min <= 0) ctx.error([...path, "value"], `${what}: capacitance must be positive`);
       const positive = raw["positive"] !== undefined ? nodeName(ctx, [...path, "positive"], raw["positive"]) : undefined;
@@ -392,6 +400,7 @@ export function resolveCircuit(ctx: ResolveContext, root: Obj, library: Readonly
     if (t !== undefined) {
       temperature = t;
       if (t <= 0) ctx.error(["temperature"], `\`temperature\` ${t} K is at or below absolute zero`, "write e.g. 25 °C");
+      else if (t > D.MAX_TEMPERATURE_K) ctx.error(["temperature"], `\`temperature\` ${(t - 273.15).toPrecision(4)} °C is beyond what the device models hold (at most ${D.MAX_TEMPERATURE_K - 273.15} °C)`, "semiconductor ratings end near 150–200 °C; write the ambient the board sees");
       else if (typeof root["temperature"] === "number" && t < D.SUSPICIOUS_KELVIN_BELOW)
         ctx.warn(["temperature"], `\`temperature: ${t}\` is read as ${t} K (a bare number is kelvin)`, `write "${t} °C" if Celsius was meant`);
     }

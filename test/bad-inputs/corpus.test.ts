@@ -72,6 +72,14 @@ const CORPUS: Record<string, [RegExp, boolean]> = {
   "parameter-shadows-constant.yaml": [/parameter-shadows-constant\.yaml:4:\d+ .*parameter `e` has the name of a constant of expressions/, true],
   "tolerance-over-100-percent.yaml": [/tolerance 300% is more than 100 %/, true],
   "tolerance-reaches-zero.yaml": [/tolerance 100% takes value down to zero/, true],
+  // Issue 12 item 14: values out of physical range, refused with the parameter named.
+  "model-reverse-beta-zero.yaml": [/model small-npn: reverseBeta must be positive/, true],
+  "model-power-rating-negative.yaml": [/model small-npn: powerRating must be a positive power/, true],
+  "model-diode-saturation-negative.yaml": [/model d1: saturationCurrent must be positive/, true],
+  "model-diode-ideality-zero.yaml": [/model d1: ideality must be positive/, true],
+  "model-lambda-negative.yaml": [/model n1: lambda must be zero or positive/, true],
+  "resistor-power-rating-negative.yaml": [/component R1: powerRating must be a positive power/, true],
+  "temperature-beyond-models.yaml": [/`temperature` 1\.000e\+6 °C is beyond what the device models hold/, true],
   "signal-negative.yaml": [/component V1: the signal amplitude must be positive/, true],
 };
 
