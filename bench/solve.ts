@@ -56,11 +56,11 @@ export function chainCircuit(nodes: number, seed = 1): Circuit {
   const models = new Map<string, Model>([
     [
       "npn",
-      { id: "npn", pos: POS, kind: "npn", beta: spread(150), reverseBeta: spread(1), saturationCurrent: spread(1e-14), earlyVoltage: spread(80), saturationEdge: 0.3, energyGap: 1.11, saturationCurrentExponent: 3, betaExponent: 1.5 },
+      { id: "npn", pos: POS, kind: "npn", beta: spread(150), reverseBeta: spread(1), saturationCurrent: spread(1e-14), earlyVoltage: spread(80), saturationEdge: 0.3, drift: { voltage: -0.002, current: 1e-3 }, betaDrift: 0.005 },
     ],
     [
       "nmos",
-      { id: "nmos", pos: POS, kind: "nmos", threshold: spread(1), kPrime: spread(100e-6), width: 20e-6, length: 1e-6, lambda: spread(0.02), bodyEffect: 0, surfacePotential: 0.6, thresholdTempco: -2e-3, kPrimeExponent: -1.5 },
+      { id: "nmos", pos: POS, kind: "nmos", threshold: spread(1), kPrime: spread(100e-6), width: 20e-6, length: 1e-6, lambda: spread(0.02), bodyEffect: 0, fermiPotential: 0.3, thresholdTempco: -2e-3, kPrimeExponent: -1.5 },
     ],
   ]);
   return {

@@ -52,3 +52,62 @@ it("keeps the worst corner: RC 8k2 passes at nominal and saturates at a supply/s
   expect(worst.findings[0]!.scenario).not.toBe("nominal");
   expect(worst.findings[0]!.measured).toBeLessThan(nominal.passed[0]!.measured!);
 });
+
+// Current mirrors (textbook topologies, from memory): the diode-connected reference device sits
+// at VCB = 0 (VCE = VBE ≈ 0.65 V, 0.35 V beyond a 0.3 V saturation edge, under the 0.5 V margin)
+// and is not judged; the output devices keep their headroom. Tidewater bias cells (invented values).
+const MIRROR_MODELS = `models:
+  tw-npn: { kind: npn, beta: { min: 150, typ: 250, max: 400 }, saturationCurrent: 1e-14 A, earlyVoltage: 100 V }
+  tw-nmos: { kind: nmos, threshold: 0.7 V, kPrime: 200u, width: 20u, length: 1u }
+`;
+const supply = `  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, voltage: 12 V }
+  - { id: RREF, kind: resistor, pins: [vcc, ref], value: 22k }
+  - { id: RLOAD, kind: resistor, pins: [vcc, out], value: 4k7 }
+`;
+const basicMirror = `${MIRROR_MODELS}components:
+${supply}  - { id: Q1, kind: npn, model: tw-npn, pins: { collector: ref, base: ref, emitter: gnd } }
+  - { id: Q2, kind: npn, model: tw-npn, pins: { collector: out, base: ref, emitter: gnd } }
+`;
+// Wilson: Q1 senses, Q2 diode-connected under the output device Q3.
+const wilsonMirror = `${MIRROR_MODELS}components:
+${supply}  - { id: Q1, kind: npn, model: tw-npn, pins: { collector: ref, base: b, emitter: gnd } }
+  - { id: Q2, kind: npn, model: tw-npn, pins: { collector: b, base: b, emitter: gnd } }
+  - { id: Q3, kind: npn, model: tw-npn, pins: { collector: out, base: ref, emitter: b } }
+`;
+// Widlar: emitter resistor under the output device sets a smaller current.
+const widlarMirror = `${MIRROR_MODELS}components:
+${supply}  - { id: Q1, kind: npn, model: tw-npn, pins: { collector: ref, base: ref, emitter: gnd } }
+  - { id: Q2, kind: npn, model: tw-npn, pins: { collector: out, base: ref, emitter: e2 } }
+  - { id: RE2, kind: resistor, pins: [e2, gnd], value: 1k }
+`;
+// MOSFET mirror: the reference device has its drain on its gate.
+const mosMirror = `${MIRROR_MODELS}components:
+${supply}  - { id: M1, kind: nmos, model: tw-nmos, pins: { drain: ref, gate: ref, source: gnd } }
+  - { id: M2, kind: nmos, model: tw-nmos, pins: { drain: out, gate: ref, source: gnd } }
+`;
+// Cascode whose upper base is biased by two diode-connected transistors and a resistor
+// (≈ 0.47 mA: bias ≈ 2·0.65 + 0.47 ≈ 1.8 V, so Q1 keeps VCE ≈ 1.1 V).
+const cascodeBias = `${MIRROR_MODELS}components:
+  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, voltage: 12 V }
+  - { id: VIN, kind: voltage-source, pins: { plus: in, minus: gnd }, voltage: 0.66 V, signal: 1 mV }
+  - { id: RB, kind: resistor, pins: [vcc, bias], value: 22k }
+  - { id: QB1, kind: npn, model: tw-npn, pins: { collector: bias, base: bias, emitter: mid1 } }
+  - { id: QB2, kind: npn, model: tw-npn, pins: { collector: mid1, base: mid1, emitter: mid2 } }
+  - { id: RB2, kind: resistor, pins: [mid2, gnd], value: 1k }
+  - { id: Q1, kind: npn, model: tw-npn, pins: { collector: x, base: in, emitter: gnd } }
+  - { id: Q2, kind: npn, model: tw-npn, pins: { collector: out, base: bias, emitter: x } }
+  - { id: RC, kind: resistor, pins: [vcc, out], value: 4k7 }
+`;
+
+ruleTester(headroom).run([
+  { name: "basic mirror: the diode-connected Q1 is not judged, Q2 passes", circuit: basicMirror, expect: [], passed: ["Q2"] },
+  { name: "Wilson mirror: Q2 (diode-connected) not judged; Q1 and Q3 pass", circuit: wilsonMirror, expect: [], passed: ["Q1", "Q3"] },
+  { name: "Widlar mirror: Q1 not judged, Q2 passes", circuit: widlarMirror, expect: [], passed: ["Q2"] },
+  { name: "MOSFET mirror: M1 (drain on gate) not judged, M2 passes", circuit: mosMirror, expect: [], passed: ["M2"] },
+  { name: "cascode with a diode-connected bias chain: QB1, QB2 not judged; Q1 and Q2 pass", circuit: cascodeBias, expect: [], passed: ["Q1", "Q2"] },
+]);
+
+it("the diode-connected devices are exempt, not silently passed: they appear neither as findings nor as passed checks", async () => {
+  const r = await runRuleCase(headroom, { name: "wilson", circuit: wilsonMirror, expect: [] });
+  expect(r.passed.map((p) => p.subject).sort()).toEqual(["Q1", "Q3"]);
+});

@@ -2,7 +2,7 @@
 // (BJT) or of the triode region (MOSFET). Reads the polarity-normalised headroom, so PNP and
 // PMOS are judged exactly like NPN and NMOS.
 import { defineRule } from "../src/review/rule.js";
-import { formatQuantity, intendedRegion } from "../src/review/quantities.js";
+import { formatQuantity, intendedRegion, isDiodeConnected } from "../src/review/quantities.js";
 
 export default defineRule({
   id: "headroom",
@@ -24,7 +24,9 @@ export default defineRule({
   docs: `Checks every BJT meant to be in the active region and every MOSFET meant to be in
 saturation (the region named in specs.devices, or the amplifying region by default) for
 headroom: the polarity-normalised distance to the edge where it stops amplifying
-(BJT: |VCE| − saturationEdge of its model; MOSFET: |VDS| − |Vov|).
+(BJT: |VCE| − saturationEdge of its model; MOSFET: |VDS| − |Vov|). Diode-connected
+transistors (collector tied to base, drain tied to gate: the reference side of a current
+mirror, a bias chain) are not judged: they sit at VCB = 0 or VDS = VGS by construction.
 
 Why it matters: a stage biased close to the edge clips on the first large signal and slides
 into saturation at a supply, tolerance or temperature corner; its gain and output swing are
@@ -41,6 +43,9 @@ Options: \`bjt\` (V, default 0.5) and \`mos\` (V, default 0.3); a circuit file m
       const point = op.devices[c.id];
       if (!point || (point.kind !== "npn" && point.kind !== "pnp" && point.kind !== "nmos" && point.kind !== "pmos")) continue;
       const isBjt = point.kind === "npn" || point.kind === "pnp";
+      // A diode-connected transistor (collector tied to base, drain to gate) sits at VCB = 0 or
+      // VDS = VGS by construction: it cannot saturate in the amplifier's sense, so it is not judged.
+      if (isDiodeConnected(c)) continue;
       const wanted = intendedRegion(circuit, c.id, c.kind);
       if (wanted !== (isBjt ? "active" : "saturation")) continue;
       const limit = isBjt ? options.bjt : options.mos;

@@ -13,6 +13,7 @@ import gainWindow from "./gain-window.js";
 import headroom from "./headroom.js";
 import region from "./region.js";
 import resistorPower from "./resistor-power.js";
+import signalSwing from "./signal-swing.js";
 import solve from "./solve.js";
 import supplyBudget from "./supply-budget.js";
 
@@ -29,6 +30,7 @@ export const BUILTIN_RULES: ReadonlyMap<string, Rule> = new Map<string, Rule>([
   ["headroom", headroom],
   ["region", region],
   ["resistor-power", resistorPower],
+  ["signal-swing", signalSwing],
   ["solve", solve],
   ["supply-budget", supplyBudget],
 ]);

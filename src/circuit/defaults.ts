@@ -24,19 +24,30 @@ export const DEFAULT_DIODE_SERIES_RESISTANCE = 0;
 export const DEFAULT_EARLY_VOLTAGE = Infinity;
 /** |VCE| at the edge of saturation: 0.3 V (common practice: VCE(sat) of a small-signal silicon BJT is 0.1–0.3 V). */
 export const DEFAULT_SATURATION_EDGE_V = 0.3;
-/** Silicon band gap for IS(T): 1.11 eV (common practice value used in device models; from memory). */
-export const DEFAULT_ENERGY_GAP_EV = 1.11;
-/** Exponent of (T/T0) in IS(T): 3 (common practice for silicon junctions). */
-export const DEFAULT_SATURATION_CURRENT_EXPONENT = 3;
-/** beta(T) ∝ (T/T0)^1.5 (common practice for small-signal silicon BJTs). */
-export const DEFAULT_BETA_EXPONENT = 1.5;
+/**
+ * Drift of a silicon junction's forward voltage (diode VF, BJT VBE) at constant current: −2 mV/°C
+ * (common practice: the textbook rule that VBE falls about 2 mV per °C; datasheets of small-signal
+ * diodes and transistors show −1.8 to −2.2 mV/°C near 1 mA).
+ */
+export const DEFAULT_JUNCTION_DRIFT_V_PER_K = -0.002;
+/** Current the junction drift is stated at when the model gives none: 1 mA (a typical small-signal test current). */
+export const DEFAULT_DRIFT_CURRENT_A = 1e-3;
+/**
+ * Relative drift of a BJT's current gain: +0.5 %/°C (common practice; from memory: small-signal
+ * silicon transistors' hFE rises about 0.5 %/°C, roughly doubling from −55 °C to 125 °C).
+ */
+export const DEFAULT_BETA_DRIFT_PER_K = 0.005;
 
 /** Channel-length modulation λ: 0 (no output-conductance term unless given). */
 export const DEFAULT_LAMBDA = 0;
 /** Body-effect coefficient γ: 0 (body effect off unless given). */
 export const DEFAULT_BODY_EFFECT = 0;
-/** 2φF: 0.6 V (common practice for a lightly doped silicon substrate). */
-export const DEFAULT_SURFACE_POTENTIAL_V = 0.6;
+/**
+ * Fermi potential φF of the substrate: 0.35 V. Textbook formula φF = (kT/q)·ln(NA/ni) with a
+ * lightly doped substrate NA = 1e16 cm⁻³ and silicon's intrinsic density ni ≈ 1e10 cm⁻³
+ * (textbook value; from memory) at 25 °C: 25.69 mV · ln(1e6) = 0.355 V, rounded; so 2φF ≈ 0.7 V.
+ */
+export const DEFAULT_FERMI_POTENTIAL_V = 0.35;
 /** d|Vt|/dT: −2 mV/K (common practice for silicon MOSFETs). */
 export const DEFAULT_THRESHOLD_TEMPCO_V_PER_K = -0.002;
 /** k'(T) ∝ (T/T0)^−1.5 (mobility falls with temperature; common practice). */

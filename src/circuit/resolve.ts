@@ -90,6 +90,27 @@ function diodeForward(ctx: ResolveContext, raw: Obj, path: readonly PathSegment[
   return { saturationCurrent: { min: is(voltage.max), typ: is(voltage.typ), max: is(voltage.min) }, forward: { voltage, current } };
 }
 
+/** A forward-voltage drift beyond this magnitude is not a silicon junction's (they drift 1–3 mV/°C; common practice). */
+const MAX_JUNCTION_DRIFT_V_PER_K = 0.01;
+/** A gain drift beyond ±5 %/°C is not a transistor's (common practice: about +0.5 %/°C). */
+const MAX_BETA_DRIFT_PER_K = 0.05;
+
+/** The junction's forward-voltage drift (`key`, V/K) and the current it is stated at (`driftCurrent`). */
+function junctionDrift(ctx: ResolveContext, raw: Obj, path: readonly PathSegment[], what: string, key: string, defaultCurrent: number) {
+  const voltage = readNumberOr(ctx, raw, key, path, "volt-per-kelvin", what, D.DEFAULT_JUNCTION_DRIFT_V_PER_K);
+  const current = readNumberOr(ctx, raw, "driftCurrent", path, "current", what, defaultCurrent);
+  if (voltage === undefined || current === undefined) return undefined;
+  if (!(voltage < 0 && voltage > -MAX_JUNCTION_DRIFT_V_PER_K)) {
+    ctx.error([...path, key], `${what}: ${key} ${voltage * 1e3} mV/°C is not a silicon junction's`, "the forward voltage falls with temperature, about 2 mV/°C: write e.g. -2 mV/°C");
+    return undefined;
+  }
+  if (!(current > 0)) {
+    ctx.error([...path, "driftCurrent"], `${what}: driftCurrent must be positive`, "write the current the datasheet states the drift at, e.g. 1 mA");
+    return undefined;
+  }
+  return { voltage, current };
+}
+
 /** A Zener's `breakdown:` block. */
 function diodeBreakdown(ctx: ResolveContext, raw: Obj, path: readonly PathSegment[], what: string) {
   if (raw["breakdown"] === undefined) return {};
@@ -120,14 +141,13 @@ export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model |
   if (kind === "diode") {
     const ideality = s("ideality", "dimensionless", raw["forward"] !== undefined ? D.DEFAULT_FORWARD_FORM_IDEALITY : D.DEFAULT_IDEALITY);
     const seriesResistance = n("seriesResistance", "resistance", D.DEFAULT_DIODE_SERIES_RESISTANCE);
-    const energyGap = n("energyGap", "energy-ev", D.DEFAULT_ENERGY_GAP_EV);
-    const saturationCurrentExponent = n("saturationCurrentExponent", "dimensionless", D.DEFAULT_SATURATION_CURRENT_EXPONENT);
-    if (!ideality || seriesResistance === undefined || energyGap === undefined || saturationCurrentExponent === undefined) return undefined;
+    if (!ideality || seriesResistance === undefined) return undefined;
     const forward = diodeForward(ctx, raw, path, what, ideality.typ, seriesResistance);
+    const drift = junctionDrift(ctx, raw, path, what, "forwardVoltageDrift", forward?.forward?.current ?? D.DEFAULT_DRIFT_CURRENT_A);
     const breakdown = diodeBreakdown(ctx, raw, path, what);
     const ratings = readRatings(ctx, raw, path, what, [["reverseVoltage", "voltage"], ["forwardCurrent", "current"]] as const);
-    if (!forward?.saturationCurrent || !breakdown) return undefined;
-    return { ...base, kind, ...forward, saturationCurrent: forward.saturationCurrent, ideality, seriesResistance, energyGap, saturationCurrentExponent, ...breakdown, ...ratings };
+    if (!forward?.saturationCurrent || !breakdown || !drift) return undefined;
+    return { ...base, kind, ...forward, saturationCurrent: forward.saturationCurrent, ideality, seriesResistance, drift, ...breakdown, ...ratings };
   }
   if (kind === "npn" || kind === "pnp") {
     const beta = req("beta", "dimensionless");
@@ -135,11 +155,11 @@ export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model |
     const saturationCurrent = req("saturationCurrent", "current");
     const earlyVoltage = s("earlyVoltage", "voltage", D.DEFAULT_EARLY_VOLTAGE);
     const saturationEdge = n("saturationEdge", "voltage", D.DEFAULT_SATURATION_EDGE_V);
-    const energyGap = n("energyGap", "energy-ev", D.DEFAULT_ENERGY_GAP_EV);
-    const saturationCurrentExponent = n("saturationCurrentExponent", "dimensionless", D.DEFAULT_SATURATION_CURRENT_EXPONENT);
-    const betaExponent = n("betaExponent", "dimensionless", D.DEFAULT_BETA_EXPONENT);
+    const drift = junctionDrift(ctx, raw, path, what, "baseEmitterDrift", D.DEFAULT_DRIFT_CURRENT_A);
+    const betaDrift = n("betaDrift", "percent-per-kelvin", D.DEFAULT_BETA_DRIFT_PER_K);
     if (!beta || !reverseBeta || !saturationCurrent || !earlyVoltage) return undefined;
-    if (saturationEdge === undefined || energyGap === undefined || saturationCurrentExponent === undefined || betaExponent === undefined) return undefined;
+    if (saturationEdge === undefined || !drift || betaDrift === undefined) return undefined;
+    if (!(Math.abs(betaDrift) < MAX_BETA_DRIFT_PER_K)) ctx.error([...path, "betaDrift"], `${what}: betaDrift ${betaDrift * 100} %/°C is outside ±${MAX_BETA_DRIFT_PER_K * 100} %/°C`, "small-signal transistors' gain rises about 0.5 %/°C; write e.g. 0.5 %/°C");
     if (earlyVoltage.min <= 0) ctx.error([...path, "earlyVoltage"], `${what}: earlyVoltage must be a positive magnitude`, "write it without a sign, e.g. 90 V; omit it for no Early effect");
     if (beta.min <= 0) ctx.error([...path, "beta"], `${what}: beta must be positive`);
     if (saturationCurrent.min <= 0) ctx.error([...path, "saturationCurrent"], `${what}: saturationCurrent must be positive`);
@@ -148,7 +168,7 @@ export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model |
       ["baseCollectorCapacitance", "capacitance"],
     ]);
     const ratings = readRatings(ctx, raw, path, what, [["collectorEmitter", "voltage"], ["collectorBase", "voltage"], ["emitterBase", "voltage"], ["collectorCurrent", "current"]] as const);
-    return { ...base, kind, beta, reverseBeta, saturationCurrent, earlyVoltage, saturationEdge, energyGap, saturationCurrentExponent, betaExponent, ...caps, ...ratings };
+    return { ...base, kind, beta, reverseBeta, saturationCurrent, earlyVoltage, saturationEdge, drift, betaDrift, ...caps, ...ratings };
   }
   if (kind === "nmos" || kind === "pmos") {
     const threshold = req("threshold", "voltage");
@@ -157,14 +177,15 @@ export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model |
     const length = n("length", "length", NaN);
     const lambda = s("lambda", "per-volt", D.DEFAULT_LAMBDA);
     const bodyEffect = n("bodyEffect", "sqrt-volt", D.DEFAULT_BODY_EFFECT);
-    const surfacePotential = n("surfacePotential", "voltage", D.DEFAULT_SURFACE_POTENTIAL_V);
+    const fermiPotential = n("fermiPotential", "voltage", D.DEFAULT_FERMI_POTENTIAL_V);
     const thresholdTempco = n("thresholdTempco", "volt-per-kelvin", D.DEFAULT_THRESHOLD_TEMPCO_V_PER_K);
     const kPrimeExponent = n("kPrimeExponent", "dimensionless", D.DEFAULT_KPRIME_EXPONENT);
     if (!threshold || !kPrime || !lambda || width === undefined || length === undefined) return undefined;
-    if (bodyEffect === undefined || surfacePotential === undefined || thresholdTempco === undefined || kPrimeExponent === undefined) return undefined;
+    if (bodyEffect === undefined || fermiPotential === undefined || thresholdTempco === undefined || kPrimeExponent === undefined) return undefined;
     if (!(width > 0)) ctx.error([...path, "width"], `${what}: width must be positive`);
     if (!(length > 0)) ctx.error([...path, "length"], `${what}: length must be positive`);
     if (kPrime.min <= 0) ctx.error([...path, "kPrime"], `${what}: kPrime must be positive`);
+    if (!(fermiPotential > 0)) ctx.error([...path, "fermiPotential"], `${what}: fermiPotential φF must be positive`, "typical silicon substrates give 0.3–0.4 V");
     const wrongSign = kind === "nmos" ? threshold.typ < 0 : threshold.typ > 0;
     if (wrongSign) {
       const other = kind === "nmos" ? "a depletion-mode NMOS" : "a depletion-mode PMOS";
@@ -180,7 +201,7 @@ export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model |
       ["oxideCapacitance", "capacitance-per-area"],
     ]);
     const ratings = readRatings(ctx, raw, path, what, [["drainSource", "voltage"], ["gateSource", "voltage"], ["drainCurrent", "current"]] as const);
-    return { ...base, kind, threshold, kPrime, width, length, lambda, bodyEffect, surfacePotential, thresholdTempco, kPrimeExponent, ...caps, ...ratings };
+    return { ...base, kind, threshold, kPrime, width, length, lambda, bodyEffect, fermiPotential, thresholdTempco, kPrimeExponent, ...caps, ...ratings };
   }
   return undefined;
 }

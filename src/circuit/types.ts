@@ -174,8 +174,8 @@ export interface DiodeModel extends ModelBase {
   readonly saturationCurrent: Spread;
   readonly ideality: Spread; // default 1
   readonly seriesResistance: number; // ohm, default 0
-  readonly energyGap: number; // eV, default 1.11 (silicon)
-  readonly saturationCurrentExponent: number; // XTI-like exponent of (T/T0), default 3
+  /** Temperature behaviour of the forward curve as a datasheet states it (see JunctionDrift). */
+  readonly drift: JunctionDrift;
   /**
    * Datasheet form of the forward curve (an LED, a rectifier): forward voltage at a test current.
    * When given, saturationCurrent is derived from it (at the typical ideality and the model
@@ -187,6 +187,16 @@ export interface DiodeModel extends ModelBase {
   /** Reverse breakdown: test current (A), dynamic resistance there (Ω), drift of the voltage (V/K). */
   readonly breakdown?: { readonly current: number; readonly resistance: number; readonly tempco: number };
   readonly ratings?: DiodeRatings;
+}
+
+/**
+ * A junction's forward voltage drift dV/dT (V/K, negative for silicon) at a constant current
+ * (A): the diode's forward current, or the BJT's collector current. The saturation current's
+ * temperature law follows from it (src/devices/thermal.ts).
+ */
+export interface JunctionDrift {
+  readonly voltage: number;
+  readonly current: number;
 }
 
 /** Absolute maximum ratings of a diode from its datasheet (magnitudes). */
@@ -206,10 +216,10 @@ export interface BjtModel extends ModelBase {
   readonly earlyVoltage: Spread;
   /** Polarity-normalised VCE at the edge of saturation, default 0.3 V. */
   readonly saturationEdge: number;
-  readonly energyGap: number; // eV, default 1.11
-  readonly saturationCurrentExponent: number; // default 3
-  /** beta(T) = beta(T0)·(T/T0)^betaExponent; default 1.5 (common practice). */
-  readonly betaExponent: number;
+  /** Drift of VBE at a constant collector current (see JunctionDrift). */
+  readonly drift: JunctionDrift;
+  /** Relative drift of beta, per kelvin (0.005 = 0.5 %/°C); beta(T) = beta·exp(betaDrift·(T − T0)). */
+  readonly betaDrift: number;
   /** fT in Hz, giving the base–emitter capacitance Cπ = gm/(2π·fT) − Cμ; absent = no Cπ. */
   readonly transitFrequency?: number;
   /** Cμ in F; absent = none. */
@@ -238,7 +248,8 @@ export interface MosfetModel extends ModelBase {
   readonly length: number; // m
   readonly lambda: Spread; // 1/V, default 0
   readonly bodyEffect: number; // γ in √V, default 0
-  readonly surfacePotential: number; // 2φF in V, default 0.6
+  /** Fermi potential φF of the substrate in V (the body-effect law uses 2φF); default 0.35 V. */
+  readonly fermiPotential: number;
   /** d|Vt|/dT in V/K (polarity-normalised), default −2 mV/K (common practice). */
   readonly thresholdTempco: number;
   /** k'(T) = k'(T0)·(T/T0)^kPrimeExponent; default −1.5 (mobility, common practice). */

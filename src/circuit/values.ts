@@ -19,6 +19,8 @@ export type Quantity =
   | "per-volt"
   | "sqrt-volt"
   | "volt-per-kelvin"
+  /** A relative drift: stored as a fraction per kelvin (0.5 %/°C → 0.005). */
+  | "percent-per-kelvin"
   | "capacitance-per-area"
   | "gain"
   | "dimensionless"
@@ -46,7 +48,8 @@ const Q: Record<Exclude<Quantity, "any">, QuantityInfo> = {
   "transconductance-parameter": { units: ["A/V²", "A/V^2", "A/V2"], shown: "A/V²" },
   "per-volt": { units: ["1/V", "/V"], shown: "1/V" },
   "sqrt-volt": { units: ["√V", "V^0.5", "V^(1/2)"], shown: "√V" },
-  "volt-per-kelvin": { units: ["V/K"], shown: "V/K" },
+  "volt-per-kelvin": { units: ["V/K", "V/°C"], shown: "V/°C (or V/K)" },
+  "percent-per-kelvin": { units: ["%/°C", "%/K"], shown: "%/°C (or %/K)" },
   "capacitance-per-area": { units: ["F/m²", "F/m^2", "F/m2"], shown: "F/m² (5 fF/µm² is 5 mF/m²)" },
   gain: { units: ["V/V", "A/A", "dB"], shown: "V/V (or dB)" },
   dimensionless: { units: [], shown: "a plain number" },
@@ -100,6 +103,7 @@ function allUnits(): string[] {
 /** Applies a unit (already split from its prefix) to a number in that unit. */
 function applyUnit(n: number, unit: string, quantity: Quantity): number {
   if (unit === "°C") return n + CELSIUS_OFFSET_K;
+  if (unit === "%/°C" || unit === "%/K") return n / 100;
   if (unit === "dB" && quantity === "gain") return Math.pow(10, n / 20);
   return n;
 }

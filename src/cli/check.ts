@@ -18,7 +18,9 @@ import { renderSarif } from "../report/sarif.js";
 import { DocumentError, readDocument } from "../report/validate.js";
 import { makeCheckContext } from "../run/context.js";
 import { discover, DiscoveryError, type Discovery } from "../run/discover.js";
+import { configModels, defaultCacheDir, ResultCache, runKey } from "../run/cache.js";
 import { runCheck } from "../run/run-check.js";
+import { toolVersion } from "../run/version.js";
 import { parseShard, type Shard } from "../run/shard.js";
 import { CliExit, EXIT_INPUT, type CliIo } from "./io.js";
 import { checkOutputTargets, writeAtomically, type Input } from "./outputs.js";
@@ -88,14 +90,17 @@ export function writeCiOutputs(doc: ResultsDocument, io: CliIo, options: ReportO
   if (!summaryFile) return;
   const already = existsSync(summaryFile) ? statSync(summaryFile).size : 0;
   let markdown = renderMarkdown(doc, options.baseline ? { baseline: options.baseline } : {});
-  const room = STEP_SUMMARY_MAX_BYTES - already - 1;
+  // Earlier steps (or tools in this step) may have left a paragraph without a line end: starting
+  // with a blank line keeps our verdict from being glued to it (it would render with literal `**`).
+  const lead = "\n\n";
+  const room = STEP_SUMMARY_MAX_BYTES - already - lead.length - 1;
   if (Buffer.byteLength(markdown) > room) {
     // Characters are at most 4 bytes in UTF-8: cutting to room/4 characters always fits.
     markdown = truncateMarkdown(markdown, Math.max(0, Math.floor(room / 4)));
     if (Buffer.byteLength(markdown) > room) return;
   }
   try {
-    appendFileSync(summaryFile, `${markdown}\n`);
+    appendFileSync(summaryFile, `${lead}${markdown}\n`);
   } catch (err) {
     io.stderr(`opgate: cannot append to the step summary: ${err instanceof Error ? err.message : String(err)}\n`);
   }
@@ -142,10 +147,16 @@ function progressWriter(io: CliIo): (done: number, total: number) => void {
 }
 
 /** `--jobs N` as given, or (auto) one lane per core at most, added only where they pay (pool.ts). */
-function parseJobs(value: unknown): { jobs: number; auto: boolean } {
+function parseJobs(value: unknown, io: CliIo): { jobs: number; auto: boolean } {
   if (value === undefined) return { jobs: availableParallelism(), auto: true };
   const n = Number(value);
   if (!Number.isInteger(n) || n < 1) throw new CliExit(EXIT_INPUT, `--jobs ${String(value)}: expected a whole number of 1 or more`);
+  // More lanes than cores only add memory (each lane is a whole engine) and switching.
+  const cores = availableParallelism();
+  if (n > cores) {
+    io.stderr(`opgate: --jobs ${n} capped at ${cores}, the number of cores\n`);
+    return { jobs: cores, auto: false };
+  }
   return { jobs: n, auto: false };
 }
 
@@ -193,6 +204,15 @@ function skippedLine(skipped: readonly string[]): string {
   return `opgate: skipped ${skipped.length} file${skipped.length === 1 ? "" : "s"} that ${skipped.length === 1 ? "is" : "are"} not circuit files (no \`format: opgate-circuit/…\`): ${shown}${more}\n`;
 }
 
+/** The result cache when --cache or --cache-dir asks for it. */
+function openCache(args: Record<string, unknown>, ctx: CheckContext, io: CliIo): ResultCache | undefined {
+  const dirFlag = args["cache-dir"];
+  if (dirFlag === "") throw new CliExit(EXIT_INPUT, "--cache-dir needs a folder");
+  if (args.cache !== true && typeof dirFlag !== "string") return undefined;
+  const dir = typeof dirFlag === "string" ? resolve(io.cwd, dirFlag) : defaultCacheDir(io.env);
+  return new ResultCache(dir, runKey(ctx, toolVersion(), configModels(ctx)));
+}
+
 export const checkCommand: CommandSpec = {
   command: "check [paths..]",
   describe: "Check circuit files (paths, folders or globs; default: the config's include globs)",
@@ -215,7 +235,10 @@ export const checkCommand: CommandSpec = {
         default: true,
         describe: "Under GitHub Actions, annotate findings and append the step summary (--no-annotations in shard jobs: merge does it once)",
       })
+      .option("strict", { type: "boolean", default: false, describe: "A matched .json/.yaml file that is not a circuit file (no format: opgate-circuit/…) is an error instead of skipped" })
       .option("timestamp", { type: "boolean", default: false, describe: "Record the time in the results document (off: reproducible output)" })
+      .option("cache", { type: "boolean", default: false, describe: "Reuse results of unchanged files from the result cache (OPGATE_CACHE_DIR, else the user cache folder)" })
+      .option("cache-dir", { type: "string", describe: "Result cache folder (implies --cache; e.g. a CI cache directory)" })
       .example("$0 check examples", "Check every circuit file under examples/")
       .example("$0 check 'boards/**/*.yaml' --fail-on warning", "Fail on warnings too")
       .example("$0 check --json results.json --markdown report.md --sarif opgate.sarif", "Write the reports")
@@ -223,7 +246,7 @@ export const checkCommand: CommandSpec = {
       .example("$0 check --baseline main-results.json", "Show what changed against an earlier run")
       .example("$0 check --rule headroom=off --jobs 4", "Turn a rule off and use four threads"),
   handler: async (args, io: CliIo) => {
-    const { jobs, auto: autoJobs } = parseJobs(args.jobs);
+    const { jobs, auto: autoJobs } = parseJobs(args.jobs, io);
     let shard: Shard | undefined;
     if (typeof args.shard === "string") {
       const parsed = parseShard(args.shard);
@@ -260,11 +283,16 @@ export const checkCommand: CommandSpec = {
     }
     const files = found.files;
     checkOutputTargets(targets, runInputs(files, ctx, typeof args.baseline === "string" ? resolve(io.cwd, args.baseline) : undefined), io.cwd);
-    if (found.skipped.length > 0) io.stderr(skippedLine(found.skipped));
+    if (found.skipped.length > 0) {
+      if (args.strict === true || ctx.config.nonCircuitFiles === "error")
+        throw new CliExit(EXIT_INPUT, `${skippedLine(found.skipped).replace(/^opgate: skipped/, "found").trimEnd()} — ${args.strict === true ? "--strict" : "the config's nonCircuitFiles: error"} makes that an error: exclude them, or add \`format: opgate-circuit/1\` if they are circuits`);
+      io.stderr(skippedLine(found.skipped));
+    }
     if (files.length === 0) {
       throw new CliExit(EXIT_INPUT, `no circuit files (.json, .yaml, .yml declaring format: opgate-circuit/…) match ${patterns.length ? patterns.join(" ") : ctx.config.include.join(" ")}`);
     }
 
+    const cache = openCache(args, ctx, io);
     // The bar is drawn on stderr: whether stderr is a terminal decides, not stdout.
     const showProgress = io.stderrIsTTY === true && io.env.CI !== "true" && !io.env.GITHUB_ACTIONS && files.length >= PROGRESS_MIN_FILES;
     const doc = await runCheck(files, {
@@ -276,8 +304,10 @@ export const checkCommand: CommandSpec = {
       ...(args.timestamp === true ? { timestamp: new Date().toISOString() } : {}),
       ...(showProgress ? { onProgress: progressWriter(io) } : {}),
       onNotice: (message) => io.stderr(`opgate: ${message}\n`),
+      ...(cache ? { cache } : {}),
     });
     if (showProgress) io.stderr("\n");
+    if (cache) io.stderr(`opgate: ${cache.summary()}\n`);
     if (shard && doc.circuits.length === 0) io.stderr(`opgate: shard ${shard.index}/${shard.count} has no files (${files.length} in all)\n`);
 
     const reportOptions: ReportOptions = baselineDoc ? { baseline: diffDocuments(baselineDoc, doc) } : {};

@@ -7,7 +7,8 @@ import { solveOperatingPoint } from "../solve/index.js";
 import { renderOperatingPoint } from "../solve/table.js";
 import type { OperatingPoint } from "../solve/types.js";
 import { analyseSmallSignal, defaultSweepRange, sweepGain, type SweepOptions } from "../smallsignal/index.js";
-import { renderSmallSignal, renderSweep, sweepCsv } from "../smallsignal/table.js";
+import { formatSi, renderSmallSignal, renderSweep, sweepCsv } from "../smallsignal/table.js";
+import { swingLimits } from "../review/swing.js";
 import { writeFileSync } from "node:fs";
 import { formatInputError } from "./check.js";
 import { loadConfig } from "../review/config.js";
@@ -21,7 +22,27 @@ export type InspectSection = (circuit: Circuit, op: OperatingPoint) => string;
 export const INSPECT_SECTIONS: InspectSection[] = [
   (_c, op) => renderOperatingPoint(op),
   (c, op) => renderSmallSignal(c, op, analyseSmallSignal(c, op)),
+  (c, op) => renderSwing(c, op),
 ];
+
+/** The largest input amplitude each gain takes before a device or the output clips (signal-swing's figures). */
+function renderSwing(circuit: Circuit, op: OperatingPoint): string {
+  if (circuit.specs.gains.length === 0) return "";
+  const lines = ["Signal swing (largest input peak before clipping, from midband and the band edges)"];
+  for (const spec of circuit.specs.gains) {
+    const fit = swingLimits(circuit, op, spec);
+    if (typeof fit === "string") {
+      lines.push(`  ${spec.name}: not computed: ${fit}`);
+      continue;
+    }
+    const first = fit.limits[0];
+    const source = circuit.components.find((c) => c.id === spec.input);
+    const stated = source && (source.kind === "voltage-source" || source.kind === "current-source") && source.signal !== undefined ? `; stated ${formatSi(source.signal, fit.inputUnit)} peak` : "";
+    if (!first || !Number.isFinite(first.maxInput)) lines.push(`  ${spec.name}: no transistor or DC-coupled output moves${stated}`);
+    else lines.push(`  ${spec.name}: ${formatSi(first.maxInput, fit.inputUnit)} peak (${first.subject}, ${first.side} side first)${stated}`);
+  }
+  return lines.join("\n") + "\n";
+}
 
 /** A sweep range from the flags, else the default around the spec band. */
 function sweepRange(circuit: Circuit, args: Record<string, unknown>): SweepOptions {

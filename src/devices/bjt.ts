@@ -25,7 +25,7 @@ import {
   type Terminal,
 } from "./device.js";
 import { JUNCTION_LEAK_CONDUCTANCE, junction, junctionOut } from "./junction.js";
-import { powerLawAt, saturationCurrentAt, thermalVoltage } from "./thermal.js";
+import { relativeDriftAt, saturationCurrentAt, thermalVoltage } from "./thermal.js";
 
 /** A junction is taken as conducting at or above this polarity-normalised voltage (DESIGN.md §3, common practice). */
 export const BJT_CONDUCTION_VOLTAGE = 0.4;
@@ -252,8 +252,8 @@ export function bjt(c: Bjt, ctx: SetupContext): DeviceInstance {
   const emi = terminal(ctx, "emitter", c.pins.emitter);
   const t = ctx.temperature;
   const vt = thermalVoltage(t);
-  const is = saturationCurrentAt(m.saturationCurrent.typ, t, m.energyGap, m.saturationCurrentExponent);
-  const betaF = powerLawAt(m.beta.typ, t, m.betaExponent);
+  const is = saturationCurrentAt(m.saturationCurrent.typ, t, 1, m.drift);
+  const betaF = relativeDriftAt(m.beta.typ, t, m.betaDrift);
   const vcrit = criticalVoltage(vt, is);
   return new BjtInstance(c.id, c.kind, p, col, base, emi, m.saturationEdge, vt, is, betaF, m.reverseBeta.typ, m.earlyVoltage.typ, vcrit);
 }

@@ -34,7 +34,7 @@ export function diode(c: Diode, ctx: SetupContext): DeviceInstance {
   const rs = model.seriesResistance;
   const inner = rs > 0 ? ctx.internalNode(`${c.id}#junction`, c.id) : anode.index;
   const nvt = model.ideality.typ * thermalVoltage(ctx.temperature);
-  const is = saturationCurrentAt(model.saturationCurrent.typ, ctx.temperature, model.energyGap, model.saturationCurrentExponent);
+  const is = saturationCurrentAt(model.saturationCurrent.typ, ctx.temperature, model.ideality.typ, model.drift);
   const vcrit = criticalVoltage(nvt, is);
   const zener = breakdownBranch(model, ctx.temperature);
   const idx: number[] = [inner, cathode.index];

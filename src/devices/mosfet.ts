@@ -272,7 +272,7 @@ export function mosfet(c: Mosfet, ctx: SetupContext): DeviceInstance {
   const t = ctx.temperature;
   const vt0 = p * m.threshold.typ + m.thresholdTempco * (t - MODEL_TEMPERATURE);
   const beta = (powerLawAt(m.kPrime.typ, t, m.kPrimeExponent) * m.width) / m.length;
-  const phi2 = Math.max(m.surfacePotential, 0);
+  const phi2 = 2 * Math.max(m.fermiPotential, 0);
   return new MosInstance(c.id, c.kind, p, dr, gt, sr, bd, vt0, beta, m.lambda.typ, m.bodyEffect, phi2, Math.sqrt(phi2));
 }
 

@@ -26,6 +26,8 @@ export interface ResolvedConfig {
   /** Absolute paths of team rule modules, globs expanded, sorted. */
   readonly plugins: readonly string[];
   readonly failOn: Severity;
+  /** Files a folder or glob matches that are not circuit files: skipped (default) or an error. */
+  readonly nonCircuitFiles?: "skip" | "error";
   readonly variation: VariationSettings;
   readonly outputs: {
     readonly json?: string;

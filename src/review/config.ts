@@ -78,6 +78,7 @@ interface RawConfig {
   failOn?: Severity;
   variation?: { mode?: VariationSettings["mode"]; samples?: number; seed?: number; temperature?: { min: string | number; max: string | number } };
   outputs?: Record<string, string>;
+  nonCircuitFiles?: "skip" | "error";
 }
 
 const GLOB_CHARS = /[*?[\]{}!]/;
@@ -194,6 +195,7 @@ export async function loadConfig(options: LoadConfigOptions): Promise<ResolvedCo
     failOn: raw.failOn ?? "error",
     variation,
     outputs,
+    ...(raw.nonCircuitFiles ? { nonCircuitFiles: raw.nonCircuitFiles } : {}),
   });
 }
 

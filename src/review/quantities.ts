@@ -1,5 +1,5 @@
 // Small helpers rules share: numbers for people (SI prefixes), temperatures, intended regions.
-import type { Circuit, ComponentKind } from "../circuit/types.js";
+import type { Circuit, Component, ComponentKind } from "../circuit/types.js";
 import { siPrefix, type SiPrefix } from "../units/si-format.js";
 
 /** Kelvin of 0 °C (SI definition). */
@@ -32,6 +32,13 @@ export const REGIONS: Readonly<Record<"npn" | "pnp" | "nmos" | "pmos", readonly 
 
 export function isTransistorKind(kind: ComponentKind): kind is "npn" | "pnp" | "nmos" | "pmos" {
   return kind === "npn" || kind === "pnp" || kind === "nmos" || kind === "pmos";
+}
+
+/** A transistor wired as a diode: collector tied to base (BJT), drain tied to gate (MOSFET). */
+export function isDiodeConnected(c: Component): boolean {
+  if (c.kind === "npn" || c.kind === "pnp") return c.pins.collector === c.pins.base;
+  if (c.kind === "nmos" || c.kind === "pmos") return c.pins.drain === c.pins.gate;
+  return false;
 }
 
 /** The region the specs name for a device, else the amplifying region of its kind. */

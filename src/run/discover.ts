@@ -54,6 +54,9 @@ export function declaresCircuit(text: string): boolean {
   return YAML_FORMAT.test(text) || JSON_FORMAT.test(text);
 }
 
+/** A model library (`format: opgate-library/…`): one of ours, read through the circuits that name it. */
+const LIBRARY_FORMAT = /^(?:format|"format"|'format')[ \t]*:[ \t]*["']?opgate-library\/|"format"\s*:\s*"opgate-library\//m;
+
 function under(abs: string, dir: string): string | null {
   const rel = relative(dir, abs);
   return rel === "" || rel.startsWith("..") || isAbsolute(rel) ? null : rel.split(sep).join("/");
@@ -85,12 +88,20 @@ function leavesRoot(pattern: string): boolean {
   return isAbsolute(pattern) || /^[A-Za-z]:/.test(pattern) || pattern.split(/[\\/]/).includes("..");
 }
 
+/**
+ * Files matching `patterns` under `cwd`. Links to folders are not followed (a link back to a
+ * parent folder would have the crawl go round until the system's link limit, re-reading the tree
+ * each time); a link to a file is taken, and de-duplicated by its real path by the caller.
+ */
 async function glob(patterns: string | readonly string[], cwd: string, ignore: readonly string[]): Promise<string[]> {
+  let entries: fg.Entry[];
   try {
-    return await fg(typeof patterns === "string" ? patterns : [...patterns], {
+    entries = await fg(typeof patterns === "string" ? patterns : [...patterns], {
       cwd,
       absolute: true,
-      onlyFiles: true,
+      onlyFiles: false,
+      objectMode: true,
+      followSymbolicLinks: false,
       dot: false,
       ignore: [...ignore],
       suppressErrors: false,
@@ -99,6 +110,18 @@ async function glob(patterns: string | readonly string[], cwd: string, ignore: r
     const path = (err as { path?: string }).path;
     throw new DiscoveryError(`cannot read ${path ? relative(cwd, path) || "." : cwd}: ${reason(err)}`);
   }
+  const files: string[] = [];
+  for (const e of entries) {
+    if (e.dirent.isFile()) files.push(e.path);
+    else if (e.dirent.isSymbolicLink()) {
+      try {
+        if (statSync(e.path).isFile()) files.push(e.path);
+      } catch {
+        // a link to nothing, or in a circle: not a file
+      }
+    }
+  }
+  return files;
 }
 
 /**
@@ -176,22 +199,24 @@ export async function discover(patterns: readonly string[], options: DiscoverOpt
   const skipped: string[] = [];
   for (const abs of byReal.values()) {
     const entry = { abs, display: displayPath(abs, options.root, options.cwd) };
-    if (options.circuitsOnly && !named.has(abs) && !isCircuitFile(abs)) skipped.push(entry.display);
-    else files.push(entry);
+    const kind = options.circuitsOnly && !named.has(abs) ? fileKind(abs) : "circuit";
+    // A model library found by a folder or glob is neither checked nor counted as a stray file.
+    if (kind === "other") skipped.push(entry.display);
+    else if (kind === "circuit") files.push(entry);
   }
   files.sort((a, b) => compareText(a.display, b.display));
   skipped.sort(compareText);
   return { files, skipped };
 }
 
-function isCircuitFile(abs: string): boolean {
+function fileKind(abs: string): "circuit" | "library" | "other" {
   let text: string;
   try {
     text = readFileSync(abs, "utf8");
   } catch {
-    return true; // unreadable: let the check say so, naming the file
+    return "circuit"; // unreadable: let the check say so, naming the file
   }
-  return declaresCircuit(text);
+  return declaresCircuit(text) ? "circuit" : LIBRARY_FORMAT.test(text) ? "library" : "other";
 }
 
 /** discover() without the non-circuit skipping, for callers that want every match. */

@@ -4,6 +4,7 @@ import type { CheckContext, CheckContextOptions } from "../pipeline/check-file.j
 import { buildDocument } from "../report/build.js";
 import type { ResultsDocument } from "../report/document.js";
 import { shardProvenance } from "../report/merge.js";
+import type { ResultCache } from "./cache.js";
 import type { CircuitFile } from "./discover.js";
 import type { LaneKind } from "./lane.js";
 import { checkFiles } from "./pool.js";
@@ -27,11 +28,17 @@ export interface RunOptions {
   readonly mainThreadLane?: boolean;
   /** What a worker is; default the pool's DEFAULT_LANE. */
   readonly lanes?: LaneKind;
+  /** Result cache (check --cache): unchanged files are taken from it, the rest checked and stored. */
+  readonly cache?: ResultCache;
 }
 
 export async function runCheck(allFiles: readonly CircuitFile[], options: RunOptions): Promise<ResultsDocument> {
   const files = options.shard ? selectShard(allFiles, options.shard) : [...allFiles];
-  const circuits = await checkFiles(files, {
+  // From the cache: the results of unchanged files; only the others go to the lanes.
+  const cache = options.cache;
+  const lookups = cache ? files.map((f) => cache.lookup(f)) : [];
+  const toCheck = cache ? files.filter((_, i) => lookups[i]?.result === undefined) : files;
+  const checked = await checkFiles(toCheck, {
     jobs: options.jobs,
     ...(options.autoJobs ? { autoJobs: true } : {}),
     context: options.contextOptions,
@@ -43,6 +50,18 @@ export async function runCheck(allFiles: readonly CircuitFile[], options: RunOpt
     ...(options.mainThreadLane !== undefined ? { mainThreadLane: options.mainThreadLane } : {}),
     ...(options.lanes !== undefined ? { lanes: options.lanes } : {}),
   });
+  let circuits = checked;
+  if (cache) {
+    let next = 0;
+    circuits = files.map((_, i) => {
+      const hit = lookups[i];
+      if (hit?.result !== undefined) return hit.result;
+      const result = checked[next++]!;
+      // A file that could not be read has no key: nothing to store.
+      if (hit) cache.store(hit.key, result);
+      return result;
+    });
+  }
   const { config, rules } = options.ctx;
   return buildDocument(circuits, {
     rules,

@@ -70,7 +70,7 @@ export function renderSmallSignal(circuit: Circuit, op: OperatingPoint, result: 
   parts.push("Small-signal model at the operating point");
   parts.push(devices ?? "(no transistors or diodes)");
   parts.push("");
-  parts.push("Gains (midband: capacitors short, inductors open; output impedance with the input zeroed)");
+  parts.push("Gains (midband: the flat band — coupling and bypass capacitors short, band-edge and device capacitances open, inductors open; output impedance with the input zeroed)");
   if (circuit.specs.gains.length === 0) {
     parts.push("(no gains in specs.gains)");
     return parts.join("\n") + "\n";
@@ -96,8 +96,19 @@ export function renderSmallSignal(circuit: Circuit, op: OperatingPoint, result: 
     parts.push(table(["gain", "input", "output", "midband V/V", "dB", "window V/V", "judged", "input Z", "output Z"], rows));
   }
   for (const g of result.gains) {
-    if (g.points.length === 0) continue;
-    parts.push(`  ${g.name} at ${g.points.map(pointText).join("; ")}`);
+    if (g.openAtMidband.length > 0) {
+      const hand = g.everyCapacitorShort === null ? "undefined" : `${formatNumber(g.everyCapacitorShort)} V/V`;
+      parts.push(`  ${g.name}: open at midband (they set the upper edge): ${g.openAtMidband.join(", ")}; with every capacitor short (hand reference): ${hand}`);
+    }
+    if (g.points.length > 0) parts.push(`  ${g.name} at ${g.points.map(pointText).join("; ")}`);
+    const e = g.edges;
+    if (e) {
+      const hz = (f: number | null) => (f === null ? "none found" : formatSi(f, "Hz"));
+      const who = (list: typeof e.low) => (list[0] ? ` (${list[0].between ? `${list[0].id} ${list[0].between}` : list[0].id} ${Math.round(list[0].share * 100)} %)` : "");
+      parts.push(
+        `  ${g.name} −3 dB corners: lower ${hz(e.lowCorner)} (short-circuit time constants: ${hz(e.lowEstimate)}${who(e.low)}), upper ${hz(e.highCorner)} (open-circuit time constants: ${hz(e.highEstimate)}${who(e.high)})`,
+      );
+    }
   }
   for (const e of result.errors) parts.push(`  ${e.gain}: not computed: ${e.message}`);
   return parts.join("\n") + "\n";

@@ -19,9 +19,8 @@ describe("defaults (DESIGN.md section 3)", () => {
     expect(m.reverseBeta).toEqual({ min: 1, typ: 1, max: 1 });
     expect(m.earlyVoltage.typ).toBe(Infinity);
     expect(m.saturationEdge).toBe(0.3);
-    expect(m.energyGap).toBe(1.11);
-    expect(m.saturationCurrentExponent).toBe(3);
-    expect(m.betaExponent).toBe(1.5);
+    expect(m.drift).toEqual({ voltage: -0.002, current: 1e-3 }); // −2 mV/°C at 1 mA, src/circuit/defaults.ts
+    expect(m.betaDrift).toBe(0.005); // 0.5 %/°C
     expect(m.beta).toEqual({ min: 200, typ: 200, max: 200 });
   });
   it("MOSFET model defaults, body pin defaulting to source, and the sign warning", () => {
@@ -33,7 +32,7 @@ describe("defaults (DESIGN.md section 3)", () => {
     const m = c.models.get("n") as MosfetModel;
     expect(m.lambda.typ).toBe(D.DEFAULT_LAMBDA);
     expect(m.bodyEffect).toBe(0);
-    expect(m.surfacePotential).toBe(0.6);
+    expect(m.fermiPotential).toBe(0.35); // φF = VT·ln(NA/ni), src/circuit/defaults.ts
     expect(m.thresholdTempco).toBe(-0.002);
     expect(m.kPrimeExponent).toBe(-1.5);
     expect(m.width).toBeCloseTo(10e-6, 15);

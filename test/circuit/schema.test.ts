@@ -37,11 +37,11 @@ describe("schemas/circuit.schema.json", () => {
   it("has the model parameters of every model kind", () => {
     const props = (k: string) => Object.keys(defs[`model-${k}`]!["properties"] as Json).sort();
     const base = ["description", "kind", "powerRating", "ratings"];
-    expect(props("diode")).toEqual([...base, "saturationCurrent", "forward", "breakdown", "ideality", "seriesResistance", "energyGap", "saturationCurrentExponent"].sort());
-    const bjt = [...base, "beta", "reverseBeta", "saturationCurrent", "earlyVoltage", "saturationEdge", "energyGap", "saturationCurrentExponent", "betaExponent", "transitFrequency", "baseCollectorCapacitance"].sort();
+    expect(props("diode")).toEqual([...base, "saturationCurrent", "forward", "breakdown", "ideality", "seriesResistance", "forwardVoltageDrift", "driftCurrent"].sort());
+    const bjt = [...base, "beta", "reverseBeta", "saturationCurrent", "earlyVoltage", "saturationEdge", "baseEmitterDrift", "driftCurrent", "betaDrift", "transitFrequency", "baseCollectorCapacitance"].sort();
     expect(props("npn")).toEqual(bjt);
     expect(props("pnp")).toEqual(bjt);
-    const mos = [...base, "threshold", "kPrime", "width", "length", "lambda", "bodyEffect", "surfacePotential", "thresholdTempco", "kPrimeExponent", "gateSourceCapacitance", "gateDrainCapacitance", "oxideCapacitance"].sort();
+    const mos = [...base, "threshold", "kPrime", "width", "length", "lambda", "bodyEffect", "fermiPotential", "thresholdTempco", "kPrimeExponent", "gateSourceCapacitance", "gateDrainCapacitance", "oxideCapacitance"].sort();
     expect(props("nmos")).toEqual(mos);
     expect(props("pmos")).toEqual(mos);
   });

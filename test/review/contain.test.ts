@@ -42,6 +42,7 @@ const PLUGINS: Record<string, string> = {
   "bad-pos.mjs": rule("bad-pos", '    report.fail({ subject: "x", message: "bad position", pos: { file: "a.yaml", line: -5, column: 1 } });'),
   "writes-op.mjs": rule("writes-op", "    for (const n of Object.keys(view.op.nodes)) view.op.nodes[n] = 42;"),
   "writes-ss.mjs": rule("writes-ss", "    if (view.smallSignal) view.smallSignal.gains.length = 0;\n    view.circuit.components.pop();"),
+  "writes-map.mjs": rule("writes-map", "    view.circuit.models.clear();"),
   "keeps-alive.mjs": rule("keeps-alive", "    report.pass(view.circuit.name);", "setInterval(() => {}, 1000);"),
   "import-hangs.mjs": rule("import-hangs", "", "await new Promise(() => {});"),
   "import-exits.mjs": rule("import-exits", "", "process.exit(0);"),
@@ -117,10 +118,11 @@ describe("team rules that would end, stall or mislead the gate", () => {
 
   it("gives rules a read-only view: writes fail the rule and never reach the published results", async () => {
     const plain = await check([]);
-    const r = await check(["writes-op.mjs", "writes-ss.mjs"]);
+    const r = await check(["writes-op.mjs", "writes-ss.mjs", "writes-map.mjs"]);
     expect(r.code).toBe(1);
     expect(ruleErrors(r.doc, "writes-op")[0]).toMatch(/read.only|Cannot assign/);
     expect(ruleErrors(r.doc, "writes-ss")[0]).toMatch(/read.only|Cannot (assign|delete)|not extensible|Cannot add/);
+    expect(ruleErrors(r.doc, "writes-map")[0]).toMatch(/read-only for rules/);
     expect(r.doc!.circuits[0]!.operatingPoint).toEqual(plain.doc!.circuits[0]!.operatingPoint);
     expect(r.doc!.circuits[0]!.gains).toEqual(plain.doc!.circuits[0]!.gains);
     expect(r.doc!.circuits[0]!.findings.some((f) => f.rule === "internal")).toBe(false);

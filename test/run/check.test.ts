@@ -129,6 +129,16 @@ describe("opgate check", () => {
     const gh = await cli(["check", "boards", "--jobs", "1"], repo.dir, { CI: "true", GITHUB_ACTIONS: "true", GITHUB_STEP_SUMMARY: summary });
     expect(gh.stdout).toMatch(/^::error file=boards\/zz-unparseable\.yaml,line=\d+,col=\d+,title=opgate input%3A /m);
     expect(readFileSync(summary, "utf8")).toContain("**opgate: error**");
+    // After earlier content that did not end its line, the summary still starts a new block.
+    writeFileSync(summary, "Earlier step: done");
+    await cli(["check", "boards", "--jobs", "1"], repo.dir, { CI: "true", GITHUB_ACTIONS: "true", GITHUB_STEP_SUMMARY: summary });
+    const { fromMarkdown } = await import("mdast-util-from-markdown");
+    const tree = fromMarkdown(readFileSync(summary, "utf8"));
+    expect(tree.children[0]).toMatchObject({ type: "paragraph", children: [{ type: "text", value: "Earlier step: done" }] });
+    // The verdict is its own paragraph with a real strong node, not literal asterisks.
+    const second = tree.children[1] as { type: string; children: { type: string }[] };
+    expect(second.type).toBe("paragraph");
+    expect(second.children.some((n) => n.type === "strong")).toBe(true);
     // A shard job leaves annotations and the summary to the merge job.
     writeFileSync(summary, "");
     const shardJob = await cli(["check", "boards", "--jobs", "1", "--shard", "1/2", "--no-annotations"], repo.dir, { GITHUB_ACTIONS: "true", GITHUB_STEP_SUMMARY: summary });

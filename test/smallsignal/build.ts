@@ -33,9 +33,8 @@ export function bjtModel(id: string, kind: "npn" | "pnp", p: BjtParams = {}): Bj
     saturationCurrent: spread(p.saturationCurrent ?? 1e-14),
     earlyVoltage: spread(p.earlyVoltage ?? Infinity),
     saturationEdge: 0.3,
-    energyGap: 1.11,
-    saturationCurrentExponent: 3,
-    betaExponent: 1.5,
+    drift: { voltage: -0.002, current: 1e-3 },
+    betaDrift: 0.005,
   };
 }
 
@@ -46,7 +45,7 @@ export interface MosParams {
   length?: number;
   lambda?: number;
   bodyEffect?: number;
-  surfacePotential?: number;
+  fermiPotential?: number;
 }
 
 export function mosModel(id: string, kind: "nmos" | "pmos", p: MosParams = {}): MosfetModel {
@@ -60,7 +59,7 @@ export function mosModel(id: string, kind: "nmos" | "pmos", p: MosParams = {}): 
     length: p.length ?? 1e-6,
     lambda: spread(p.lambda ?? 0),
     bodyEffect: p.bodyEffect ?? 0,
-    surfacePotential: p.surfacePotential ?? 0.6,
+    fermiPotential: p.fermiPotential ?? 0.3,
     thresholdTempco: -2e-3,
     kPrimeExponent: -1.5,
   };

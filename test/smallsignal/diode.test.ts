@@ -18,8 +18,7 @@ function diodeModel(seriesResistance: number): DiodeModel {
     saturationCurrent: s(1e-14),
     ideality: s(1.8),
     seriesResistance,
-    energyGap: 1.11,
-    saturationCurrentExponent: 3,
+    drift: { voltage: -0.002, current: 1e-3 },
   };
 }
 

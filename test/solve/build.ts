@@ -22,6 +22,8 @@ export interface BjtParams {
   saturationCurrent?: number;
   earlyVoltage?: number;
   saturationEdge?: number;
+  drift?: { voltage: number; current: number };
+  betaDrift?: number;
 }
 export interface MosParams {
   threshold: number;
@@ -30,12 +32,13 @@ export interface MosParams {
   length?: number;
   lambda?: number;
   bodyEffect?: number;
-  surfacePotential?: number;
+  fermiPotential?: number;
 }
 export interface DiodeParams {
   saturationCurrent?: number;
   ideality?: number;
   seriesResistance?: number;
+  drift?: { voltage: number; current: number };
 }
 
 export class CircuitBuilder {
@@ -95,8 +98,7 @@ export class CircuitBuilder {
       saturationCurrent: spread(p.saturationCurrent ?? 1e-14),
       ideality: spread(p.ideality ?? 1),
       seriesResistance: p.seriesResistance ?? 0,
-      energyGap: 1.11,
-      saturationCurrentExponent: 3,
+      drift: p.drift ?? { voltage: -0.002, current: 1e-3 },
     };
     this.models.set(id, m);
     return this;
@@ -111,9 +113,8 @@ export class CircuitBuilder {
       saturationCurrent: spread(p.saturationCurrent ?? 1e-14),
       earlyVoltage: spread(p.earlyVoltage ?? Infinity),
       saturationEdge: p.saturationEdge ?? 0.3,
-      energyGap: 1.11,
-      saturationCurrentExponent: 3,
-      betaExponent: 1.5,
+      drift: p.drift ?? { voltage: -0.002, current: 1e-3 },
+      betaDrift: p.betaDrift ?? 0.005,
     };
     this.models.set(id, m);
     return this;
@@ -129,7 +130,7 @@ export class CircuitBuilder {
       length: p.length ?? 1e-6,
       lambda: spread(p.lambda ?? 0),
       bodyEffect: p.bodyEffect ?? 0,
-      surfacePotential: p.surfacePotential ?? 0.6,
+      fermiPotential: p.fermiPotential ?? 0.3,
       thresholdTempco: -2e-3,
       kPrimeExponent: -1.5,
     };

@@ -69,7 +69,7 @@ describe("NMOS", () => {
   it("body effect: Vt = Vt0 + γ(√(2φF + VSB) − √(2φF)) at the solved VSB (DESIGN.md §3)", () => {
     const [vt0, gamma, phi2] = [0.6, 0.45, 0.7];
     const c = circuit()
-      .mosModel("n", "nmos", { threshold: vt0, kPrime: 100e-6, width: 10e-6, bodyEffect: gamma, surfacePotential: phi2 })
+      .mosModel("n", "nmos", { threshold: vt0, kPrime: 100e-6, width: 10e-6, bodyEffect: gamma, fermiPotential: phi2 / 2 })
       .v("VDD", "vdd", "gnd", 5)
       .v("VG", "g", "gnd", 3)
       .r("RS", "s", "gnd", 2e3)

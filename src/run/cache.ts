@@ -1,0 +1,282 @@
+// Content-hash result cache (`check --cache`): a file whose content, policy and tool are unchanged
+// since a run that checked it gets that run's result back instead of being checked again.
+//
+// The key of a file's entry is the SHA-256 of the run key and the file's display path and bytes.
+// The run key covers everything else a result depends on: the tool and engine version, the
+// resolved policy (rules with their severities and options, fail-on, variation settings), the
+// content of every team-rule plugin and of every model library the config lists. An entry can
+// also record further files it depends on with their digests; they are re-read and compared on
+// every hit. An entry that cannot be read, does not parse, or was written for another key or
+// format is never trusted: the file is checked again and the run says so in one line.
+//
+// Entries are written to a temporary name and renamed into place, so a reader (another lane,
+// another CI job sharing the folder) sees a whole entry or none; two writers of the same entry
+// write the same bytes, and the last rename wins.
+import { createHash, randomBytes } from "node:crypto";
+import { mkdirSync, readdirSync, readFileSync, renameSync, rmSync, writeFileSync } from "node:fs";
+import { homedir } from "node:os";
+import { dirname, join, relative, sep } from "node:path";
+import { fileURLToPath } from "node:url";
+import type { CheckContext } from "../pipeline/check-file.js";
+import type { CircuitResult } from "../report/document.js";
+import type { CircuitFile } from "./discover.js";
+
+/** Written into every entry; a change of layout changes it (and the folder entries live in). */
+export const CACHE_FORMAT = "opgate-result-cache/1";
+const FORMAT_DIR = "v1";
+
+/** A file an entry depends on besides the circuit file: re-read and compared on every hit. */
+export interface CacheDependency {
+  readonly path: string;
+  readonly sha256: string;
+}
+
+/**
+ * Where the cache lives: OPGATE_CACHE_DIR when set; else the platform's per-user cache folder —
+ * %LOCALAPPDATA%\opgate\Cache on Windows, ~/Library/Caches/opgate on macOS, and
+ * $XDG_CACHE_HOME/opgate (default ~/.cache/opgate) elsewhere (XDG Base Directory Specification).
+ */
+export function defaultCacheDir(env: Readonly<Record<string, string | undefined>>, platform: string = process.platform, home: string = homedir()): string {
+  if (env.OPGATE_CACHE_DIR) return env.OPGATE_CACHE_DIR;
+  if (platform === "win32") return join(env.LOCALAPPDATA || join(home, "AppData", "Local"), "opgate", "Cache");
+  if (platform === "darwin") return join(home, "Library", "Caches", "opgate");
+  const xdg = env.XDG_CACHE_HOME;
+  // The specification: a relative XDG_CACHE_HOME is invalid and ignored.
+  return join(xdg && xdg.startsWith("/") ? xdg : join(home, ".cache"), "opgate");
+}
+
+export function sha256(data: string | Uint8Array): string {
+  return createHash("sha256").update(data).digest("hex");
+}
+
+/** Digest of a file's bytes, or null when it cannot be read. */
+function fileDigest(path: string): string | null {
+  try {
+    return sha256(readFileSync(path));
+  } catch {
+    return null;
+  }
+}
+
+/**
+ * The shared model libraries the config lists (`models: [...]`, absolute paths), when the config
+ * has them: their content is part of the run key.
+ */
+export function configModels(ctx: CheckContext): readonly string[] {
+  const models = (ctx.config as { readonly models?: unknown }).models;
+  return Array.isArray(models) ? models.filter((m): m is string => typeof m === "string") : [];
+}
+
+let codeDigestCache: string | undefined;
+
+/**
+ * Digest of the tool's own code (every module of src/ and rules/ it runs from, and the shipped
+ * schemas): a built-in rule or a model changed without a version bump must not be answered from
+ * results of the old code. ~1 MB read once per run, only when the cache is on.
+ */
+export function codeDigest(): string {
+  if (codeDigestCache !== undefined) return codeDigestCache;
+  // This module is <code root>/run/cache.(js|ts); the code root is src/ (or dist/src/), beside rules/ and schemas/.
+  const srcDir = dirname(dirname(fileURLToPath(import.meta.url)));
+  const base = dirname(srcDir);
+  const hash = createHash("sha256");
+  const walk = (dir: string): void => {
+    let names: string[];
+    try {
+      names = readdirSync(dir).sort();
+    } catch {
+      return;
+    }
+    for (const name of names) {
+      const path = join(dir, name);
+      if (name.endsWith(".js") || name.endsWith(".ts") || name.endsWith(".cjs") || name.endsWith(".json")) {
+        if (name.endsWith(".test.ts") || name.endsWith(".d.ts")) continue;
+        hash.update(relative(base, path)).update("\0").update(readFileSync(path)).update("\0");
+      } else if (!name.includes(".")) walk(path);
+    }
+  };
+  walk(srcDir);
+  walk(join(base, "rules"));
+  walk(join(base, "validators"));
+  walk(join(base, base.endsWith(`${sep}dist`) ? join("..", "schemas") : "schemas"));
+  codeDigestCache = hash.digest("hex");
+  return codeDigestCache;
+}
+
+/**
+ * The run key: everything besides the circuit file that its result depends on. `models` are the
+ * shared model libraries the config lists (absolute paths); `version` the tool's version.
+ */
+export function runKey(ctx: CheckContext, version: string, models: readonly string[] = []): string {
+  const { config } = ctx;
+  const strip = (setting: { severity?: unknown; options?: unknown }) => ({ severity: setting.severity ?? null, options: setting.options ?? null });
+  const rel = (p: string) => relative(ctx.root, p).split(sep).join("/");
+  const policy = {
+    format: CACHE_FORMAT,
+    version,
+    code: codeDigest(),
+    // Floating-point library functions (exp, log, pow) may round differently in another engine.
+    engine: process.versions.v8,
+    rules: ctx.rules.map((r) => [r.id, r.severity, r.source === "builtin" ? "builtin" : rel(r.source)]),
+    settings: Object.keys(config.rules)
+      .sort()
+      .map((id) => [id, strip(config.rules[id]!)]),
+    configured: ctx.configured.map((c) => [c.rule.id, c.severity, c.options]),
+    failOn: config.failOn,
+    variation: config.variation,
+    plugins: config.plugins.map((p) => [rel(p), fileDigest(p)]),
+    models: [...models].sort().map((p) => [rel(p), fileDigest(p)]),
+  };
+  return sha256(JSON.stringify(policy));
+}
+
+// Non-finite numbers do not survive JSON; results can hold them (an infinite margin), so they
+// are written as tagged strings and read back.
+const NON_FINITE = "\u0000opgate-number:";
+function encode(_key: string, value: unknown): unknown {
+  if (typeof value === "number" && !Number.isFinite(value)) return `${NON_FINITE}${String(value)}`;
+  return value;
+}
+/** Parses an entry; the tagged numbers are put back by a walk only when the text has any (a reviver on every value costs several times the parse). */
+function parseEntry(text: string): unknown {
+  const value: unknown = JSON.parse(text);
+  return text.includes("\\u0000opgate-number:") ? restore(value) : value;
+}
+function restore(value: unknown): unknown {
+  if (typeof value === "string") return value.startsWith(NON_FINITE) ? Number(value.slice(NON_FINITE.length)) : value;
+  if (Array.isArray(value)) {
+    for (let i = 0; i < value.length; i++) value[i] = restore(value[i]);
+  } else if (value !== null && typeof value === "object") {
+    const obj = value as Record<string, unknown>;
+    for (const k of Object.keys(obj)) obj[k] = restore(obj[k]);
+  }
+  return value;
+}
+
+interface Entry {
+  readonly format: string;
+  readonly key: string;
+  readonly file: string;
+  readonly deps: readonly CacheDependency[];
+  readonly result: CircuitResult;
+}
+
+export interface CacheLookup {
+  readonly key: string;
+  /** The stored result when the entry is present, whole and still valid. */
+  readonly result?: CircuitResult;
+}
+
+export interface CacheStats {
+  hits: number;
+  misses: number;
+  /** Entries present but not trusted (corrupt, foreign, stale dependency, unreadable). */
+  ignored: number;
+  firstIgnored?: string;
+  writeFailed?: string;
+}
+
+export class ResultCache {
+  readonly stats: CacheStats = { hits: 0, misses: 0, ignored: 0 };
+  private readonly root: string;
+
+  constructor(
+    readonly dir: string,
+    private readonly runKeyHex: string,
+  ) {
+    this.root = join(dir, FORMAT_DIR);
+  }
+
+  /** Path of the entry for a key (two-level fan-out keeps folders small). */
+  entryPath(key: string): string {
+    return join(this.root, key.slice(0, 2), `${key}.json`);
+  }
+
+  /** The key of a file from its bytes (read now); null when it cannot be read (it is checked, and reports that). */
+  keyOf(file: CircuitFile): string | null {
+    let bytes: Buffer;
+    try {
+      bytes = readFileSync(file.abs);
+    } catch {
+      return null;
+    }
+    return createHash("sha256").update(this.runKeyHex).update("\0").update(file.display).update("\0").update(bytes).digest("hex");
+  }
+
+  lookup(file: CircuitFile): CacheLookup | null {
+    const key = this.keyOf(file);
+    if (key === null) return null;
+    const path = this.entryPath(key);
+    let text: string;
+    try {
+      text = readFileSync(path, "utf8");
+    } catch (err) {
+      if ((err as NodeJS.ErrnoException).code !== "ENOENT") this.ignore(path, `cannot be read (${(err as NodeJS.ErrnoException).code ?? "error"})`);
+      this.stats.misses++;
+      return { key };
+    }
+    const why = this.invalid(text, key, file.display);
+    if (typeof why === "string") {
+      this.ignore(path, why);
+      this.stats.misses++;
+      return { key };
+    }
+    this.stats.hits++;
+    return { key, result: why.result };
+  }
+
+  /** Why an entry's text cannot be trusted, or the entry. */
+  private invalid(text: string, key: string, display: string): string | Entry {
+    let entry: Entry;
+    try {
+      entry = parseEntry(text) as Entry;
+    } catch {
+      return "is not valid JSON";
+    }
+    if (entry === null || typeof entry !== "object" || entry.format !== CACHE_FORMAT) return "is not an entry of this cache format";
+    if (entry.key !== key || entry.file !== display) return "belongs to another file or policy";
+    const result = entry.result as unknown;
+    if (result === null || typeof result !== "object" || (result as CircuitResult).file !== display || !Array.isArray((result as CircuitResult).findings)) return "holds no result";
+    if (!Array.isArray(entry.deps)) return "has no dependency list";
+    for (const dep of entry.deps) {
+      if (typeof dep?.path !== "string" || fileDigest(dep.path) !== dep.sha256) return `is stale (${typeof dep?.path === "string" ? dep.path : "a dependency"} changed)`;
+    }
+    return entry;
+  }
+
+  private ignore(path: string, why: string): void {
+    this.stats.ignored++;
+    this.stats.firstIgnored ??= `${path} ${why}`;
+  }
+
+  /** Stores a result under its key (whole file, renamed into place); a failure is remembered, not thrown. */
+  store(key: string, result: CircuitResult, deps: readonly string[] = []): void {
+    const entry: Entry = {
+      format: CACHE_FORMAT,
+      key,
+      file: result.file,
+      deps: deps.map((path) => ({ path, sha256: fileDigest(path) ?? "" })),
+      result,
+    };
+    const path = this.entryPath(key);
+    const temp = `${path}.${process.pid}.${randomBytes(6).toString("hex")}.tmp`;
+    try {
+      mkdirSync(join(this.root, key.slice(0, 2)), { recursive: true });
+      writeFileSync(temp, JSON.stringify(entry, encode));
+      renameSync(temp, path);
+    } catch (err) {
+      rmSync(temp, { force: true });
+      this.stats.writeFailed ??= `${path}: ${(err as NodeJS.ErrnoException).code ?? (err instanceof Error ? err.message : String(err))}`;
+    }
+  }
+
+  /** One line for the run (nothing when there is nothing to say beyond the counts). */
+  summary(): string {
+    const s = this.stats;
+    const total = s.hits + s.misses;
+    let line = `cache: ${s.hits} of ${total} file${total === 1 ? "" : "s"} unchanged, ${s.misses} checked (${this.dir})`;
+    if (s.ignored > 0) line += `; ignored ${s.ignored} entr${s.ignored === 1 ? "y" : "ies"} that could not be trusted (first: ${s.firstIgnored}), those files were checked again`;
+    if (s.writeFailed) line += `; could not write to the cache (${s.writeFailed}), results of this run are not cached`;
+    return line;
+  }
+}
