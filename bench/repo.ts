@@ -3,7 +3,7 @@
 // interleaved over several rounds in one run. Reports the wall times, their ratios and the
 // per-file cost, beside what the machine itself gives in parallel at that moment (this shared
 // machine's spare capacity changes from minute to minute) and how many cores one job really uses.
-// Needs the built dist/ (`npm run build`): it runs dist/src/cli/bin.js as CI would.
+// Needs the built dist/ (`npm run build`): it runs the bundled CLI (dist/bundle/bin.js) as CI would.
 // Run alone with `npx tsx bench/repo.ts`; `npm run bench` calls benchRepo().
 import { spawnSync } from "node:child_process";
 import { mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync, existsSync } from "node:fs";
@@ -224,7 +224,7 @@ function median(values: readonly number[]): number {
 }
 
 export async function benchRepo(): Promise<RepoBenchResult> {
-  const bin = join(PACKAGE_ROOT, "dist", "src", "cli", "bin.js");
+  const bin = join(PACKAGE_ROOT, "dist", "bundle", "bin.js");
   if (!existsSync(bin)) throw new Error("bench/repo.ts needs the built CLI: run `npm run build` first");
   const dir = mkdtempSync(join(tmpdir(), "opgate-bench-repo-"));
   try {

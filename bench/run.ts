@@ -6,6 +6,7 @@ type Bench = { name: string; load: () => Promise<() => Promise<unknown>> };
 const BENCHES: Bench[] = [
   { name: "bias solve", load: async () => (await import("./solve.js")).benchSolve },
   { name: "small-signal", load: async () => (await import("./smallsignal.js")).benchSmallSignal },
+  { name: "start-up", load: async () => (await import("./startup.js")).benchStartup },
   { name: "team rules contained", load: async () => (await import("./rules.js")).benchRules },
   { name: "repository run", load: async () => (await import("./repo.js")).benchRepo },
 ];

@@ -12,11 +12,55 @@ import type { MathJsInstance, MathNode } from "mathjs";
  */
 let sandbox: { math: MathJsInstance; parse: MathJsInstance["parse"] } | null = null;
 
+/**
+ * What the sandbox instance is made of: mathjs's parser and compiler, and only the arithmetic
+ * and elementary functions an expression may call (ALLOWED_OPERATORS, ALLOWED_FUNCTIONS), by
+ * the names of their dependency objects in mathjs. A custom instance costs a fraction of the
+ * whole library's functions; `test/circuit/math-instance.test.ts` checks this list against the
+ * allowlists.
+ */
+export const MATH_DEPENDENCIES = [
+  "parseDependencies",
+  "compileDependencies",
+  "addDependencies",
+  "subtractDependencies",
+  "multiplyDependencies",
+  "divideDependencies",
+  "powDependencies",
+  "unaryMinusDependencies",
+  "unaryPlusDependencies",
+  "sqrtDependencies",
+  "expDependencies",
+  "logDependencies",
+  "log10Dependencies",
+  "absDependencies",
+  "minDependencies",
+  "maxDependencies",
+  "sinDependencies",
+  "cosDependencies",
+  "tanDependencies",
+] as const;
+
+/** `create` and the dependency objects of MATH_DEPENDENCIES, from mathjs's number build. */
+export type MathLibrary = { readonly create: typeof import("mathjs").create } & { readonly [K in (typeof MATH_DEPENDENCIES)[number]]: unknown };
+
+let provided: MathLibrary | undefined;
+
+/**
+ * The bundled CLI (scripts/build-bundle.mjs) hands over the pieces it bundled, so that only they
+ * are loaded; otherwise they come from mathjs's number build on first use.
+ */
+export function provideMathLibrary(lib: MathLibrary): void {
+  provided = lib;
+}
+
 function getSandbox(): { math: MathJsInstance; parse: MathJsInstance["parse"] } {
   if (sandbox) return sandbox;
-  // The number-only build: circuit expressions are real arithmetic, and it loads in about half the time.
-  const { all, create } = createRequire(import.meta.url)("mathjs/number") as typeof import("mathjs");
-  const math = create(all!);
+  // The number-only build: circuit expressions are real arithmetic.
+  const lib = provided ?? (createRequire(import.meta.url)("mathjs/number") as MathLibrary);
+  const factories: Record<string, unknown> = {};
+  for (const name of MATH_DEPENDENCIES) factories[name] = lib[name];
+  const math = lib.create(factories as Parameters<typeof lib.create>[0]);
   // Private reference kept before the public one is disabled.
   const parse = math.parse.bind(math) as MathJsInstance["parse"];
   math.import(

@@ -15,7 +15,7 @@
 import { createHash, randomBytes } from "node:crypto";
 import { mkdirSync, readdirSync, readFileSync, renameSync, rmSync, writeFileSync } from "node:fs";
 import { homedir } from "node:os";
-import { dirname, join, relative, sep } from "node:path";
+import { dirname, join, relative, resolve, sep } from "node:path";
 import { fileURLToPath } from "node:url";
 import type { CheckContext } from "../pipeline/check-file.js";
 import type { CircuitResult } from "../report/document.js";
@@ -58,13 +58,17 @@ function fileDigest(path: string): string | null {
   }
 }
 
-/**
- * The shared model libraries the config lists (`models: [...]`, absolute paths), when the config
- * has them: their content is part of the run key.
- */
+/** The model libraries the config lists (every circuit uses them): their content is part of the run key. */
 export function configModels(ctx: CheckContext): readonly string[] {
-  const models = (ctx.config as { readonly models?: unknown }).models;
-  return Array.isArray(models) ? models.filter((m): m is string => typeof m === "string") : [];
+  return ctx.config.libraries ?? [];
+}
+
+/**
+ * The files a result depends on beyond the circuit file and the run key: the model libraries it
+ * records (a library the circuit names itself), with the digests it was checked with.
+ */
+export function resultDependencies(result: CircuitResult, root: string): CacheDependency[] {
+  return (result.libraries ?? []).map((l) => ({ path: resolve(root, l.file), sha256: l.sha256 }));
 }
 
 let codeDigestCache: string | undefined;
@@ -250,12 +254,13 @@ export class ResultCache {
   }
 
   /** Stores a result under its key (whole file, renamed into place); a failure is remembered, not thrown. */
-  store(key: string, result: CircuitResult, deps: readonly string[] = []): void {
+  store(key: string, result: CircuitResult, deps: readonly (string | CacheDependency)[] = []): void {
     const entry: Entry = {
       format: CACHE_FORMAT,
       key,
       file: result.file,
-      deps: deps.map((path) => ({ path, sha256: fileDigest(path) ?? "" })),
+      // A path alone is digested now; a dependency with its digest keeps the one the result was made with.
+      deps: deps.map((d) => (typeof d === "string" ? { path: d, sha256: fileDigest(d) ?? "" } : d)),
       result,
     };
     const path = this.entryPath(key);

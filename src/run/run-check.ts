@@ -4,7 +4,7 @@ import type { CheckContext, CheckContextOptions } from "../pipeline/check-file.j
 import { buildDocument } from "../report/build.js";
 import type { ResultsDocument } from "../report/document.js";
 import { shardProvenance } from "../report/merge.js";
-import type { ResultCache } from "./cache.js";
+import { resultDependencies, type ResultCache } from "./cache.js";
 import type { CircuitFile } from "./discover.js";
 import type { LaneKind } from "./lane.js";
 import { checkFiles } from "./pool.js";
@@ -58,7 +58,7 @@ export async function runCheck(allFiles: readonly CircuitFile[], options: RunOpt
       if (hit?.result !== undefined) return hit.result;
       const result = checked[next++]!;
       // A file that could not be read has no key: nothing to store.
-      if (hit) cache.store(hit.key, result);
+      if (hit) cache.store(hit.key, result, resultDependencies(result, options.ctx.root));
       return result;
     });
   }

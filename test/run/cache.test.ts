@@ -208,3 +208,53 @@ describe("result cache, key and entries", () => {
 function got(cache: ResultCache, file: { abs: string; display: string }): string {
   return cache.keyOf(file)!;
 }
+
+describe("result cache and model libraries", () => {
+  const LIB = (beta: number) => `format: opgate-library/1
+models:
+  tw-npn: { kind: npn, beta: { min: 100, typ: ${beta}, max: 400 }, saturationCurrent: 1e-14 A, earlyVoltage: 100 V }
+`;
+  const OWN = (beta: number) => `format: opgate-library/1
+models:
+  own-npn: { kind: npn, beta: { min: 100, typ: ${beta}, max: 400 }, saturationCurrent: 1e-14 A }
+`;
+  const follower = (name: string, model: string, extra = "") => `format: opgate-circuit/1
+name: ${name}
+${extra}components:
+  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, voltage: 12 V }
+  - { id: RB, kind: resistor, pins: [vcc, b], value: 100k }
+  - { id: RB2, kind: resistor, pins: [b, gnd], value: 47k }
+  - { id: Q1, kind: npn, model: ${model}, pins: { collector: vcc, base: b, emitter: out } }
+  - { id: RE, kind: resistor, pins: [out, gnd], value: 1k }
+`;
+  let lib: { dir: string; cleanup(): void };
+  beforeAll(() => {
+    lib = makeRepo({
+      "opgate.config.yaml": "libraries: [lib/parts.yaml]\n",
+      "lib/parts.yaml": LIB(250),
+      "lib/own.yaml": OWN(200),
+      "cards/a.yaml": follower("follower-a", "tw-npn"),
+      "cards/b.yaml": follower("follower-b", "own-npn", "libraries: [../lib/own.yaml]\n"),
+    });
+  });
+  afterAll(() => lib.cleanup());
+  const run = async (): Promise<{ line: string; json: string }> => {
+    const r = await cli(["check", "cards", "-q", "--json=-", "--cache-dir", ".c"], lib.dir);
+    return { line: r.stderr.split("\n").find((l) => l.startsWith("opgate: cache:")) ?? "", json: r.stdout };
+  };
+
+  it("a circuit's own library is a recorded dependency; the config's libraries are part of every key", async () => {
+    await run();
+    expect((await run()).line).toContain("cache: 2 of 2 files unchanged");
+    // The library one circuit names: only that circuit is checked again (the entry's dependency is stale).
+    writeFileSync(join(lib.dir, "lib/own.yaml"), OWN(120));
+    const own = await run();
+    expect(own.line).toContain("cache: 1 of 2 files unchanged, 1 checked");
+    expect(own.line).toMatch(/is stale \(.*own\.yaml changed\)/);
+    const fresh = await cli(["check", "cards", "-q", "--json=-"], lib.dir);
+    expect(own.json).toBe(fresh.stdout);
+    // The library the config lists: every circuit.
+    writeFileSync(join(lib.dir, "lib/parts.yaml"), LIB(300));
+    expect((await run()).line).toContain("cache: 0 of 2 files unchanged, 2 checked");
+  });
+});
