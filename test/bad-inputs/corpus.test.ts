@@ -61,6 +61,7 @@ const CORPUS: Record<string, [RegExp, boolean]> = {
   "old-key-surface-potential.yaml": [/unknown key `surfacePotential` in model n1.*`surfacePotential` is now `fermiPotential` \(the Fermi potential φF, half the old value/, true],
   "old-key-energy-gap.yaml": [/unknown key `energyGap` in model q1.*`energyGap` is now `baseEmitterDrift`.*VBE drift/, true],
   "old-key-saturation-exponent.yaml": [/unknown key `saturationCurrentExponent` in model d1.*`saturationCurrentExponent` is now `forwardVoltageDrift`/, true],
+  "old-key-lambda.yaml": [/unknown key `lambda` in model n1.*`lambda` is now `channelLengthModulation`/, true],
   "old-key-control.yaml": [/unknown key `control` in component F1.*`control` is now `sense`/, true],
   "signal-negative.yaml": [/component V1: the signal amplitude must be positive/, true],
 };
