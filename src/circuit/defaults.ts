@@ -45,7 +45,7 @@ export const DEFAULT_DRIFT_CURRENT_A = 1e-3;
 export const DEFAULT_BETA_DRIFT_PER_K = 0.005;
 
 /** Channel-length modulation λ: 0 (no output-conductance term unless given). */
-export const DEFAULT_LAMBDA = 0;
+export const DEFAULT_CHANNEL_LENGTH_MODULATION = 0;
 /** Body-effect coefficient γ: 0 (body effect off unless given). */
 export const DEFAULT_BODY_EFFECT = 0;
 /**

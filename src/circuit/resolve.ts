@@ -194,12 +194,12 @@ export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model |
     const kPrime = req("kPrime", "transconductance-parameter");
     const width = n("width", "length", NaN);
     const length = n("length", "length", NaN);
-    const lambda = s("lambda", "per-volt", D.DEFAULT_LAMBDA);
+    const channelLengthModulation = s("channelLengthModulation", "per-volt", D.DEFAULT_CHANNEL_LENGTH_MODULATION);
     const bodyEffect = n("bodyEffect", "sqrt-volt", D.DEFAULT_BODY_EFFECT);
     const fermiPotential = n("fermiPotential", "voltage", D.DEFAULT_FERMI_POTENTIAL_V);
     const thresholdTempco = n("thresholdTempco", "volt-per-kelvin", D.DEFAULT_THRESHOLD_TEMPCO_V_PER_K);
     const kPrimeExponent = n("kPrimeExponent", "dimensionless", D.DEFAULT_KPRIME_EXPONENT);
-    if (!threshold || !kPrime || !lambda || width === undefined || length === undefined) return undefined;
+    if (!threshold || !kPrime || !channelLengthModulation || width === undefined || length === undefined) return undefined;
     if (bodyEffect === undefined || fermiPotential === undefined || thresholdTempco === undefined || kPrimeExponent === undefined) return undefined;
     if (!(width > 0)) ctx.error([...path, "width"], `${what}: width must be positive`);
     if (!(lambda.min >= 0)) ctx.error([...path, "lambda"], `${what}: lambda must be zero or positive`, "write it without a sign, e.g. 0.02 /V; omit it for no channel-length modulation");
@@ -222,7 +222,7 @@ export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model |
       ["oxideCapacitance", "capacitance-per-area"],
     ]);
     const ratings = readRatings(ctx, raw, path, what, [["drainSource", "voltage"], ["gateSource", "voltage"], ["drainCurrent", "current"]] as const);
-    return { ...base, kind, threshold, kPrime, width, length, lambda, bodyEffect, fermiPotential, thresholdTempco, kPrimeExponent, ...caps, ...ratings };
+    return { ...base, kind, threshold, kPrime, width, length, channelLengthModulation, bodyEffect, fermiPotential, thresholdTempco, kPrimeExponent, ...caps, ...ratings };
   }
   return undefined;
 }
