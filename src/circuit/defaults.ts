@@ -61,3 +61,10 @@ export const DEFAULT_KPRIME_EXPONENT = -1.5;
 
 /** Bare temperature numbers below this are probably meant as °C: 25 K is far colder than any board. */
 export const SUSPICIOUS_KELVIN_BELOW = 150;
+
+/**
+ * Highest ambient a circuit file may state: 200 °C. Silicon devices are rated to 150–200 °C
+ * junction (common practice: datasheet absolute maximum ratings); far above it the junction
+ * models give numbers that mean nothing (1e6 °C once ended in "singular at node …").
+ */
+export const MAX_TEMPERATURE_K = 473.15;
