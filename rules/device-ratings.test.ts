@@ -1,7 +1,8 @@
 // device-ratings: breakdowns, gate–source maximum, diode reverse voltage and forward current
 // against 80 % of the datasheet ratings, NPN/PNP and NMOS/PMOS alike, at the worst corner.
 import { describe, expect, it } from "vitest";
-import { ruleTester, runRuleCase } from "../src/review/tester.js";
+import { verifyRule, runRuleCase } from "../src/review/tester.js";
+import { testsFromVerdict } from "../test/verdict-tests.js";
 import { analysis, bjt, bjtPoint, circuit, mos, mosPoint, op } from "../test/review/fixtures.js";
 import deviceRatings from "./device-ratings.js";
 
@@ -75,11 +76,11 @@ components:
 const boundaryModel = { id: "q", kind: "npn" as const, pos: { file: "f", line: 1, column: 1 }, beta: { min: 100, typ: 100, max: 100 }, reverseBeta: { min: 1, typ: 1, max: 1 }, saturationCurrent: { min: 1e-14, typ: 1e-14, max: 1e-14 }, earlyVoltage: { min: Infinity, typ: Infinity, max: Infinity }, saturationEdge: 0.3, drift: { voltage: -0.002, current: 1e-3 }, betaDrift: 0.005, betaAt: { collectorEmitterVoltage: 5, collectorCurrent: 2e-3 }, ratings: { collectorEmitter: 10 } };
 const boundary = circuit({ components: [bjt("Q1", "pnp", 20)], models: [boundaryModel] });
 const atVce = (vce: number) => [analysis(boundary, op({ Q1: bjtPoint("pnp", { collectorEmitterVoltage: vce, baseEmitterVoltage: -0.65 }) }))];
-const mosModel = { id: "m", kind: "pmos" as const, pos: { file: "f", line: 1, column: 1 }, threshold: { min: -1, typ: -1, max: -1 }, kPrime: { min: 1e-3, typ: 1e-3, max: 1e-3 }, width: 1e-6, length: 1e-6, lambda: { min: 0, typ: 0, max: 0 }, bodyEffect: 0, fermiPotential: 0.3, thresholdTempco: -0.002, kPrimeExponent: -1.5, ratings: { gateSource: 20, drainCurrent: 0.1 } };
+const mosModel = { id: "m", kind: "pmos" as const, pos: { file: "f", line: 1, column: 1 }, threshold: { min: -1, typ: -1, max: -1 }, kPrime: { min: 1e-3, typ: 1e-3, max: 1e-3 }, width: 1e-6, length: 1e-6, channelLengthModulation: { min: 0, typ: 0, max: 0 }, bodyEffect: 0, fermiPotential: 0.3, thresholdTempco: -0.002, kPrimeExponent: -1.5, ratings: { gateSource: 20, drainCurrent: 0.1 } };
 const mosBoundary = circuit({ components: [mos("M1", "pmos", 30)], models: [mosModel] });
 const atVgs = (vgs: number, id = 1e-3) => [analysis(mosBoundary, op({ M1: mosPoint("pmos", { gateSourceVoltage: vgs, drainCurrent: id, drainSourceVoltage: -5 }) }))];
 
-ruleTester(deviceRatings).run([
+testsFromVerdict(await verifyRule(deviceRatings, [
   { name: "a gate at 12 V is within 80% of a 20 V VGS rating", circuit: gateAtRail("12 V"), expect: [], passed: ["M1"] },
   { name: "a gate over its VGS maximum: 18 V against 16 V allowed", circuit: gateAtRail("18 V"), expect: [{ subject: "M1", messageIncludes: "VGS is 18 V; allowed 16 V (80% of its VGS max rating of 20 V)" }] },
   { name: "PMOS: VGS = −18 V is judged by its magnitude", circuit: pmosGate("18 V"), expect: [{ subject: "M1", messageIncludes: "VGS is 18 V" }] },
@@ -96,7 +97,7 @@ ruleTester(deviceRatings).run([
   { name: "boundary: PNP VCE −8.001 V against 8 V fails", circuit: boundary, analyses: atVce(-8.001), expect: [{ subject: "Q1" }] },
   { name: "boundary: PNP VCE −7.999 V passes", circuit: boundary, analyses: atVce(-7.999), expect: [], passed: ["Q1"] },
   { name: "two ratings over: the worst is reported and the other listed", circuit: mosBoundary, analyses: atVgs(-30, 0.09), expect: [{ subject: "M1", messageIncludes: "VGS is 30 V; allowed 16 V (80% of its VGS max rating of 20 V); also ID 90 mA over 80 mA" }] },
-]);
+]));
 
 describe("the worst corner", () => {
   it("a collector over its breakdown rating only at the high-supply corner is found there", async () => {

@@ -11,6 +11,7 @@ import { loadCircuitFile } from "../circuit/index.js";
 import type { Circuit, InputError, LibraryUse } from "../circuit/types.js";
 import { relative, sep } from "node:path";
 import { gainEntries, operatingPointEntry } from "./entries.js";
+import { withGainExtras } from "./gain-extras.js";
 
 /** Everything a check needs besides the file; built once per process (or worker). */
 export interface CheckContext {
@@ -141,7 +142,7 @@ export async function checkCircuit(circuit: Circuit, ctx: CheckContext, displayP
     name: circuit.name,
     status,
     operatingPoint: nominal.solve.ok ? operatingPointEntry(nominal.solve) : null,
-    gains: nominal.smallSignal ? gainEntries(circuit, nominal.smallSignal) : [],
+    gains: nominal.smallSignal && nominal.solve.ok ? withGainExtras(gainEntries(circuit, nominal.smallSignal), circuit, nominal.solve) : [],
     scenarios: v.scenarios,
     findings: located,
     passed,

@@ -31,7 +31,7 @@ const SYMBOL: Readonly<Record<(typeof SPREAD_FIELDS)[number], string>> = {
   ideality: "n",
   threshold: "Vth",
   kPrime: "k′",
-  lambda: "λ",
+  channelLengthModulation: "λ",
   breakdownVoltage: "VZ",
 };
 

@@ -24,7 +24,7 @@ export const SPREAD_FIELDS = [
   "breakdownVoltage",
   "threshold",
   "kPrime",
-  "lambda",
+  "channelLengthModulation",
 ] as const;
 
 export function valueField(c: Component): "value" | "voltage" | "current" | null {

@@ -104,7 +104,7 @@ components:
     {
       name: "NMOS source-degenerated drain current",
       text: `models:
-  n: { kind: nmos, threshold: { min: 0.9, typ: 1, max: 1.1 }, kPrime: { min: 1.6m, typ: 2m, max: 2.4m }, width: 1u, length: 1u, lambda: 0.02 }
+  n: { kind: nmos, threshold: { min: 0.9, typ: 1, max: 1.1 }, kPrime: { min: 1.6m, typ: 2m, max: 2.4m }, width: 1u, length: 1u, channelLengthModulation: 0.02 }
 components:
   - { id: VDD, kind: voltage-source, pins: { plus: vdd, minus: gnd }, voltage: 10 V, tolerance: 5% }
   - { id: RG1, kind: resistor, pins: [vdd, g], value: 220k, tolerance: 1% }
