@@ -32,7 +32,7 @@ it("writes a commented config and the example rule, and refuses to overwrite wit
 
   const again = fakeIo(repo);
   expect(await run(["init"], again)).toBe(2);
-  expect(again.err.join("")).toContain("opgate.config.yaml and team-rules/divider-current.mjs already exist; nothing written");
+  expect(again.err.join("")).toContain("opgate.config.yaml, team-rules/divider-current.mjs and lib/parts.yaml already exist; nothing written");
 
   writeFileSync(join(repo, "opgate.config.yaml"), "# mine\n");
   expect(await run(["init", "--force"], fakeIo(repo))).toBe(0);
@@ -52,6 +52,11 @@ it("writes a starter that works as written in an empty repository: opgate init, 
   expect(rule).not.toMatch(/require\(/);
   // No demo company's rule id in a user's repository.
   expect(`${rule}${readFileSync(join(repo, "opgate.config.yaml"), "utf8")}`).not.toMatch(/tidewater/i);
+  // The starter library is listed, and it loads (a valid opgate-library/1 file).
+  expect(c.libraries).toEqual([join(repo, "lib", "parts.yaml")]);
+  const { loadLibrary, loadCircuitSchema } = await import("../../src/circuit/index.js");
+  const lib = loadLibrary({ path: c.libraries[0]!, shown: "lib/parts.yaml" }, loadCircuitSchema());
+  expect(lib.ok && [...lib.library.models.keys()]).toEqual(["tw-npn", "tw-pnp", "tw-ref-5v1", "tw-status-led"]);
 
   const rules = fakeIo(repo);
   expect(await run(["rules", "team/divider-current"], rules)).toBe(0);
