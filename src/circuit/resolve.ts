@@ -219,7 +219,8 @@ function resolveComponent(ctx: ResolveContext, raw: Obj, index: number): Compone
   const two = Array.isArray(pinsRaw) ? { a: String(pinsRaw[0]), b: String(pinsRaw[1]) } : { a: "", b: "" };
   const tol = (key: string, q: Quantity): Toleranced | undefined => readToleranced(ctx, raw, key, path, q, what);
   const opt = (key: string, q: Quantity) => readOptional(ctx, raw, key, path, q, what);
-  const base = { id, pos };
+  const waive = raw["waive"] !== undefined ? Object.fromEntries(Object.entries(asObj(raw["waive"])).map(([rule, reason]) => [rule, String(reason)])) : undefined;
+  const base = { id, pos, ...(waive ? { waive } : {}) };
   switch (raw["kind"]) {
     case "resistor": {
       const value = tol("value", "resistance");

@@ -41,6 +41,8 @@ export interface Spread {
 interface ComponentBase {
   readonly id: string;
   readonly pos: SourcePos;
+  /** Rules waived for this component: rule id → the reason given (`waive:` in the file). */
+  readonly waive?: Readonly<Record<string, string>>;
 }
 
 export interface Resistor extends ComponentBase {
