@@ -65,7 +65,7 @@ export function cascadeCircuit(stages = STAGES): Circuit {
           earlyVoltage: spread(90),
           saturationEdge: 0.3,
           drift: { voltage: -0.002, current: 1e-3 },
-          betaDrift: 0.005,
+          betaDrift: 0.005, betaAt: { collectorEmitterVoltage: 5, collectorCurrent: 2e-3 },
         },
       ],
     ]),

@@ -56,7 +56,7 @@ export function chainCircuit(nodes: number, seed = 1): Circuit {
   const models = new Map<string, Model>([
     [
       "npn",
-      { id: "npn", pos: POS, kind: "npn", beta: spread(150), reverseBeta: spread(1), saturationCurrent: spread(1e-14), earlyVoltage: spread(80), saturationEdge: 0.3, drift: { voltage: -0.002, current: 1e-3 }, betaDrift: 0.005 },
+      { id: "npn", pos: POS, kind: "npn", beta: spread(150), reverseBeta: spread(1), saturationCurrent: spread(1e-14), earlyVoltage: spread(80), saturationEdge: 0.3, drift: { voltage: -0.002, current: 1e-3 }, betaDrift: 0.005, betaAt: { collectorEmitterVoltage: 5, collectorCurrent: 2e-3 } },
     ],
     [
       "nmos",

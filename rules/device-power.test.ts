@@ -5,7 +5,7 @@ import type { BjtModel } from "../src/circuit/types.js";
 import { npnStage, pmosStage, pnpStage } from "../test/review/circuits.js";
 import devicePower from "./device-power.js";
 
-const model = (powerRating: number): BjtModel => ({ id: "q", kind: "pnp", pos: { file: "x", line: 5, column: 3 }, powerRating, beta: { min: 100, typ: 200, max: 300 }, reverseBeta: { min: 1, typ: 1, max: 1 }, saturationCurrent: { min: 1e-14, typ: 1e-14, max: 1e-14 }, earlyVoltage: { min: Infinity, typ: Infinity, max: Infinity }, saturationEdge: 0.3, drift: { voltage: -0.002, current: 1e-3 }, betaDrift: 0.005 });
+const model = (powerRating: number): BjtModel => ({ id: "q", kind: "pnp", pos: { file: "x", line: 5, column: 3 }, powerRating, beta: { min: 100, typ: 200, max: 300 }, reverseBeta: { min: 1, typ: 1, max: 1 }, saturationCurrent: { min: 1e-14, typ: 1e-14, max: 1e-14 }, earlyVoltage: { min: Infinity, typ: Infinity, max: Infinity }, saturationEdge: 0.3, drift: { voltage: -0.002, current: 1e-3 }, betaDrift: 0.005, betaAt: { collectorEmitterVoltage: 5, collectorCurrent: 2e-3 } });
 const hot = (power: number, temperatureK: number) => {
   const c = circuit({ components: [bjt("Q1", "pnp", 10)], models: [model(0.2)], temperature: temperatureK });
   return { circuit: c, analyses: [analysis(c, op({ Q1: bjtPoint("pnp", { power }) }))] };

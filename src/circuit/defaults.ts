@@ -30,6 +30,12 @@ export const DEFAULT_SATURATION_EDGE_V = 0.3;
  * diodes and transistors show −1.8 to −2.2 mV/°C near 1 mA).
  */
 export const DEFAULT_JUNCTION_DRIFT_V_PER_K = -0.002;
+/**
+ * Test condition of a BJT's `beta` when the model gives none: VCE = 5 V, IC = 2 mA (common practice:
+ * a usual hFE test condition on small-signal transistor datasheets; from memory).
+ */
+export const DEFAULT_BETA_TEST_VCE_V = 5;
+export const DEFAULT_BETA_TEST_IC_A = 2e-3;
 /** Current the junction drift is stated at when the model gives none: 1 mA (a typical small-signal test current). */
 export const DEFAULT_DRIFT_CURRENT_A = 1e-3;
 /**

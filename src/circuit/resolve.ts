@@ -97,6 +97,20 @@ const MAX_JUNCTION_DRIFT_V_PER_K = 0.01;
 /** A gain drift beyond ±5 %/°C is not a transistor's (common practice: about +0.5 %/°C). */
 const MAX_BETA_DRIFT_PER_K = 0.05;
 
+/** `betaAt: { collectorEmitterVoltage, collectorCurrent }`: where the datasheet states beta (magnitudes). */
+function betaTestCondition(ctx: ResolveContext, raw: Obj, path: readonly PathSegment[], what: string) {
+  const b = asObj(raw["betaAt"]);
+  const bp = [...path, "betaAt"];
+  const collectorEmitterVoltage = readNumberOr(ctx, b, "collectorEmitterVoltage", bp, "voltage", `${what} betaAt`, D.DEFAULT_BETA_TEST_VCE_V);
+  const collectorCurrent = readNumberOr(ctx, b, "collectorCurrent", bp, "current", `${what} betaAt`, D.DEFAULT_BETA_TEST_IC_A);
+  if (collectorEmitterVoltage === undefined || collectorCurrent === undefined) return undefined;
+  if (!(collectorEmitterVoltage > 0) || !(collectorCurrent > 0)) {
+    ctx.error(bp, `${what}: betaAt needs a positive collectorEmitterVoltage and collectorCurrent (magnitudes, also for a pnp)`, "write the datasheet's hFE condition, e.g. { collectorEmitterVoltage: 5 V, collectorCurrent: 2 mA }");
+    return undefined;
+  }
+  return { collectorEmitterVoltage, collectorCurrent };
+}
+
 /** The junction's forward-voltage drift (`key`, V/K) and the current it is stated at (`driftCurrent`). */
 function junctionDrift(ctx: ResolveContext, raw: Obj, path: readonly PathSegment[], what: string, key: string, defaultCurrent: number) {
   const voltage = readNumberOr(ctx, raw, key, path, "volt-per-kelvin", what, D.DEFAULT_JUNCTION_DRIFT_V_PER_K);
@@ -159,8 +173,9 @@ export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model |
     const saturationEdge = n("saturationEdge", "voltage", D.DEFAULT_SATURATION_EDGE_V);
     const drift = junctionDrift(ctx, raw, path, what, "baseEmitterDrift", D.DEFAULT_DRIFT_CURRENT_A);
     const betaDrift = n("betaDrift", "percent-per-kelvin", D.DEFAULT_BETA_DRIFT_PER_K);
+    const betaAt = betaTestCondition(ctx, raw, path, what);
     if (!beta || !reverseBeta || !saturationCurrent || !earlyVoltage) return undefined;
-    if (saturationEdge === undefined || !drift || betaDrift === undefined) return undefined;
+    if (saturationEdge === undefined || !drift || betaDrift === undefined || !betaAt) return undefined;
     if (!(Math.abs(betaDrift) < MAX_BETA_DRIFT_PER_K)) ctx.error([...path, "betaDrift"], `${what}: betaDrift ${betaDrift * 100} %/°C is outside ±${MAX_BETA_DRIFT_PER_K * 100} %/°C`, "small-signal transistors' gain rises about 0.5 %/°C; write e.g. 0.5 %/°C");
     if (earlyVoltage.min <= 0) ctx.error([...path, "earlyVoltage"], `${what}: earlyVoltage must be a positive magnitude`, "write it without a sign, e.g. 90 V; omit it for no Early effect");
     if (beta.min <= 0) ctx.error([...path, "beta"], `${what}: beta must be positive`);
@@ -170,7 +185,7 @@ export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model |
       ["baseCollectorCapacitance", "capacitance"],
     ]);
     const ratings = readRatings(ctx, raw, path, what, [["collectorEmitter", "voltage"], ["collectorBase", "voltage"], ["emitterBase", "voltage"], ["collectorCurrent", "current"]] as const);
-    return { ...base, kind, beta, reverseBeta, saturationCurrent, earlyVoltage, saturationEdge, drift, betaDrift, ...caps, ...ratings };
+    return { ...base, kind, beta, reverseBeta, saturationCurrent, earlyVoltage, saturationEdge, betaAt, drift, betaDrift, ...caps, ...ratings };
   }
   if (kind === "nmos" || kind === "pmos") {
     const threshold = req("threshold", "voltage");

@@ -211,7 +211,10 @@ export interface DiodeRatings {
 
 export interface BjtModel extends ModelBase {
   readonly kind: "npn" | "pnp";
+  /** DC current gain IC/IB at the test condition `betaAt` (a datasheet's hFE), at 25 °C. */
   readonly beta: Spread;
+  /** Where `beta` is measured: polarity-normalised VCE (V) and IC (A), both positive. */
+  readonly betaAt: { readonly collectorEmitterVoltage: number; readonly collectorCurrent: number };
   readonly reverseBeta: Spread; // default 1
   readonly saturationCurrent: Spread;
   /** Early voltage magnitude in V; Infinity = no Early effect. */

@@ -1,7 +1,8 @@
 // `opgate check`: the gate. Finds circuit files, checks them (on worker threads with --jobs,
 // one slice with --shard), prints a line per file and its findings, writes the requested
 // reports, annotates the pull request under GitHub Actions, and exits 0 / 1 / 2.
-import { appendFileSync, existsSync, readFileSync, statSync } from "node:fs";
+import { spawnSync } from "node:child_process";
+import { appendFileSync, existsSync, readFileSync, realpathSync, statSync } from "node:fs";
 import { availableParallelism } from "node:os";
 import { isAbsolute, relative, resolve, sep } from "node:path";
 import type { InputError } from "../circuit/types.js";
@@ -14,10 +15,11 @@ import type { ResultsDocument, Severity } from "../report/document.js";
 import { renderJson } from "../report/json.js";
 import { renderJunit } from "../report/junit.js";
 import { renderMarkdown, truncateMarkdown } from "../report/markdown.js";
-import { renderSarif } from "../report/sarif.js";
+import { renderSarif, type SarifOptions } from "../report/sarif.js";
 import { DocumentError, readDocument } from "../report/validate.js";
 import { makeCheckContext } from "../run/context.js";
 import { discover, DiscoveryError, type Discovery } from "../run/discover.js";
+import { changesSince, ChangedSinceError, selectChanged, type Changes } from "../run/changed.js";
 import { configModels, defaultCacheDir, ResultCache, runKey } from "../run/cache.js";
 import { runCheck } from "../run/run-check.js";
 import { toolVersion } from "../run/version.js";
@@ -37,6 +39,33 @@ type Format = (typeof FORMATS)[number];
 
 export interface ReportOptions {
   readonly baseline?: BaselineDiff;
+  readonly sarif?: SarifOptions;
+}
+
+/**
+ * SARIF locations are resolved from the repository root: GITHUB_WORKSPACE under Actions, else the
+ * git top level of `root`, else `root` itself. Returns the path of `root` (the folder the results
+ * document's paths are relative to) from there, and the repository's web address at this commit
+ * when the CI environment names it (team rules' help links point at their source there).
+ */
+export function sarifOptionsFor(root: string, env: CliIo["env"]): SarifOptions {
+  let repository = env.GITHUB_WORKSPACE;
+  if (!repository) {
+    const git = spawnSync("git", ["rev-parse", "--show-toplevel"], { cwd: root, encoding: "utf8" });
+    repository = git.status === 0 ? git.stdout.trim() : root;
+  }
+  let rel = relative(realpathOr(repository), realpathOr(root)).split(sep).join("/");
+  if (rel.startsWith("..") || isAbsolute(rel)) rel = ""; // the root is outside the repository: keep paths as they are
+  const { GITHUB_SERVER_URL: server, GITHUB_REPOSITORY: repo, GITHUB_SHA: sha } = env;
+  return { rootFromRepository: rel, ...(server && repo && sha ? { repositoryBlobUri: `${server}/${repo}/blob/${sha}` } : {}) };
+}
+
+function realpathOr(path: string): string {
+  try {
+    return realpathSync(path);
+  } catch {
+    return path;
+  }
 }
 
 export function renderFormat(format: Format, doc: ResultsDocument, options: ReportOptions): string {
@@ -48,7 +77,7 @@ export function renderFormat(format: Format, doc: ResultsDocument, options: Repo
     case "markdown":
       return renderMarkdown(doc, options.baseline ? { baseline: options.baseline } : {});
     case "sarif":
-      return renderSarif(doc);
+      return renderSarif(doc, options.sarif ?? {});
   }
 }
 
@@ -204,6 +233,16 @@ function skippedLine(skipped: readonly string[]): string {
   return `opgate: skipped ${skipped.length} file${skipped.length === 1 ? "" : "s"} that ${skipped.length === 1 ? "is" : "are"} not circuit files (no \`format: opgate-circuit/…\`): ${shown}${more}\n`;
 }
 
+/**
+ * The baseline restricted to the files this run checked and the circuit files deleted since the
+ * reference, so that files left out by --changed-since do not show as removed.
+ */
+function limitBaseline(base: ResultsDocument, head: ResultsDocument, changes: Changes, root: string): ResultsDocument {
+  const keep = new Set(head.circuits.map((c) => c.file));
+  for (const path of changes.deleted) keep.add(relative(root, path).split(sep).join("/"));
+  return { ...base, circuits: base.circuits.filter((c) => keep.has(c.file)) };
+}
+
 /** The result cache when --cache or --cache-dir asks for it. */
 function openCache(args: Record<string, unknown>, ctx: CheckContext, io: CliIo): ResultCache | undefined {
   const dirFlag = args["cache-dir"];
@@ -237,6 +276,7 @@ export const checkCommand: CommandSpec = {
       })
       .option("strict", { type: "boolean", default: false, describe: "A matched .json/.yaml file that is not a circuit file (no format: opgate-circuit/…) is an error instead of skipped" })
       .option("timestamp", { type: "boolean", default: false, describe: "Record the time in the results document (off: reproducible output)" })
+      .option("changed-since", { type: "string", describe: "Check only circuit files changed since this git commit (and those using a changed model library)" })
       .option("cache", { type: "boolean", default: false, describe: "Reuse results of unchanged files from the result cache (OPGATE_CACHE_DIR, else the user cache folder)" })
       .option("cache-dir", { type: "string", describe: "Result cache folder (implies --cache; e.g. a CI cache directory)" })
       .example("$0 check examples", "Check every circuit file under examples/")
@@ -281,7 +321,7 @@ export const checkCommand: CommandSpec = {
       if (err instanceof DiscoveryError) throw new CliExit(EXIT_INPUT, err.message);
       throw err;
     }
-    const files = found.files;
+    let files = found.files;
     checkOutputTargets(targets, runInputs(files, ctx, typeof args.baseline === "string" ? resolve(io.cwd, args.baseline) : undefined), io.cwd);
     if (found.skipped.length > 0) {
       if (args.strict === true || ctx.config.nonCircuitFiles === "error")
@@ -292,6 +332,22 @@ export const checkCommand: CommandSpec = {
       throw new CliExit(EXIT_INPUT, `no circuit files (.json, .yaml, .yml declaring format: opgate-circuit/…) match ${patterns.length ? patterns.join(" ") : ctx.config.include.join(" ")}`);
     }
 
+    let changes: Changes | undefined;
+    if (typeof args["changed-since"] === "string") {
+      try {
+        changes = changesSince(args["changed-since"], io.cwd);
+      } catch (err) {
+        if (err instanceof ChangedSinceError) throw new CliExit(EXIT_INPUT, err.message);
+        throw err;
+      }
+      const picked = selectChanged(files, changes, ctx.config);
+      io.stderr(
+        picked.everything
+          ? `opgate: changed since ${changes.ref}: ${relative(io.cwd, picked.everything) || picked.everything} (policy), so all ${files.length} circuit files\n`
+          : `opgate: changed since ${changes.ref}: ${picked.files.length} of ${files.length} circuit files (changed, or using a changed model library)\n`,
+      );
+      files = picked.files;
+    }
     const cache = openCache(args, ctx, io);
     // The bar is drawn on stderr: whether stderr is a terminal decides, not stdout.
     const showProgress = io.stderrIsTTY === true && io.env.CI !== "true" && !io.env.GITHUB_ACTIONS && files.length >= PROGRESS_MIN_FILES;
@@ -310,7 +366,12 @@ export const checkCommand: CommandSpec = {
     if (cache) io.stderr(`opgate: ${cache.summary()}\n`);
     if (shard && doc.circuits.length === 0) io.stderr(`opgate: shard ${shard.index}/${shard.count} has no files (${files.length} in all)\n`);
 
-    const reportOptions: ReportOptions = baselineDoc ? { baseline: diffDocuments(baselineDoc, doc) } : {};
+    // With --changed-since the baseline is compared on what this run checked and what was deleted.
+    const baselineFor = baselineDoc && changes ? limitBaseline(baselineDoc, doc, changes, ctx.root) : baselineDoc;
+    const reportOptions: ReportOptions = {
+      ...(baselineFor ? { baseline: diffDocuments(baselineFor, doc) } : {}),
+      ...(targets.sarif ? { sarif: sarifOptionsFor(ctx.root, io.env) } : {}),
+    };
     const reportOnStdout = writeReports(doc, targets, io, reportOptions);
     const consoleText = renderConsole(doc, {
       color: colourEnabled(io.env, reportOnStdout ? io.stderrIsTTY === true : io.isTTY),

@@ -8,7 +8,7 @@ import { colourEnabled, renderConsole } from "../report/console.js";
 import type { ResultsDocument } from "../report/document.js";
 import { MergeError, mergeDocuments } from "../report/merge.js";
 import { DocumentError, readDocument } from "../report/validate.js";
-import { readBaseline, writeCiOutputs, writeReports, type ReportOptions } from "./check.js";
+import { readBaseline, sarifOptionsFor, writeCiOutputs, writeReports, type ReportOptions } from "./check.js";
 import { CliExit, EXIT_INPUT, type CliIo } from "./io.js";
 import type { CommandSpec } from "./main.js";
 import { checkOutputTargets } from "./outputs.js";
@@ -52,7 +52,12 @@ export const mergeCommand: CommandSpec = {
       if (err instanceof MergeError) throw new CliExit(EXIT_INPUT, `cannot merge: ${err.message}`);
       throw err;
     }
-    const options: ReportOptions = typeof args.baseline === "string" ? { baseline: diffDocuments(readBaseline(args.baseline, io), merged) } : {};
+    // The shards' paths are relative to the folder they ran in; merge runs in the same checkout
+    // layout, so SARIF locations are taken from the repository root through this folder.
+    const options: ReportOptions = {
+      ...(typeof args.baseline === "string" ? { baseline: diffDocuments(readBaseline(args.baseline, io), merged) } : {}),
+      ...(typeof args.sarif === "string" ? { sarif: sarifOptionsFor(io.cwd, io.env) } : {}),
+    };
     for (const f of ["json", "junit", "markdown", "sarif"]) {
       if (args[f] === "") throw new CliExit(EXIT_INPUT, `--${f} needs a path (--${f}=- writes to standard output)`);
     }

@@ -8,6 +8,8 @@
 //   IB = IF/βF + IR/βR                          (into the base)
 //   IE = IC + IB                                (out of the emitter)
 // plus JUNCTION_LEAK_CONDUCTANCE across each junction. VA = Infinity means no Early effect.
+// The model's `beta` is the DC gain IC/IB at its test condition `betaAt` (a datasheet's hFE);
+// βF is the value that reproduces it there (forwardBetaFor), then drifts with temperature.
 import type { Bjt, BjtModel } from "../circuit/types.js";
 import type { BjtPoint, BjtRegion } from "../solve/types.js";
 import { criticalVoltage, limitJunction } from "../solve/limiting.js";
@@ -25,7 +27,7 @@ import {
   type Terminal,
 } from "./device.js";
 import { JUNCTION_LEAK_CONDUCTANCE, junction, junctionOut } from "./junction.js";
-import { relativeDriftAt, saturationCurrentAt, thermalVoltage } from "./thermal.js";
+import { MODEL_TEMPERATURE, relativeDriftAt, saturationCurrentAt, thermalVoltage } from "./thermal.js";
 
 /** A junction is taken as conducting at or above this polarity-normalised voltage (DESIGN.md §3, common practice). */
 export const BJT_CONDUCTION_VOLTAGE = 0.4;
@@ -253,9 +255,58 @@ export function bjt(c: Bjt, ctx: SetupContext): DeviceInstance {
   const t = ctx.temperature;
   const vt = thermalVoltage(t);
   const is = saturationCurrentAt(m.saturationCurrent.typ, t, 1, m.drift);
-  const betaF = relativeDriftAt(m.beta.typ, t, m.betaDrift);
+  const betaF0 = forwardBetaFor(m.beta.typ, m.betaAt, m.saturationCurrent.typ, thermalVoltage(MODEL_TEMPERATURE), m.reverseBeta.typ, m.earlyVoltage.typ);
+  const betaF = relativeDriftAt(betaF0, t, m.betaDrift);
   const vcrit = criticalVoltage(vt, is);
   return new BjtInstance(c.id, c.kind, p, col, base, emi, m.saturationEdge, vt, is, betaF, m.reverseBeta.typ, m.earlyVoltage.typ, vcrit);
+}
+
+/** Newton steps for the VBE of the beta test condition; it converges in about five from the exponential law. */
+const BETA_TEST_ITERATIONS = 50;
+
+/**
+ * βF of the transport model such that the DC current gain IC/IB equals `beta` at the test
+ * condition (polarity-normalised VCE and IC), at the model temperature, as a datasheet states hFE.
+ * IC does not depend on βF, so VBE is found first (Newton on IC(VBE) = IC at that VCE, every term
+ * of the model included), then IB = IC/beta gives βF = IF / (IC/beta − IR/βR − leakage).
+ * Without this, the Early factor (1 − VBC/VA) would put the gain at a real bias point some
+ * percent above the datasheet value.
+ */
+export function forwardBetaFor(
+  beta: number,
+  at: { readonly collectorEmitterVoltage: number; readonly collectorCurrent: number },
+  is: number,
+  vt: number,
+  betaR: number,
+  va: number,
+): number {
+  const vce = at.collectorEmitterVoltage;
+  const ic = at.collectorCurrent;
+  const gl = JUNCTION_LEAK_CONDUCTANCE;
+  const kR = 1 + 1 / betaR;
+  let vbe = vt * Math.log1p(ic / is);
+  let iF = 0;
+  let iR = 0;
+  for (let k = 0; k <= BETA_TEST_ITERATIONS; k++) {
+    const vbc = vbe - vce;
+    junction(vbe, is, vt);
+    iF = junctionOut[0]!;
+    const gF = junctionOut[1]!;
+    junction(vbc, is, vt);
+    iR = junctionOut[0]!;
+    const gR = junctionOut[1]!;
+    if (k === BETA_TEST_ITERATIONS) break;
+    const early = 1 - vbc / va;
+    const f = iF * early - iR * kR - gl * vbc - ic;
+    const step = f / (gF * early - iF / va - gR * kR - gl);
+    vbe -= step;
+    if (Math.abs(step) < 1e-15) {
+      k = BETA_TEST_ITERATIONS - 1; // one more pass evaluates the currents at the final VBE
+    }
+  }
+  const ibRest = iR / betaR + gl * (2 * vbe - vce);
+  const ibForward = ic / beta - ibRest;
+  return ibForward > 0 ? iF / ibForward : beta;
 }
 
 /** Region on polarity-normalised voltages (DESIGN.md §3). */

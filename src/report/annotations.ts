@@ -3,6 +3,7 @@
 // shown per level and step, so past that the last slot becomes a summary pointing at the rest.
 import type { Finding, ResultsDocument, Severity } from "./document.js";
 import { count, measuredVsLimit } from "./format.js";
+import { breakCommand, inertText } from "./untrusted.js";
 
 /** The runner shows at most this many annotations of each level per step. */
 export const ANNOTATIONS_PER_LEVEL = 10;
@@ -19,19 +20,23 @@ export function escapeProperty(text: string): string {
   return escapeData(text).replace(/:/g, "%3A").replace(/,/g, "%2C");
 }
 
-/** Circuit-file text that starts with `::` must not look like a command: break the pair. */
+/**
+ * Text from a circuit file or team rule: control characters (ESC, BEL, CR, LF…) shown as escapes
+ * (inertText), so nothing reaches the runner's log raw, and a leading `::` broken up. The line
+ * break between message and fix is ours, added after this.
+ */
 function neutralise(text: string): string {
-  return text.replace(/^(\s*):(?=:)/, "$1:\u200b");
+  return breakCommand(inertText(text));
 }
 
 function annotation(f: Finding): string {
   const numbers = measuredVsLimit(f);
-  const message = neutralise(`${f.message}${numbers ? ` (${numbers}; scenario ${f.scenario})` : ""}${f.hint ? `\n${f.hint}` : ""}`);
+  const message = `${neutralise(`${f.message}${numbers ? ` (${numbers}; scenario ${f.scenario})` : ""}`)}${f.hint ? `\n${neutralise(f.hint)}` : ""}`;
   const props = [
-    `file=${escapeProperty(f.file)}`,
+    `file=${escapeProperty(inertText(f.file))}`,
     `line=${f.line}`,
     `col=${f.column}`,
-    `title=${escapeProperty(`opgate ${f.rule}: ${f.subject}`)}`,
+    `title=${escapeProperty(inertText(`opgate ${f.rule}: ${f.subject}`))}`,
   ];
   return `::${COMMAND[f.severity]} ${props.join(",")}::${escapeData(message)}`;
 }

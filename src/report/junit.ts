@@ -9,6 +9,7 @@ import type { Builder } from "junit-report-builder";
 import { ERROR_RULES, reaches } from "./build.js";
 import type { CircuitResult, Finding, PassedCheck, ResultsDocument } from "./document.js";
 import { findingLocation, measuredVsLimit } from "./format.js";
+import { inertLines, inertText } from "./untrusted.js";
 
 // Loaded on first use: the library and its XML writer cost ~70 ms to load, which every
 // `opgate check` without --junit (and every worker) would otherwise pay. The package is
@@ -19,21 +20,24 @@ function junitBuilder(): Builder {
   return builder;
 }
 
-/** CDATA cannot contain its own terminator. */
+/**
+ * CDATA cannot contain its own terminator; XML 1.0 allows no control character but TAB, LF and CR
+ * (and a viewer would pass ESC to a terminal): those are shown as escapes.
+ */
 function cdataSafe(text: string): string {
-  return text.replace(/]]>/g, "]] >");
+  return inertLines(text).replace(/]]>/g, "]] >");
 }
 
 function findingText(c: CircuitResult, f: Finding): string {
   const numbers = measuredVsLimit(f);
   const scenario = c.scenarios.find((s) => s.id === f.scenario);
   const where = scenario && scenario.label && scenario.label !== f.scenario ? `${f.scenario} (${scenario.label})` : f.scenario;
-  return `${findingLocation(f)}: ${f.severity}: ${f.message}${numbers ? ` — ${numbers}` : ""}; worst scenario ${where}`;
+  return inertText(`${findingLocation(f)}: ${f.severity}: ${f.message}${numbers ? ` — ${numbers}` : ""}; worst scenario ${where}`);
 }
 
 function passedText(p: PassedCheck): string {
   const numbers = measuredVsLimit(p);
-  return `${numbers || "passed"}; worst scenario ${p.scenario}`;
+  return inertText(`${numbers || "passed"}; worst scenario ${p.scenario}`);
 }
 
 /** Case names must be unique within a suite (some viewers drop duplicates). */
@@ -50,16 +54,17 @@ export function renderJunit(doc: ResultsDocument): string {
   const report = junitBuilder().newBuilder().name("opgate");
   const failOn = doc.summary.failOn;
   for (const c of doc.circuits) {
-    const suite = report.testSuite().name(c.file);
-    const classname = c.name ?? c.file;
+    const suite = report.testSuite().name(inertText(c.file));
+    const classname = inertText(c.name ?? c.file);
+    const file = inertText(c.file);
     const unique = uniqueNamer();
     let cases = 0;
     for (const f of c.findings) {
-      const tc = suite.testCase().className(classname).name(unique(`${f.rule}: ${f.subject}`)).file(c.file);
+      const tc = suite.testCase().className(classname).name(unique(inertText(`${f.rule}: ${f.subject}`))).file(file);
       const text = findingText(c, f);
       // "Could not run": the file did not load, the check crashed, or there is no operating point.
       const couldNotRun = ERROR_RULES.has(f.rule) || (f.rule === "solve" && c.status === "error");
-      if (couldNotRun) tc.error(text, f.rule, cdataSafe(f.hint ?? text));
+      if (couldNotRun) tc.error(text, inertText(f.rule), cdataSafe(f.hint ?? text));
       else if (reaches(f.severity, failOn)) {
         tc.failure(text, f.severity);
         if (f.hint) tc.stacktrace(cdataSafe(`How to fix: ${f.hint}`));
@@ -67,13 +72,13 @@ export function renderJunit(doc: ResultsDocument): string {
       cases++;
     }
     for (const p of c.passed) {
-      suite.testCase().className(classname).name(unique(`${p.rule}: ${p.subject}`)).file(c.file).standardOutput(cdataSafe(passedText(p)));
+      suite.testCase().className(classname).name(unique(inertText(`${p.rule}: ${p.subject}`))).file(file).standardOutput(cdataSafe(passedText(p)));
       cases++;
     }
     if (cases === 0) {
       // A circuit in error without findings, or one with no applicable checks: still one case.
-      const tc = suite.testCase().className(classname).name(unique("opgate: circuit")).file(c.file);
-      if (c.status === "error") tc.error(`${c.file}: the circuit could not be checked`, "internal");
+      const tc = suite.testCase().className(classname).name(unique("opgate: circuit")).file(file);
+      if (c.status === "error") tc.error(`${file}: the circuit could not be checked`, "internal");
       else tc.standardOutput("no rule applied to this circuit");
     }
   }

@@ -4,6 +4,28 @@
 import { createHash } from "node:crypto";
 import type { Finding, ResultsDocument, RuleEntry, Severity } from "./document.js";
 import { measuredVsLimit } from "./format.js";
+import { inertLines, inertText } from "./untrusted.js";
+
+export interface SarifOptions {
+  /**
+   * The results document's root as a path from the repository root ("" when they are the same,
+   * "hardware" when the config sits in hardware/): code scanning resolves URIs from the repository
+   * root, whatever folder the check ran in.
+   */
+  readonly rootFromRepository?: string;
+  /** Where opgate's documentation is (the tool's informationUri and each built-in rule's helpUri). */
+  readonly informationUri?: string;
+  /**
+   * The repository's files on the web at this commit (`https://host/owner/repo/blob/<sha>`, from the
+   * CI environment): a team rule's helpUri points at its source there.
+   */
+  readonly repositoryBlobUri?: string;
+}
+
+/** opgate's documentation: the package's page (its README, with every built-in rule) for this version. */
+export function defaultInformationUri(version: string): string {
+  return `https://www.npmjs.com/package/opgate/v/${encodeURIComponent(version)}`;
+}
 
 export const SARIF_SCHEMA = "https://docs.oasis-open.org/sarif/sarif/v2.1.0/errata01/os/schemas/sarif-schema-2.1.0.json";
 export const FINGERPRINT_KEY = "opgateFinding/v1";
@@ -38,8 +60,13 @@ function fingerprint(f: Finding, occurrence: number): string {
 }
 
 /** A relative URI reference for a repository path: each segment percent-encoded (`#`, `?`, spaces…). */
-function fileUri(path: string): string {
-  return path.split("/").map(encodeURIComponent).join("/");
+function fileUri(path: string, base = ""): string {
+  const full = base ? `${base.replace(/\/+$/, "")}/${path}` : path;
+  return full
+    .split("/")
+    .filter((s) => s !== "" && s !== ".")
+    .map(encodeURIComponent)
+    .join("/");
 }
 
 function firstParagraph(text: string): string {
@@ -47,7 +74,11 @@ function firstParagraph(text: string): string {
 }
 
 /** The SARIF log as JSON text (2-space indent, trailing newline, stable for the same document). */
-export function renderSarif(doc: ResultsDocument, options: { informationUri?: string } = {}): string {
+export function renderSarif(doc: ResultsDocument, options: SarifOptions = {}): string {
+  const base = options.rootFromRepository ?? "";
+  const informationUri = options.informationUri ?? defaultInformationUri(doc.tool.version);
+  const helpUri = (r: RuleEntry): string | undefined =>
+    r.source === "builtin" ? informationUri : options.repositoryBlobUri && r.source !== "unknown" ? `${options.repositoryBlobUri.replace(/\/+$/, "")}/${fileUri(r.source, base)}` : undefined;
   const rules = [...doc.rules];
   for (const extra of ENGINE_RULES) if (!rules.some((r) => r.id === extra.id)) rules.push(extra);
   // Rules referenced by findings but unknown to the document (a plugin that went missing) still need an entry.
@@ -67,27 +98,27 @@ export function renderSarif(doc: ResultsDocument, options: { informationUri?: st
       seen.set(key, occurrence);
       const numbers = measuredVsLimit(f);
       return {
-        ruleId: f.rule,
+        ruleId: inertText(f.rule),
         ruleIndex: index.get(f.rule)!,
         level: level(f.severity),
-        message: { text: `${f.subject}: ${f.message}${numbers ? ` (${numbers}; worst scenario ${f.scenario})` : ""}${f.hint ? ` ${f.hint}` : ""}` },
+        message: { text: inertText(`${f.subject}: ${f.message}${numbers ? ` (${numbers}; worst scenario ${f.scenario})` : ""}${f.hint ? ` ${f.hint}` : ""}`) },
         locations: [
           {
             physicalLocation: {
-              artifactLocation: { uri: fileUri(f.file) },
+              artifactLocation: { uri: fileUri(f.file, base) },
               region: { startLine: f.line, startColumn: f.column },
             },
           },
         ],
         partialFingerprints: { [FINGERPRINT_KEY]: fingerprint(f, occurrence) },
         properties: {
-          circuit: c.name ?? c.file,
-          subject: f.subject,
+          circuit: inertText(c.name ?? c.file),
+          subject: inertText(f.subject),
           measured: f.measured,
           limit: f.limit,
-          unit: f.unit,
+          unit: f.unit === null ? null : inertText(f.unit),
           margin: f.margin,
-          scenario: f.scenario,
+          scenario: inertText(f.scenario),
         },
       };
     }),
@@ -101,15 +132,20 @@ export function renderSarif(doc: ResultsDocument, options: { informationUri?: st
           driver: {
             name: "opgate",
             version: doc.tool.version,
-            ...(options.informationUri ? { informationUri: options.informationUri } : {}),
-            rules: rules.map((r) => ({
-              id: r.id,
-              shortDescription: { text: r.description },
-              fullDescription: { text: firstParagraph(r.docs) || r.description },
-              help: { text: r.docs.trim() || r.description },
-              defaultConfiguration: { level: level(r.severity) },
-              properties: { source: r.source },
-            })),
+            informationUri,
+            rules: rules.map((r) => {
+              const uri = helpUri(r);
+              return {
+                id: inertText(r.id),
+                shortDescription: { text: inertText(r.description) },
+                fullDescription: { text: inertText(firstParagraph(r.docs) || r.description) },
+                // The rule's own docs, and what to look for when it fires.
+                help: { text: inertLines(r.docs.trim() || r.description) },
+                ...(uri ? { helpUri: uri } : {}),
+                defaultConfiguration: { level: level(r.severity) },
+                properties: { source: inertText(r.source) },
+              };
+            }),
           },
         },
         results,

@@ -27,6 +27,15 @@ export function inertText(text: string): string {
   return text.replace(UNSAFE, visible);
 }
 
+/** Like inertText, but line breaks (normalised to LF) and tabs stay: for multi-line docs in JSON or XML. */
+export function inertLines(text: string): string {
+  return text
+    .replace(/\r\n?/g, "\n")
+    .split("\n")
+    .map((line) => line.split("\t").map(inertText).join("\t"))
+    .join("\n");
+}
+
 /** A line that starts with `::` (after blanks) would be read by the Actions runner as a command: break the pair. */
 export function breakCommand(line: string): string {
   return line.replace(/^(\s*):(?=:)/, "$1:\u200b");

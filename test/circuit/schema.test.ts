@@ -38,7 +38,7 @@ describe("schemas/circuit.schema.json", () => {
     const props = (k: string) => Object.keys(defs[`model-${k}`]!["properties"] as Json).sort();
     const base = ["description", "kind", "powerRating", "ratings"];
     expect(props("diode")).toEqual([...base, "saturationCurrent", "forward", "breakdown", "ideality", "seriesResistance", "forwardVoltageDrift", "driftCurrent"].sort());
-    const bjt = [...base, "beta", "reverseBeta", "saturationCurrent", "earlyVoltage", "saturationEdge", "baseEmitterDrift", "driftCurrent", "betaDrift", "transitFrequency", "baseCollectorCapacitance"].sort();
+    const bjt = [...base, "beta", "reverseBeta", "saturationCurrent", "earlyVoltage", "saturationEdge", "baseEmitterDrift", "driftCurrent", "betaDrift", "betaAt", "transitFrequency", "baseCollectorCapacitance"].sort();
     expect(props("npn")).toEqual(bjt);
     expect(props("pnp")).toEqual(bjt);
     const mos = [...base, "threshold", "kPrime", "width", "length", "lambda", "bodyEffect", "fermiPotential", "thresholdTempco", "kPrimeExponent", "gateSourceCapacitance", "gateDrainCapacitance", "oxideCapacitance"].sort();

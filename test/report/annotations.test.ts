@@ -35,7 +35,19 @@ describe("renderAnnotations", () => {
     // The message's own leading "::" is broken up, and no CR/LF survives.
     expect(hostile).toContain("::\u200b:set-output");
     expect(hostile).not.toMatch(/[\r\n]/);
-    expect(hostile).toContain("100%25 over%0D%0Asecond line");
+    // A file's line breaks are shown as escapes; only our own break (message, then fix) is encoded.
+    expect(hostile).toContain("100%25 over\\r\\nsecond line");
+  });
+
+  it("lets no control character or command through from a file or team rule", () => {
+    const evil = "x\u001b]0;title\u0007\n::error::pwned\r\n\u202e";
+    const f = { ...HOSTILE.findings[0]!, file: `boards/${evil}.yaml`, rule: `team/${evil}`, subject: evil, message: evil, hint: evil, unit: evil };
+    const out = renderAnnotations(buildDocument([{ ...HOSTILE, file: f.file, findings: [f] }], OPTIONS));
+    const commands = out.trimEnd().split("\n");
+    expect(commands).toHaveLength(1);
+    expect(out).not.toMatch(/[\u0000-\u0009\u000b-\u001f\u007f\u202e]/);
+    expect(commands[0]!.match(/::/g)!.length).toBeGreaterThanOrEqual(2);
+    expect(commands[0]).toMatch(/^::warning file=boards\/x\\e\]0;title\\x07\\n%3A%3Aerror%3A%3Apwned/);
   });
 
   it("caps each level and points at the summary for the rest", () => {

@@ -3,7 +3,7 @@
 import { describe, expect, it } from "vitest";
 import { buildDocument } from "../../src/report/build.js";
 import { renderJunit } from "../../src/report/junit.js";
-import { FAILING, fixtureDocument, OPTIONS, PASSING } from "./fixtures/documents.js";
+import { FAILING, fixtureDocument, HOSTILE, OPTIONS, PASSING } from "./fixtures/documents.js";
 import { expectGolden } from "./golden.js";
 import { descendants, parseXml } from "./xml.js";
 
@@ -77,6 +77,16 @@ describe("renderJunit", () => {
     expect(descendants(empty, "testcase")).toHaveLength(1);
     const bare = parseXml(renderJunit(buildDocument([{ ...PASSING, passed: [] }], OPTIONS)));
     expect(descendants(bare, "testcase")).toHaveLength(1);
+  });
+
+  it("stays well-formed XML 1.0 with control characters and CDATA ends in file and rule text", () => {
+    const evil = "x\u001b[2J\u0007]]>\u0000<y>&\u202e";
+    const f = { ...HOSTILE.findings[0]!, rule: `team/${evil}`, subject: evil, message: evil, hint: evil, unit: evil, scenario: evil };
+    const out = renderJunit(buildDocument([{ ...HOSTILE, file: `boards/${evil}.yaml`, name: evil, findings: [f, { ...f, rule: "input" }] }], OPTIONS));
+    // XML 1.0 allows TAB, LF and CR among the controls, nothing else.
+    expect(out).not.toMatch(/[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f\u202e]/);
+    const parsed = parseXml(out);
+    expect(descendants(parsed, "testcase").length).toBe(2);
   });
 
   it("matches its golden file", () => {

@@ -7,7 +7,12 @@ import { describe, expect, it } from "vitest";
 import { buildDocument } from "../../src/report/build.js";
 import type { CircuitResult } from "../../src/report/document.js";
 import { FINGERPRINT_KEY, renderSarif } from "../../src/report/sarif.js";
-import { FAILING, fixtureDocument, OPTIONS } from "./fixtures/documents.js";
+import { sarifOptionsFor } from "../../src/cli/check.js";
+import { FAILING, fixtureDocument, HOSTILE, OPTIONS } from "./fixtures/documents.js";
+import { execFileSync } from "node:child_process";
+import { mkdirSync, mkdtempSync, rmSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
 import { expectGolden } from "./golden.js";
 
 function sarifValidator() {
@@ -70,6 +75,53 @@ describe("renderSarif", () => {
     const prints = (rs: { partialFingerprints: Record<string, string> }[]) => rs.map((r) => r.partialFingerprints[FINGERPRINT_KEY]);
     expect(prints(b)).toEqual(prints(a));
     expect(new Set(prints(log.runs[0].results)).size).toBe(5);
+  });
+
+  it("gives every rule help text and a help URI, and the tool an information URI", () => {
+    const driver = log.runs[0].tool.driver;
+    expect(driver.informationUri).toMatch(/^https:\/\//);
+    for (const r of driver.rules) {
+      expect(r.help.text, r.id).toBeTruthy();
+      expect(r.helpUri, r.id).toMatch(/^https:\/\//);
+    }
+    // A team rule's help points at its source in the repository at this commit, when CI names it.
+    const doc = buildDocument([FAILING], { ...OPTIONS, rules: [...OPTIONS.rules, { id: "team/x", description: "Team rule.", severity: "warning", docs: "Docs.", source: "team-rules/x.ts" }] });
+    const team = JSON.parse(renderSarif(doc, { rootFromRepository: "hw", repositoryBlobUri: "https://git.example/o/r/blob/abc" })).runs[0].tool.driver.rules.find((r: { id: string }) => r.id === "team/x");
+    expect(team.helpUri).toBe("https://git.example/o/r/blob/abc/hw/team-rules/x.ts");
+  });
+
+  it("locates results from the repository root, wherever the check ran", () => {
+    const moved = JSON.parse(renderSarif(fixtureDocument(), { rootFromRepository: "hardware/boards-v2" }));
+    const uris = moved.runs[0].results.map((r: { locations: { physicalLocation: { artifactLocation: { uri: string } } }[] }) => r.locations[0]!.physicalLocation.artifactLocation.uri);
+    expect(uris).toContain("hardware/boards-v2/boards/soil-probe/buffer.yaml");
+    expect(uris).toContain("hardware/boards-v2/boards/odd%2C%20names/100%25%3A%20probe.yaml");
+    // The root's path from the repository: from git's top level, or GITHUB_WORKSPACE under Actions.
+    const repo = mkdtempSync(join(tmpdir(), "opgate-sarif-"));
+    try {
+      execFileSync("git", ["init", "-q", repo]);
+      mkdirSync(join(repo, "hardware", "boards-v2"), { recursive: true });
+      expect(sarifOptionsFor(join(repo, "hardware", "boards-v2"), {}).rootFromRepository).toBe("hardware/boards-v2");
+      expect(sarifOptionsFor(repo, {}).rootFromRepository).toBe("");
+      expect(sarifOptionsFor(join(repo, "hardware", "boards-v2"), { GITHUB_WORKSPACE: join(repo, "hardware") }).rootFromRepository).toBe("boards-v2");
+      expect(sarifOptionsFor(repo, { GITHUB_SERVER_URL: "https://git.example", GITHUB_REPOSITORY: "o/r", GITHUB_SHA: "abc" }).repositoryBlobUri).toBe("https://git.example/o/r/blob/abc");
+    } finally {
+      rmSync(repo, { recursive: true, force: true });
+    }
+  });
+
+  it("carries no control character from a file or team rule", () => {
+    const evil = "x\u001b[2J\u0007\n::error::y\u202e";
+    const f = { ...HOSTILE.findings[0]!, rule: `team/${evil}`, subject: evil, message: evil, hint: evil, unit: evil, scenario: evil };
+    const doc = buildDocument([{ ...HOSTILE, name: evil, findings: [f] }], { ...OPTIONS, rules: [...OPTIONS.rules, { id: `team/${evil}`, description: evil, severity: "warning", docs: evil, source: evil }] });
+    const out = JSON.parse(renderSarif(doc));
+    const strings: string[] = [];
+    const walk = (v: unknown): void => {
+      if (typeof v === "string") strings.push(v);
+      else if (v && typeof v === "object") for (const x of Object.values(v)) walk(x);
+    };
+    walk(out);
+    for (const str of strings) expect(str).not.toMatch(/[\u0000-\u0009\u000b-\u001f\u007f\u202e]/);
+    expect(sarifValidator()(out)).toBe(true);
   });
 
   it("matches its golden file", () => {

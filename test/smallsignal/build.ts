@@ -34,7 +34,7 @@ export function bjtModel(id: string, kind: "npn" | "pnp", p: BjtParams = {}): Bj
     earlyVoltage: spread(p.earlyVoltage ?? Infinity),
     saturationEdge: 0.3,
     drift: { voltage: -0.002, current: 1e-3 },
-    betaDrift: 0.005,
+    betaDrift: 0.005, betaAt: { collectorEmitterVoltage: 5, collectorCurrent: 2e-3 },
   };
 }
 

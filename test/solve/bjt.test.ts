@@ -1,5 +1,6 @@
 // Bipolar transistor circuits against hand formulas, textbook results and facts of the trade.
 import { describe, expect, it } from "vitest";
+import { forwardBetaFor } from "../../src/devices/bjt.js";
 import { thermalVoltage } from "../../src/devices/thermal.js";
 import { solveOperatingPoint } from "../../src/solve/index.js";
 import type { BjtPoint, OperatingPoint, SolveResult } from "../../src/solve/types.js";
@@ -164,12 +165,48 @@ describe("NPN bias", () => {
     const c = circuit().bjtModel("n", "npn", { beta: 120, earlyVoltage: 100 }).v("VB", "b", "gnd", 0.65).v("VC", "c", "gnd", 5).q("Q1", "npn", "c", "b", "gnd", "n").build();
     const t = q(solved(solveOperatingPoint(c)), "Q1");
     const vcb = 5 - 0.65;
-    // With the Early factor on IF, IC/IB = β(1 + VCB/VA): that is the β the hybrid-π model sees.
-    const betaAc = 120 * (1 + vcb / 100);
+    // βF: the transport model's forward beta that puts IC/IB at 120 at the default test condition (5 V, 2 mA).
+    const betaF = forwardBetaFor(120, { collectorEmitterVoltage: 5, collectorCurrent: 2e-3 }, 1e-14, VT, 1, 100);
+    // With the Early factor on IF, IC/IB = βF(1 + VCB/VA): that is the β the hybrid-π model sees.
+    const betaAc = betaF * (1 + vcb / 100);
     expect(Math.abs(t.collectorCurrent / t.baseCurrent / betaAc - 1)).toBeLessThan(REL);
     expect(t.transconductance / (t.collectorCurrent / VT)).toBeCloseTo(1, 1); // gm = IC/VT − 1/ro, within VT/VA
-    expect(t.inputResistance).toBeCloseTo((120 * VT) / (t.collectorCurrent / (1 + vcb / 100)), 3);
+    expect(t.inputResistance).toBeCloseTo((betaF * VT) / (t.collectorCurrent / (1 + vcb / 100)), 3);
     expect(t.outputResistance / ((100 + vcb) / t.collectorCurrent)).toBeCloseTo(1, 6);
     expect(t.emitterResistance).toBeCloseTo(1 / (t.transconductance + 1 / t.inputResistance), 12);
+  });
+});
+
+describe("beta is the DC current gain at its stated test condition (a datasheet's hFE)", () => {
+  // IB = IC/beta into the base and VCE held by a source: if the model's gain at (VCE, IC) is
+  // beta, the solve lands on IC exactly and IC/IB = beta (the datasheet definition of hFE).
+  const cases = [
+    ["npn", 180, 90, 5, 2e-3],
+    ["pnp", 120, 40, 1, 10e-3],
+    ["npn", 250, Infinity, 5, 2e-3],
+    ["npn", 60, 25, 10, 100e-6],
+  ] as const;
+  for (const [kind, beta, va, vce, ic] of cases) {
+    it(`${kind}, beta ${beta}, VA ${va} V: IC/IB = beta to 1e-9 at VCE = ${vce} V, IC = ${ic * 1e3} mA`, () => {
+      const p = kind === "npn" ? 1 : -1;
+      const b = circuit().bjtModel("q", kind, { beta, earlyVoltage: va, betaAt: { collectorEmitterVoltage: vce, collectorCurrent: ic } }).v("VC", "c", "gnd", p * vce);
+      // NPN: the base current flows in from the source; PNP: out of the base into the source.
+      const c = (kind === "npn" ? b.i("IB", "gnd", "b", ic / beta) : b.i("IB", "b", "gnd", ic / beta)).q("Q1", kind, "c", "b", "gnd", "q").build();
+      const q = solved(solveOperatingPoint(c)).devices.Q1 as BjtPoint;
+      expect(Math.abs(q.collectorCurrent / q.baseCurrent / beta - 1)).toBeLessThan(1e-9);
+      expect(Math.abs(q.collectorCurrent / ic - 1)).toBeLessThan(1e-9);
+    });
+  }
+  it("away from the test condition the Early effect moves the gain: (1 + VCE/VA)-like rise at higher VCE (textbook Early effect)", () => {
+    const gainAt = (vce: number): number => {
+      const c = circuit().bjtModel("q", "npn", { beta: 150, earlyVoltage: 60 }).v("VC", "c", "gnd", vce).i("IB", "gnd", "b", 2e-3 / 150).q("Q1", "npn", "c", "b", "gnd", "q").build();
+      const q = solved(solveOperatingPoint(c)).devices.Q1 as BjtPoint;
+      return q.collectorCurrent / q.baseCurrent;
+    };
+    expect(gainAt(5) / 150).toBeCloseTo(1, 6); // the default test condition: 5 V, 2 mA
+    // From 5 V to 15 V the gain rises by about ΔVCE/(VA + VCB): (1 − VBC'/VA)/(1 − VBC/VA).
+    const ratio = gainAt(15) / gainAt(5);
+    expect(ratio).toBeGreaterThan(1 + 10 / (60 + 15));
+    expect(ratio).toBeLessThan(1 + 10 / (60 + 4));
   });
 });

@@ -24,6 +24,7 @@ export interface BjtParams {
   saturationEdge?: number;
   drift?: { voltage: number; current: number };
   betaDrift?: number;
+  betaAt?: { collectorEmitterVoltage: number; collectorCurrent: number };
 }
 export interface MosParams {
   threshold: number;
@@ -115,6 +116,7 @@ export class CircuitBuilder {
       saturationEdge: p.saturationEdge ?? 0.3,
       drift: p.drift ?? { voltage: -0.002, current: 1e-3 },
       betaDrift: p.betaDrift ?? 0.005,
+      betaAt: p.betaAt ?? { collectorEmitterVoltage: 5, collectorCurrent: 2e-3 },
     };
     this.models.set(id, m);
     return this;

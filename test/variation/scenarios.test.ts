@@ -31,7 +31,7 @@ function circuit(): Circuit {
           earlyVoltage: { min: Infinity, typ: Infinity, max: Infinity },
           saturationEdge: 0.3,
           drift: { voltage: -0.002, current: 1e-3 },
-          betaDrift: 0.005,
+          betaDrift: 0.005, betaAt: { collectorEmitterVoltage: 5, collectorCurrent: 2e-3 },
         },
       ],
     ]),
