@@ -6,7 +6,8 @@
 //    sees RC + RL = 14.7 kΩ → 1.1 Hz. So CE sets ~98 % of the lower corner, and 20 Hz is lost.
 //  - load capacitor CL on `out`: sees RC ‖ RL = 3.2 kΩ; 3 dB at 20 kHz needs CL ≤ 1/(2π·3.2k·20k) ≈ 2.49 nF.
 import { expect, it } from "vitest";
-import { ruleTester, runRuleCase } from "../src/review/tester.js";
+import { verifyRule, runRuleCase } from "../src/review/tester.js";
+import { testsFromVerdict } from "../test/verdict-tests.js";
 import { npnStage } from "../test/review/circuits.js";
 import bandEdges from "./band-edges.js";
 
@@ -14,7 +15,7 @@ const specs = `  gains:\n    - { name: stage, input: VIN, output: out, target: -
 const bypass = (value: string) => `  - { id: CE, kind: capacitor, pins: [emit, gnd], value: ${value} }`;
 const load = (value: string) => `  - { id: CL, kind: capacitor, pins: [out, gnd], value: ${value} }`;
 
-ruleTester(bandEdges).run([
+testsFromVerdict(await verifyRule(bandEdges, [
   { name: "NPN stage without bypass holds both edges", circuit: npnStage({ specs }), expect: [], passed: ["stage at band.low", "stage at band.high"] },
   {
     name: "a 47 µF emitter bypass loses band.low and is named as the capacitor that sets the corner",
@@ -29,7 +30,7 @@ ruleTester(bandEdges).run([
   },
   { name: "a 2 nF load capacitor is within 3 dB (a flatness warning, not this rule's error)", circuit: npnStage({ specs, parts: load("2n") }), expect: [] },
   { name: "no band in the specs: nothing to judge", circuit: npnStage({ specs: `  gains:\n    - { name: stage, input: VIN, output: out, target: -2.6, tolerance: 10% }`, parts: bypass("47u") }), expect: [] },
-]);
+]));
 
 function neededValue(message: string, id: string): number {
   const m = new RegExp(`${id} [≥≤] ([0-9.]+) ([pnuµm]?)F would keep`).exec(message);

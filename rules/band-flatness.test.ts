@@ -2,7 +2,8 @@
 // A load capacitor CL on the NPN stage's output sees RC ‖ RL = 3.2 kΩ (test/review/circuits.ts):
 // 2 nF puts the corner near 1/(2π·3.2k·2n) ≈ 25 kHz, so 20 kHz is ≈ 2 dB down (one pole,
 // 10·log10(1 + (20/25)²)); 10 nF is far beyond 3 dB (band-edges' error, silent here).
-import { ruleTester } from "../src/review/tester.js";
+import { verifyRule } from "../src/review/tester.js";
+import { testsFromVerdict } from "../test/verdict-tests.js";
 import { analysis, at, circuit, gain, op, small } from "../test/review/fixtures.js";
 import { npnStage } from "../test/review/circuits.js";
 import bandFlatness from "./band-flatness.js";
@@ -16,11 +17,11 @@ const drop = (db: number) => {
   return [analysis(banded, op({}), "nominal", small([{ ...g, points: [low] }]))];
 };
 
-ruleTester(bandFlatness).run([
+testsFromVerdict(await verifyRule(bandFlatness, [
   { name: "NPN stage holds both edges within 1 dB", circuit: npnStage({ specs }), expect: [], passed: ["stage at band.low", "stage at band.high"] },
   { name: "a 2 nF load capacitor costs ~2 dB at 20 kHz: a warning naming it", circuit: npnStage({ specs, parts: load("2n") }), expect: [{ subject: "stage at band.high", severity: "warning", messageIncludes: "CL (2 nF) sets" }] },
   { name: "beyond 3 dB it is band-edges' error, not repeated here", circuit: npnStage({ specs, parts: load("10n") }), expect: [] },
   { name: "boundary: 1.001 dB down warns", circuit: banded, analyses: drop(1.001), expect: [{ subject: "stage at band.low", severity: "warning" }] },
   { name: "boundary: 0.999 dB down passes", circuit: banded, analyses: drop(0.999), expect: [], passed: ["stage at band.low"] },
   { name: "2 dB allowed in the config passes 1.5 dB", circuit: banded, analyses: drop(1.5), options: { flatnessDb: 2 }, expect: [] },
-]);
+]));

@@ -1,6 +1,7 @@
 // capacitor-polarity: a polarised capacitor's reverse DC bias against the allowance.
 import { describe, expect, it } from "vitest";
-import { ruleTester, runRuleCase } from "../src/review/tester.js";
+import { verifyRule, runRuleCase } from "../src/review/tester.js";
+import { testsFromVerdict } from "../test/verdict-tests.js";
 import { analysis, capacitor, circuit, op } from "../test/review/fixtures.js";
 import { npnStage, pnpStage } from "../test/review/circuits.js";
 import capacitorPolarity from "./capacitor-polarity.js";
@@ -14,7 +15,7 @@ const rated = { ...capacitor("C1", 12, 25), positive: "a" };
 const hand = circuit({ components: [rated] });
 const across = (v: number) => [analysis(hand, op({ C1: { kind: "capacitor", voltage: v } }))];
 
-ruleTester(capacitorPolarity).run([
+testsFromVerdict(await verifyRule(capacitorPolarity, [
   { name: "an emitter bypass with + on the emitter is the right way round", circuit: npnStage({ parts: bypass("emit") }), expect: [], passed: ["CE"] },
   { name: "a reversed electrolytic (+ on ground below a 1.45 V emitter) is found", circuit: npnStage({ parts: bypass("gnd") }), expect: [{ subject: "CE", messageIncludes: "reverse-biased by 1.4" }] },
   { name: "PNP: + on the rail is right", circuit: pnpStage({ parts: pnpBypass("vcc") }), expect: [], passed: ["CE"] },
@@ -23,7 +24,7 @@ ruleTester(capacitorPolarity).run([
   { name: "boundary: 0.501 V reverse fails", circuit: hand, analyses: across(-0.501), expect: [{ subject: "C1" }] },
   { name: "boundary: 0.499 V reverse passes", circuit: hand, analyses: across(-0.499), expect: [], passed: ["C1"] },
   { name: "non-polarised capacitors are not judged", circuit: npnStage(), expect: [] },
-]);
+]));
 
 describe("across corners", () => {
   it("the reversed electrolytic is worst where the emitter is highest (supply at its high end)", async () => {

@@ -1,5 +1,6 @@
 // capacitor-voltage: DC across coupling and bypass capacitors against 80% of their rating.
-import { ruleTester } from "../src/review/tester.js";
+import { verifyRule } from "../src/review/tester.js";
+import { testsFromVerdict } from "../test/verdict-tests.js";
 import { analysis, capacitor, circuit, op } from "../test/review/fixtures.js";
 import { npnStage, pnpStage } from "../test/review/circuits.js";
 import capacitorVoltage from "./capacitor-voltage.js";
@@ -8,7 +9,7 @@ const bypass = (rating: string) => `  - { id: CB, kind: capacitor, pins: [vcc, g
 const rated = circuit({ components: [capacitor("C1", 12, 10)] });
 const across = (v: number) => [analysis(rated, op({ C1: { kind: "capacitor", voltage: v } }))];
 
-ruleTester(capacitorVoltage).run([
+testsFromVerdict(await verifyRule(capacitorVoltage, [
   { name: "NPN stage coupling capacitors are well inside their ratings", circuit: npnStage(), expect: [], passed: ["C1", "C2"] },
   { name: "12 V across a 10 V bypass capacitor (8 V allowed) fails", circuit: npnStage({ parts: bypass(", voltageRating: 10 V") }), expect: [{ subject: "CB", messageIncludes: "allowed 8 V (80% of its 10 V rating)" }] },
   { name: "12 V across a 16 V part (12.8 V allowed) passes", circuit: npnStage({ parts: bypass(", voltageRating: 16 V") }), expect: [], passed: ["CB"] },
@@ -18,4 +19,4 @@ ruleTester(capacitorVoltage).run([
   { name: "requireRating makes an unrated capacitor with DC across it a finding", circuit: npnStage({ parts: bypass("") }), options: { requireRating: true }, expect: [{ subject: "CB", messageIncludes: "no voltageRating" }] },
   { name: "boundary: 8.001 V across a 10 V part fails", circuit: rated, analyses: across(8.001), expect: [{ subject: "C1" }] },
   { name: "boundary: −7.999 V passes", circuit: rated, analyses: across(-7.999), expect: [], passed: ["C1"] },
-]);
+]));

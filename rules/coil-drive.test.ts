@@ -1,6 +1,7 @@
 // coil-drive: a relay coil's current and voltage against its must-operate values, copper warmed
 // to the scenario's ambient.
-import { ruleTester } from "../src/review/tester.js";
+import { verifyRule } from "../src/review/tester.js";
+import { testsFromVerdict } from "../test/verdict-tests.js";
 import { relayDriver } from "../test/review/circuits.js";
 import coilDrive from "./coil-drive.js";
 
@@ -14,7 +15,7 @@ components:
   - { id: K1, kind: resistor, pins: [vcc, gnd], value: 400, role: coil${coil} }
 `;
 
-ruleTester(coilDrive).run([
+testsFromVerdict(await verifyRule(coilDrive, [
   { name: "30 mA against a 25 mA must-operate current passes", circuit: across(", mustOperateCurrent: 25 mA"), expect: [], passed: ["K1"] },
   { name: "30 mA against 31 mA fails", circuit: across(", mustOperateCurrent: 31 mA"), expect: [{ subject: "K1", messageIncludes: "carries 30 mA at 23 °C ambient; it needs 31 mA" }] },
   { name: "at 60 °C the warm coil carries 26.2 mA, short of 27 mA", circuit: across(", mustOperateCurrent: 27 mA", "60 °C"), expect: [{ subject: "K1", messageIncludes: "carries 26.2 mA at 60 °C" }] },
@@ -26,4 +27,4 @@ ruleTester(coilDrive).run([
   { name: "the relay driver's saturated NPN gives the coil its 25 mA", circuit: relayDriver({ head: "temperature: 23 °C", coil: ", role: coil, mustOperateCurrent: 25 mA" }), expect: [], passed: ["K1"] },
   { name: "at the low-supply corner (11.4 V) 29 mA is not enough", circuit: relayDriver({ head: "temperature: 23 °C", coil: ", role: coil, mustOperateCurrent: 29 mA" }), variation: { mode: "corners", samples: 1, seed: 1 }, expect: [{ subject: "K1", messageIncludes: "it needs 29 mA" }] },
   { name: "a coil without must-operate values is not judged", circuit: across(""), expect: [] },
-]);
+]));

@@ -1,5 +1,6 @@
 // device-current: collector and drain current windows, both polarities.
-import { ruleTester } from "../src/review/tester.js";
+import { verifyRule } from "../src/review/tester.js";
+import { testsFromVerdict } from "../test/verdict-tests.js";
 import { analysis, at, bjt, bjtPoint, circuit, op } from "../test/review/fixtures.js";
 import { nmosStage, npnStage, pmosStage, pnpStage } from "../test/review/circuits.js";
 import deviceCurrent from "./device-current.js";
@@ -8,7 +9,7 @@ const window = (id: string, w: string) => `  devices:\n    ${id}: { ${w} }`;
 const pnp = circuit({ components: [bjt("Q1", "pnp", 10)], specs: { devices: [{ device: "Q1", minCurrent: 1e-3, maxCurrent: 2e-3, pos: at(30) }] } });
 const ic = (value: number) => [analysis(pnp, op({ Q1: bjtPoint("pnp", { collectorCurrent: value }) }))];
 
-ruleTester(deviceCurrent).run([
+testsFromVerdict(await verifyRule(deviceCurrent, [
   { name: "NPN IC ≈ 1.18 mA inside 1–1.5 mA", circuit: npnStage({ specs: window("Q1", "minCurrent: 1 mA, maxCurrent: 1.5 mA") }), expect: [], passed: ["Q1"] },
   { name: "NPN IC above a 1 mA maximum", circuit: npnStage({ specs: window("Q1", "maxCurrent: 1 mA") }), expect: [{ subject: "Q1", messageIncludes: "collector current is 1.18 mA, above its maximum of 1 mA" }] },
   // The PNP's collector current is reported positive (out of the collector), so the same window works.
@@ -19,4 +20,4 @@ ruleTester(deviceCurrent).run([
   { name: "boundary: 2.0001 mA is above the maximum", circuit: pnp, analyses: ic(2.0001e-3), expect: [{ subject: "Q1", messageIncludes: "above" }] },
   { name: "boundary: 1.9999 mA is inside", circuit: pnp, analyses: ic(1.9999e-3), expect: [], passed: ["Q1"] },
   { name: "boundary: 0.9999 mA is below the minimum", circuit: pnp, analyses: ic(0.9999e-3), expect: [{ subject: "Q1", messageIncludes: "below" }] },
-]);
+]));

@@ -1,5 +1,6 @@
 // device-power: transistor dissipation against half the model's rating, derated above 25 °C.
-import { ruleTester } from "../src/review/tester.js";
+import { verifyRule } from "../src/review/tester.js";
+import { testsFromVerdict } from "../test/verdict-tests.js";
 import { analysis, bjt, bjtPoint, circuit, op } from "../test/review/fixtures.js";
 import type { BjtModel } from "../src/circuit/types.js";
 import { npnStage, pmosStage, pnpStage } from "../test/review/circuits.js";
@@ -12,7 +13,7 @@ const hot = (power: number, temperatureK: number) => {
 };
 const smallNpn = `  tw-npn: { kind: npn, beta: { min: 150, typ: 250, max: 400 }, saturationCurrent: 1e-14 A, earlyVoltage: 100 V, powerRating: 10 mW }`;
 
-ruleTester(devicePower).run([
+testsFromVerdict(await verifyRule(devicePower, [
   // Q1 dissipates ≈ IC·VCE ≈ 1.17 mA · 5.1 V ≈ 6 mW.
   { name: "NPN stage: 6 mW of a 250 mW part", circuit: npnStage(), expect: [], passed: ["Q1"] },
   { name: "NPN stage: 6 mW in a 10 mW part (5 mW allowed) fails", circuit: npnStage({ model: smallNpn }), expect: [{ subject: "Q1", messageIncludes: "50% of 10 mW" }] },
@@ -23,4 +24,4 @@ ruleTester(devicePower).run([
   // At 87.5 °C the linear derating from 25 °C to 150 °C leaves half: 0.2 W · 0.5 · 0.5 = 50 mW.
   { name: "boundary at 87.5 °C: 50.001 mW fails", ...hot(0.050001, 360.65), expect: [{ subject: "Q1", messageIncludes: "derated to 88 °C" }] },
   { name: "boundary at 87.5 °C: 49.999 mW passes", ...hot(0.049999, 360.65), expect: [], passed: ["Q1"] },
-]);
+]));

@@ -1,7 +1,8 @@
 // device-ratings: breakdowns, gate–source maximum, diode reverse voltage and forward current
 // against 80 % of the datasheet ratings, NPN/PNP and NMOS/PMOS alike, at the worst corner.
 import { describe, expect, it } from "vitest";
-import { loadCaseCircuit, ruleTester, runRuleCase } from "../src/review/tester.js";
+import { loadCaseCircuit, verifyRule, runRuleCase } from "../src/review/tester.js";
+import { testsFromVerdict } from "../test/verdict-tests.js";
 import { buildScenarios } from "../src/variation/index.js";
 import { analysis, bjt, bjtPoint, circuit, mos, mosPoint, op } from "../test/review/fixtures.js";
 import deviceRatings from "./device-ratings.js";
@@ -80,7 +81,7 @@ const mosModel = { id: "m", kind: "pmos" as const, pos: { file: "f", line: 1, co
 const mosBoundary = circuit({ components: [mos("M1", "pmos", 30)], models: [mosModel] });
 const atVgs = (vgs: number, id = 1e-3) => [analysis(mosBoundary, op({ M1: mosPoint("pmos", { gateSourceVoltage: vgs, drainCurrent: id, drainSourceVoltage: -5 }) }))];
 
-ruleTester(deviceRatings).run([
+testsFromVerdict(await verifyRule(deviceRatings, [
   { name: "a gate at 12 V is within 80% of a 20 V VGS rating", circuit: gateAtRail("12 V"), expect: [], passed: ["M1"] },
   { name: "a gate over its VGS maximum: 18 V against 16 V allowed", circuit: gateAtRail("18 V"), expect: [{ subject: "M1", messageIncludes: "VGS is 18 V; allowed 16 V (80% of its VGS max rating of 20 V)" }] },
   { name: "PMOS: VGS = −18 V is judged by its magnitude", circuit: pmosGate("18 V"), expect: [{ subject: "M1", messageIncludes: "VGS is 18 V" }] },
@@ -97,7 +98,7 @@ ruleTester(deviceRatings).run([
   { name: "boundary: PNP VCE −8.001 V against 8 V fails", circuit: boundary, analyses: atVce(-8.001), expect: [{ subject: "Q1" }] },
   { name: "boundary: PNP VCE −7.999 V passes", circuit: boundary, analyses: atVce(-7.999), expect: [], passed: ["Q1"] },
   { name: "two ratings over: the worst is reported and the other listed", circuit: mosBoundary, analyses: atVgs(-30, 0.09), expect: [{ subject: "M1", messageIncludes: "VGS is 30 V; allowed 16 V (80% of its VGS max rating of 20 V); also ID 90 mA over 80 mA" }] },
-]);
+]));
 
 describe("the worst corner", () => {
   it("a collector over its breakdown rating only at the high-supply corner is found there", async () => {

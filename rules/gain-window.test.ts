@@ -1,6 +1,7 @@
 // gain-window: a degenerated common-emitter stage against windows around the textbook gain.
 import { expect, it } from "vitest";
-import { ruleTester, runRuleCase } from "../src/review/tester.js";
+import { verifyRule, runRuleCase } from "../src/review/tester.js";
+import { testsFromVerdict } from "../test/verdict-tests.js";
 import { analysis, at, circuit, gain, op, small } from "../test/review/fixtures.js";
 import { npnStage, pnpStage } from "../test/review/circuits.js";
 import gainWindow from "./gain-window.js";
@@ -9,7 +10,7 @@ const spec = (target: string, tolerance = "5%") => `  gains:\n    - { name: stag
 const windowed = circuit({ specs: { gains: [{ name: "stage", input: "VIN", output: { plus: "out", minus: "gnd" }, target: -10, window: { min: -11, max: -9 }, pos: at(40) }] } });
 const judged = (g: number) => [analysis(windowed, op({}), "nominal", small([gain("stage", g)]))];
 
-ruleTester(gainWindow).run([
+testsFromVerdict(await verifyRule(gainWindow, [
   // Hand estimate: −β(RC‖RL‖ro)/(rπ + (β+1)RE) ≈ −250·3.09k/(5.75k + 251·1.2k) ≈ −2.52.
   { name: "NPN stage gain inside −2.5 ± 5%", circuit: npnStage({ specs: spec("-2.5") }), expect: [], passed: ["stage"] },
   { name: "NPN stage gain above a −3 ± 5% window", circuit: npnStage({ specs: spec("-3") }), expect: [{ subject: "stage", messageIncludes: "above its window" }] },
@@ -28,7 +29,7 @@ ruleTester(gainWindow).run([
     analyses: [analysis(windowed, op({}), "nominal", small([], [{ gain: "stage", message: "the small-signal network is singular" }]))],
     expect: [{ subject: "stage", messageIncludes: "singular" }],
   },
-]);
+]));
 
 it("tells an inverting stage with too little gain to raise its magnitude", async () => {
   const r = await runRuleCase(gainWindow, { name: "hint", circuit: windowed, analyses: judged(-5), expect: [] });

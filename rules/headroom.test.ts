@@ -1,6 +1,7 @@
 // headroom: NPN/PNP/NMOS/PMOS stages through the real pipeline, the boundary on hand-built points.
 import { expect, it } from "vitest";
-import { ruleTester, runRuleCase } from "../src/review/tester.js";
+import { verifyRule, runRuleCase } from "../src/review/tester.js";
+import { testsFromVerdict } from "../test/verdict-tests.js";
 import { analysis, bjt, bjtPoint, circuit, mos, mosPoint, op } from "../test/review/fixtures.js";
 import { nmosStage, npnStage, pmosStage, pnpStage } from "../test/review/circuits.js";
 import headroom from "./headroom.js";
@@ -9,7 +10,7 @@ const q1 = circuit({ components: [bjt("Q1", "npn", 10), bjt("Q2", "pnp", 11), mo
 const points = (bjtHeadroom: number, mosHeadroom: number) =>
   op({ Q1: bjtPoint("npn", { headroom: bjtHeadroom }), Q2: bjtPoint("pnp", { headroom: bjtHeadroom, collectorEmitterVoltage: -(bjtHeadroom + 0.3) }), M1: mosPoint("nmos", { headroom: mosHeadroom }), M2: mosPoint("pmos", { headroom: mosHeadroom, drainSourceVoltage: -(mosHeadroom + 0.5) }) });
 
-ruleTester(headroom).run([
+testsFromVerdict(await verifyRule(headroom, [
   { name: "NPN stage with VCE ≈ 5 V passes", circuit: npnStage(), expect: [], passed: ["Q1"] },
   { name: "NPN stage with RC 8k7 sits 0.09 V from saturation", circuit: npnStage({ rc: "8k7" }), expect: [{ subject: "Q1", severity: "error", messageIncludes: "saturation edge" }] },
   { name: "PNP mirror stage passes", circuit: pnpStage(), expect: [], passed: ["Q1"] },
@@ -29,7 +30,7 @@ ruleTester(headroom).run([
   { name: "BJT boundary: just above passes", circuit: q1, analyses: [analysis(q1, points(0.5001, 1))], expect: [], passed: ["Q1", "Q2"] },
   { name: "MOS boundary: 0.2999 V fails (default 0.3 V)", circuit: q1, analyses: [analysis(q1, points(1, 0.2999))], expect: [{ subject: "M1" }, { subject: "M2" }] },
   { name: "MOS boundary: 0.3001 V passes", circuit: q1, analyses: [analysis(q1, points(1, 0.3001))], expect: [], passed: ["M1", "M2"] },
-]);
+]));
 
 it("measures the square-law headroom a hand analysis gives, equal for NMOS and PMOS", async () => {
   // Square law (textbook closed form): VG = 3 V, k = 2 mA/V², RS = 1 kΩ → ID = 1 mA, Vov = 1 V,
@@ -99,13 +100,13 @@ const cascodeBias = `${MIRROR_MODELS}components:
   - { id: RC, kind: resistor, pins: [vcc, out], value: 4k7 }
 `;
 
-ruleTester(headroom).run([
+testsFromVerdict(await verifyRule(headroom, [
   { name: "basic mirror: the diode-connected Q1 is not judged, Q2 passes", circuit: basicMirror, expect: [], passed: ["Q2"] },
   { name: "Wilson mirror: Q2 (diode-connected) not judged; Q1 and Q3 pass", circuit: wilsonMirror, expect: [], passed: ["Q1", "Q3"] },
   { name: "Widlar mirror: Q1 not judged, Q2 passes", circuit: widlarMirror, expect: [], passed: ["Q2"] },
   { name: "MOSFET mirror: M1 (drain on gate) not judged, M2 passes", circuit: mosMirror, expect: [], passed: ["M2"] },
   { name: "cascode with a diode-connected bias chain: QB1, QB2 not judged; Q1 and Q2 pass", circuit: cascodeBias, expect: [], passed: ["Q1", "Q2"] },
-]);
+]));
 
 it("the diode-connected devices are exempt, not silently passed: they appear neither as findings nor as passed checks", async () => {
   const r = await runRuleCase(headroom, { name: "wilson", circuit: wilsonMirror, expect: [] });

@@ -8,7 +8,8 @@
 // IC, VCE and IE are read from the tool's own operating point, so the check isolates the swing
 // computation. Tidewater Instruments stages (invented values).
 import { describe, expect, it } from "vitest";
-import { ruleTester, runRuleCase } from "../src/review/tester.js";
+import { verifyRule, runRuleCase } from "../src/review/tester.js";
+import { testsFromVerdict } from "../test/verdict-tests.js";
 import { loadCaseCircuit } from "../src/review/tester.js";
 import { solveOperatingPoint } from "../src/solve/index.js";
 import type { BjtPoint } from "../src/solve/types.js";
@@ -63,12 +64,12 @@ function stage(text: string, name: string) {
   return { q: op.devices["Q1"] as BjtPoint, gain };
 }
 
-ruleTester(signalSwing).run([
+testsFromVerdict(await verifyRule(signalSwing, [
   { name: "a 1 mV input fits the common-emitter stage", circuit: ce("1 mV"), expect: [], passed: ["stage"] },
   { name: "a 200 mV input into a gain of ~150 clips (cutoff first with RC 4k7)", circuit: ce("200 mV"), expect: [{ subject: "stage", severity: "error", messageIncludes: "Q1 cuts off first" }] },
   { name: "with RC 6k8 the same stage saturates first", circuit: ce("200 mV", "6k8"), expect: [{ subject: "stage", messageIncludes: "Q1 saturates first" }] },
   { name: "a source without a signal amplitude is not judged", circuit: ce("1 mV").replace(", signal: 1 mV", ""), expect: [] },
-]);
+]));
 
 describe("closed forms", () => {
   it("common emitter, cutoff side: the largest output swing is IC·(RC ‖ RL)", async () => {

@@ -10,3 +10,8 @@ mkdirSync(PRECOMPILED_DIR, { recursive: true });
 for (const name of PRECOMPILED_SCHEMAS) {
   writeFileSync(join(PRECOMPILED_DIR, `${name}.cjs`), validatorSource(readFileSync(schemaPath(name), "utf8")));
 }
+
+// The built-in rules' option schemas (src/review/options-generated.ts).
+const { builtinRules } = await import("../dist/rules/index.js");
+const { RULE_OPTIONS_FILE, ruleOptionsSource } = await import("../dist/src/review/options-generated.js");
+writeFileSync(RULE_OPTIONS_FILE, await ruleOptionsSource(builtinRules()));

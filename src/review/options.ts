@@ -4,6 +4,7 @@ import { Ajv, type ErrorObject, type ValidateFunction } from "ajv";
 import type { SourcePos } from "../circuit/types.js";
 import { didYouMean } from "./did-you-mean.js";
 import { ConfigError, problemAt, type ConfigProblem } from "./errors.js";
+import { generatedOptionsValidator, OPTIONS_AJV } from "./options-generated.js";
 import { describeValue, type Rule } from "./rule.js";
 
 /** Where options came from, for error positions. */
@@ -20,13 +21,17 @@ export interface OptionsOrigin {
 
 // One ajv instance for all rule schemas; `useDefaults` fills in every property's `default`.
 // strict is off because team schemas may carry keywords of their own (titles, examples).
-const ajv = new Ajv({ allErrors: true, useDefaults: true, strict: false });
+// Made on first need: the built-in rules' validators are generated at build time.
+let ajv: Ajv | undefined;
 const compiled = new WeakMap<Rule, ValidateFunction>();
 
 function validatorFor(rule: Rule): ValidateFunction {
   let v = compiled.get(rule);
-  if (!v) {
+  if (!v) v = generatedOptionsValidator(rule);
+  if (v) compiled.set(rule, v);
+  else {
     try {
+      ajv ??= new Ajv(OPTIONS_AJV);
       v = ajv.compile(rule.options);
     } catch (err) {
       throw new ConfigError({

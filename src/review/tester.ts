@@ -1,10 +1,10 @@
-// The rule tester: a rule's tests as a table of cases — circuit (YAML snippet, example file, or
-// a hand-built circuit with its analyses) + options → expected findings. It also checks the
-// rule's shape, that its option defaults validate, and that the rule does not mutate its input.
-// Import it in test files only (it uses vitest).
+// The team-rule kit's checker: a rule's tests as a table of cases — circuit (YAML snippet,
+// example file, or a hand-built circuit with its analyses) + options → expected findings.
+// `verifyRule` runs every case through the real loader, solve and engine and returns a verdict
+// per case (problems as plain sentences), so any test runner can assert on it; it also checks
+// the rule's shape, that its option defaults validate, and that the rule does not modify its input.
 import { readFileSync } from "node:fs";
 import { resolve } from "node:path";
-import { describe, expect, it } from "vitest";
 import { loadCircuitText } from "../circuit/index.js";
 import type { Circuit } from "../circuit/types.js";
 import { analyseSmallSignal } from "../smallsignal/index.js";
@@ -44,6 +44,28 @@ export interface RuleTestCase {
 export interface RuleTestResult {
   readonly findings: Finding[];
   readonly passed: PassedCheck[];
+}
+
+/** What one case produced and what is wrong with it; `problems` is empty when the case holds. */
+export interface CaseVerdict extends RuleTestResult {
+  readonly name: string;
+  readonly ok: boolean;
+  readonly problems: readonly string[];
+}
+
+/** The verdict on a rule and its table: `ok` when the rule's shape and every case hold. */
+export interface RuleVerdict {
+  readonly rule: string;
+  readonly ok: boolean;
+  /** Problems with the rule itself (shape, option defaults); empty when it is well formed. */
+  readonly shapeProblems: readonly string[];
+  readonly cases: readonly CaseVerdict[];
+}
+
+/** Settings shared by every case of a table (a case's own value wins). */
+export interface SharedCaseSettings {
+  readonly options?: Readonly<Record<string, unknown>>;
+  readonly variation?: VariationSettings;
 }
 
 const NOMINAL: VariationSettings = { mode: "nominal", samples: 1, seed: 1 };
@@ -94,7 +116,7 @@ function snapshot(value: unknown): string {
   return JSON.stringify(value, (_k, v: unknown) => (v instanceof Map ? { map: [...v.entries()] } : typeof v === "number" && !Number.isFinite(v) ? String(v) : v));
 }
 
-/** Runs one case through the engine with the one rule; no assertions. */
+/** Runs one case through the engine with the one rule; no judgement. */
 export async function runRuleCase(rule: Rule, c: RuleTestCase): Promise<RuleTestResult & { mutated: boolean }> {
   let circuit: Circuit;
   let analyses: readonly ScenarioAnalysis[];
@@ -115,60 +137,75 @@ export async function runRuleCase(rule: Rule, c: RuleTestCase): Promise<RuleTest
   return { ...result, mutated: snapshot({ circuit, analyses }) !== before };
 }
 
-function sortKey(x: { subject: string; message?: string }): string {
-  return x.subject;
-}
-
-/** Asserts a case's findings against its expectations (vitest `expect`). */
-export function assertCase(rule: Rule, c: RuleTestCase, result: RuleTestResult & { mutated: boolean }): void {
-  expect(result.mutated, `rule ${rule.id} modified the circuit or analyses it was given`).toBe(false);
-  const actual = [...result.findings].sort((a, b) => sortKey(a).localeCompare(sortKey(b)));
-  const wanted = [...c.expect].sort((a, b) => sortKey(a).localeCompare(sortKey(b)));
-  const shown = actual.map((f) => ({ rule: f.rule, subject: f.subject, severity: f.severity, scenario: f.scenario, message: f.message }));
-  expect(shown, `findings of ${rule.id} in "${c.name}"`).toEqual(
-    wanted.map((e) =>
-      expect.objectContaining({
-        rule: e.rule ?? rule.id,
-        subject: e.subject,
-        ...(e.severity ? { severity: e.severity } : {}),
-        ...(e.scenario ? { scenario: e.scenario } : {}),
-        ...(e.messageIncludes ? { message: expect.stringContaining(e.messageIncludes) } : {}),
-      }),
-    ),
+function matches(rule: Rule, e: ExpectedFinding, f: Finding): boolean {
+  return (
+    f.rule === (e.rule ?? rule.id) &&
+    f.subject === e.subject &&
+    (e.severity === undefined || f.severity === e.severity) &&
+    (e.scenario === undefined || f.scenario === e.scenario) &&
+    (e.messageIncludes === undefined || f.message.includes(e.messageIncludes))
   );
-  for (const subject of c.passed ?? [])
-    expect(result.passed.map((p) => p.subject), `passed checks of ${rule.id} in "${c.name}"`).toContain(subject);
 }
 
-/** Settings shared by every case of a table (a case's own value wins). */
-export interface RuleTesterDefaults {
-  readonly options?: Readonly<Record<string, unknown>>;
-  readonly variation?: VariationSettings;
+function describeExpected(rule: Rule, e: ExpectedFinding): string {
+  const parts = [`${e.rule ?? rule.id} on \`${e.subject}\``];
+  if (e.severity) parts.push(`severity ${e.severity}`);
+  if (e.scenario) parts.push(`scenario ${e.scenario}`);
+  if (e.messageIncludes) parts.push(`message containing "${e.messageIncludes}"`);
+  return parts.join(", ");
+}
+
+function describeFinding(f: Finding): string {
+  return `${f.rule} on \`${f.subject}\` (${f.severity}, scenario ${f.scenario}): ${f.message}`;
 }
 
 /**
- * `ruleTester(rule).run([...cases])` inside a vitest file: one `it` per case, plus a check of
- * the rule's shape and option defaults. Options or variation shared by a table go in `defaults`.
+ * Judges one case's result against its expectations: every expected finding matched by its own
+ * finding (in any order), no finding left over, every `passed` subject among the passed
+ * checks, nothing modified. Returns the problems as sentences; none = the case holds.
  */
-export function ruleTester(rule: Rule, defaults: RuleTesterDefaults = {}): { run(cases: readonly RuleTestCase[]): void } {
-  return {
-    run(cases) {
-      describe(`rule ${rule.id}`, () => {
-        it("has the shape of a rule, and its option defaults validate", () => {
-          expect(ruleShapeProblems(rule)).toEqual([]);
-          expect(() => defaultOptions(rule)).not.toThrow();
-        });
-        for (const given of cases) {
-          const c: RuleTestCase = {
-            ...given,
-            ...((given.options ?? defaults.options) ? { options: { ...defaults.options, ...given.options } } : {}),
-            ...((given.variation ?? defaults.variation) ? { variation: given.variation ?? defaults.variation! } : {}),
-          };
-          it(c.name, async () => {
-            assertCase(rule, c, await runRuleCase(rule, c));
-          });
-        }
-      });
-    },
-  };
+export function judgeCase(rule: Rule, c: RuleTestCase, result: RuleTestResult & { mutated: boolean }): string[] {
+  const problems: string[] = [];
+  if (result.mutated) problems.push(`rule ${rule.id} modified the circuit or analyses it was given`);
+  const left = [...result.findings];
+  for (const e of c.expect) {
+    const k = left.findIndex((f) => matches(rule, e, f));
+    if (k >= 0) left.splice(k, 1);
+    else problems.push(`missing finding: ${describeExpected(rule, e)}`);
+  }
+  for (const f of left) problems.push(`unexpected finding: ${describeFinding(f)}`);
+  const passedSubjects = result.passed.map((p) => p.subject);
+  for (const subject of c.passed ?? []) {
+    if (!passedSubjects.includes(subject)) problems.push(`\`${subject}\` is not among the passed checks (${passedSubjects.join(", ") || "none"})`);
+  }
+  return problems;
+}
+
+/**
+ * Verifies a rule against a table of cases. Never throws for a failing case: a case whose
+ * circuit does not load, or whose rule run throws, gets that as its problem.
+ */
+export async function verifyRule(rule: Rule, cases: readonly RuleTestCase[], shared: SharedCaseSettings = {}): Promise<RuleVerdict> {
+  const shapeProblems = [...ruleShapeProblems(rule)];
+  try {
+    defaultOptions(rule);
+  } catch (err) {
+    shapeProblems.push(`the option defaults do not validate: ${err instanceof Error ? err.message : String(err)}`);
+  }
+  const verdicts: CaseVerdict[] = [];
+  for (const given of cases) {
+    const c: RuleTestCase = {
+      ...given,
+      ...((given.options ?? shared.options) ? { options: { ...shared.options, ...given.options } } : {}),
+      ...((given.variation ?? shared.variation) ? { variation: given.variation ?? shared.variation! } : {}),
+    };
+    try {
+      const result = await runRuleCase(rule, c);
+      const problems = judgeCase(rule, c, result);
+      verdicts.push({ name: c.name, ok: problems.length === 0, problems, findings: result.findings, passed: result.passed });
+    } catch (err) {
+      verdicts.push({ name: c.name, ok: false, problems: [err instanceof Error ? err.message : String(err)], findings: [], passed: [] });
+    }
+  }
+  return { rule: rule.id, ok: shapeProblems.length === 0 && verdicts.every((v) => v.ok), shapeProblems, cases: verdicts };
 }

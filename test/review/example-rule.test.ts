@@ -4,7 +4,8 @@ import { resolve } from "node:path";
 import { expect, it } from "vitest";
 import { loadConfig } from "../../src/review/config.js";
 import { loadPlugins } from "../../src/review/plugins.js";
-import { ruleTester, runRuleCase } from "../../src/review/tester.js";
+import { verifyRule, runRuleCase } from "../../src/review/tester.js";
+import { testsFromVerdict } from "../verdict-tests.js";
 import { npnStage, pnpStage } from "./circuits.js";
 
 const ROOT = resolve(import.meta.dirname, "..", "..");
@@ -17,7 +18,7 @@ it("is the one rule of the example plugin", () => {
   expect(rule.id).toBe("tidewater/divider-current");
 });
 
-ruleTester(rule).run([
+testsFromVerdict(await verifyRule(rule, [
   // R2 = 12 kΩ carries VB/R2 ≈ 2.1 V/12 kΩ ≈ 175 µA; IB ≈ IC/β ≈ 4.7 µA: 37 × IB.
   { name: "the NPN stage's 56k/12k divider is stiff", circuit: npnStage(), expect: [], passed: ["Q1"] },
   // Ten times larger resistors: the divider current drops to ≈ 16 µA, under 10 × IB ≈ 47 µA.
@@ -26,7 +27,7 @@ ruleTester(rule).run([
   { name: "a weak PNP divider fails the same way", circuit: pnpStage({ r1: "120k", r2: "560k" }), expect: [{ subject: "Q1" }] },
   { name: "a ratio of 40 from the config fails the stiff NPN divider", circuit: npnStage(), options: { ratio: 40 }, expect: [{ subject: "Q1" }] },
   { name: "a single base resistor is not a divider", circuit: npnStage({ r2: "1G" }).replace("  - { id: R2, kind: resistor, pins: [base, gnd], value: 1G, tolerance: 1%, package: \"0603\" }\n", ""), expect: [] },
-]);
+]));
 
 it("measures the smaller leg: the lower resistor for NPN, the upper for PNP", async () => {
   const npn = await runRuleCase(rule, { name: "npn", circuit: npnStage({ r1: "560k", r2: "120k" }), expect: [] });
