@@ -60,7 +60,7 @@ export function chainCircuit(nodes: number, seed = 1): Circuit {
     ],
     [
       "nmos",
-      { id: "nmos", pos: POS, kind: "nmos", threshold: spread(1), kPrime: spread(100e-6), width: 20e-6, length: 1e-6, lambda: spread(0.02), bodyEffect: 0, fermiPotential: 0.3, thresholdTempco: -2e-3, kPrimeExponent: -1.5 },
+      { id: "nmos", pos: POS, kind: "nmos", threshold: spread(1), kPrime: spread(100e-6), width: 20e-6, length: 1e-6, channelLengthModulation: spread(0.02), bodyEffect: 0, fermiPotential: 0.3, thresholdTempco: -2e-3, kPrimeExponent: -1.5 },
     ],
   ]);
   return {

@@ -77,7 +77,7 @@ components:
 const boundaryModel = { id: "q", kind: "npn" as const, pos: { file: "f", line: 1, column: 1 }, beta: { min: 100, typ: 100, max: 100 }, reverseBeta: { min: 1, typ: 1, max: 1 }, saturationCurrent: { min: 1e-14, typ: 1e-14, max: 1e-14 }, earlyVoltage: { min: Infinity, typ: Infinity, max: Infinity }, saturationEdge: 0.3, drift: { voltage: -0.002, current: 1e-3 }, betaDrift: 0.005, betaAt: { collectorEmitterVoltage: 5, collectorCurrent: 2e-3 }, ratings: { collectorEmitter: 10 } };
 const boundary = circuit({ components: [bjt("Q1", "pnp", 20)], models: [boundaryModel] });
 const atVce = (vce: number) => [analysis(boundary, op({ Q1: bjtPoint("pnp", { collectorEmitterVoltage: vce, baseEmitterVoltage: -0.65 }) }))];
-const mosModel = { id: "m", kind: "pmos" as const, pos: { file: "f", line: 1, column: 1 }, threshold: { min: -1, typ: -1, max: -1 }, kPrime: { min: 1e-3, typ: 1e-3, max: 1e-3 }, width: 1e-6, length: 1e-6, lambda: { min: 0, typ: 0, max: 0 }, bodyEffect: 0, fermiPotential: 0.3, thresholdTempco: -0.002, kPrimeExponent: -1.5, ratings: { gateSource: 20, drainCurrent: 0.1 } };
+const mosModel = { id: "m", kind: "pmos" as const, pos: { file: "f", line: 1, column: 1 }, threshold: { min: -1, typ: -1, max: -1 }, kPrime: { min: 1e-3, typ: 1e-3, max: 1e-3 }, width: 1e-6, length: 1e-6, channelLengthModulation: { min: 0, typ: 0, max: 0 }, bodyEffect: 0, fermiPotential: 0.3, thresholdTempco: -0.002, kPrimeExponent: -1.5, ratings: { gateSource: 20, drainCurrent: 0.1 } };
 const mosBoundary = circuit({ components: [mos("M1", "pmos", 30)], models: [mosModel] });
 const atVgs = (vgs: number, id = 1e-3) => [analysis(mosBoundary, op({ M1: mosPoint("pmos", { gateSourceVoltage: vgs, drainCurrent: id, drainSourceVoltage: -5 }) }))];
 

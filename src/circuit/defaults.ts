@@ -45,7 +45,7 @@ export const DEFAULT_DRIFT_CURRENT_A = 1e-3;
 export const DEFAULT_BETA_DRIFT_PER_K = 0.005;
 
 /** Channel-length modulation λ: 0 (no output-conductance term unless given). */
-export const DEFAULT_LAMBDA = 0;
+export const DEFAULT_CHANNEL_LENGTH_MODULATION = 0;
 /** Body-effect coefficient γ: 0 (body effect off unless given). */
 export const DEFAULT_BODY_EFFECT = 0;
 /**
@@ -61,3 +61,10 @@ export const DEFAULT_KPRIME_EXPONENT = -1.5;
 
 /** Bare temperature numbers below this are probably meant as °C: 25 K is far colder than any board. */
 export const SUSPICIOUS_KELVIN_BELOW = 150;
+
+/**
+ * Highest ambient a circuit file may state: 200 °C. Silicon devices are rated to 150–200 °C
+ * junction (common practice: datasheet absolute maximum ratings); far above it the junction
+ * models give numbers that mean nothing (1e6 °C once ended in "singular at node …").
+ */
+export const MAX_TEMPERATURE_K = 473.15;

@@ -104,6 +104,12 @@ export function readToleranced(ctx: ResolveContext, obj: Record<string, unknown>
     return undefined;
   }
   const d = Math.abs(nominal) * f.value;
+  // A band that reaches zero or changes sign makes a positive quantity non-physical: say it is
+  // the tolerance (the value's own check would only say "must be positive").
+  if (nominal > 0 && nominal - d <= 0) {
+    ctx.error(tolPath, `${what}: tolerance ${String(tol).trim()} takes ${valueKey} down to ${nominal - d === 0 ? "zero" : "below zero"} at its low end`, "a symmetric tolerance must stay under 100 %; give { min, max } for a lopsided band");
+    return undefined;
+  }
   return { nominal, min: nominal - d, max: nominal + d };
 }
 

@@ -112,6 +112,28 @@ export function loadCircuitText(text: string, file: string, opts: LoadOptions = 
   return { ok: true, circuit: withWarnings };
 }
 
+/** The first line (1-based) holding bytes that are not UTF-8, or undefined for valid text. */
+function invalidUtf8Line(buffer: Buffer): number | undefined {
+  const strict = new TextDecoder("utf-8", { fatal: true });
+  try {
+    strict.decode(buffer);
+    return undefined;
+  } catch {
+    // Find the line: decode line by line (a multi-byte character never contains the byte 0x0A).
+    let start = 0;
+    for (let line = 1; ; line++) {
+      const end = buffer.indexOf(10, start);
+      try {
+        strict.decode(buffer.subarray(start, end < 0 ? buffer.length : end));
+      } catch {
+        return line;
+      }
+      if (end < 0) return line;
+      start = end + 1;
+    }
+  }
+}
+
 /** Reads and loads a circuit file; `displayPath` (e.g. repository-relative) names it in messages. */
 export async function loadCircuitFile(path: string, opts: { displayPath?: string; root?: string; libraries?: readonly LibraryRef[] } = {}): Promise<LoadResult> {
   const shown = opts.displayPath ?? path;
@@ -133,8 +155,9 @@ export async function loadCircuitFile(path: string, opts: { displayPath?: string
     return { ok: false, errors: [{ file: shown, message: code === "ENOENT" ? "file not found" : `cannot read the file (${code ?? "unknown error"})`, hint: "check the path and permissions" }] };
   }
   const text = buffer.toString("utf8").replace(/^\uFEFF/, "");
-  if (text.includes("\uFFFD") && !buffer.includes(Buffer.from("\uFFFD"))) {
-    return { ok: false, errors: [{ file: shown, message: "the file is not valid UTF-8 text", hint: "save it as UTF-8" }] };
+  const invalid = invalidUtf8Line(buffer);
+  if (invalid !== undefined) {
+    return { ok: false, errors: [{ file: shown, line: invalid, column: 1, message: "the file is not valid UTF-8 text", hint: "save it as UTF-8" }] };
   }
   return loadCircuitText(text, shown, { path, ...(opts.root !== undefined ? { root: opts.root } : {}), ...(opts.libraries ? { libraries: opts.libraries } : {}) });
 }

@@ -1,6 +1,6 @@
 // Circuit parameters: plain values or expressions over other parameters, resolved in dependency
 // order; a cycle is an error naming it (a → b → a).
-import { checkExpression, evaluateChecked, isExpression, type Checked } from "./expressions.js";
+import { ALLOWED_CONSTANTS, ALLOWED_FUNCTIONS, checkExpression, evaluateChecked, isExpression, type Checked } from "./expressions.js";
 import type { ResolveContext } from "./fields.js";
 import { didYouMean } from "./suggest.js";
 import { parseValue } from "./values.js";
@@ -12,6 +12,13 @@ export function resolveParameters(ctx: ResolveContext, raw: Record<string, unkno
   const failed = new Set<string>();
   const checked = new Map<string, Extract<Checked, { ok: true }>>();
   const reportedCycles = new Set<string>();
+  // A parameter named like a constant or function would be ignored in expressions (the constant
+  // wins): refused, so that `e: 2k2` is never silently read as 2.718.
+  for (const name of names) {
+    if (!ALLOWED_CONSTANTS.has(name) && !ALLOWED_FUNCTIONS.has(name)) continue;
+    ctx.error(["parameters", name], `parameter \`${name}\` has the name of ${ALLOWED_CONSTANTS.has(name) ? "a constant" : "a function"} of expressions`, `rename it (e.g. \`${name}1\`); ${[...ALLOWED_CONSTANTS.keys()].join(", ")} and ${[...ALLOWED_FUNCTIONS].join(", ")} are reserved`);
+    failed.add(name);
+  }
 
   const resolveOne = (name: string, stack: string[]): number | undefined => {
     if (values.has(name)) return values.get(name);

@@ -17,6 +17,32 @@ export type ParseResult =
   | { readonly ok: true; readonly value: unknown; readonly positioned: PositionedDocument }
   | { readonly ok: false; readonly errors: readonly InputError[] };
 
+/** Where an offset falls, 1-based, without a parser. */
+function lineColumn(text: string, offset: number): { line: number; column: number } {
+  const before = text.slice(0, offset);
+  const line = before.split("\n").length;
+  return { line, column: offset - before.lastIndexOf("\n") };
+}
+
+/**
+ * Text refused before parsing: a NUL character (no text editor writes one: the file is binary or
+ * damaged), and a `%YAML` directive — with `%YAML 1.1` the parser would read `1:20` as 80
+ * (base 60) and `010` as 8 (octal), silently; circuit files are always read as YAML 1.2.
+ */
+function refusedText(text: string, file: string): InputError | undefined {
+  const nul = text.indexOf("\0");
+  if (nul >= 0) return { file, ...lineColumn(text, nul), message: "the file contains a NUL character", hint: "circuit files are plain text: remove it (was the file saved by a binary tool?)" };
+  const directive = /^%YAML\b[^\n]*/m.exec(text);
+  if (directive)
+    return {
+      file,
+      ...lineColumn(text, directive.index),
+      message: `the \`${directive[0].trim()}\` directive is not allowed: circuit files are read as YAML 1.2`,
+      hint: "remove the line (under YAML 1.1 a value like 1:20 or 010 would change meaning)",
+    };
+  return undefined;
+}
+
 /** The parser's problems in plain words, with what to do. */
 function yamlProblem(code: string, raw: string, json: boolean): { message: string; hint: string } {
   const text = firstLine(raw);
@@ -85,7 +111,8 @@ function jsonSyntaxError(text: string, file: string, lineCounter: LineCounter): 
  * Parses `text` as YAML (JSON is YAML) with positions. `json: true` additionally enforces strict
  * JSON syntax. Returns the plain value or InputErrors with line and column.
  */
-export function parseDocumentWithPositions(text: string, file: string, options: { json?: boolean } = {}): ParseResult {
+export function parseDocumentWithPositions(source: string, file: string, options: { json?: boolean } = {}): ParseResult {
+  let text = source;
   const bytes = Buffer.byteLength(text, "utf8");
   if (bytes > MAX_FILE_BYTES) {
     return {
@@ -102,6 +129,10 @@ export function parseDocumentWithPositions(text: string, file: string, options: 
   if (text.trim() === "") {
     return { ok: false, errors: [{ file, line: 1, column: 1, message: "file is empty", hint: "start with `format: opgate-circuit/1`" }] };
   }
+  // Old Mac line endings (CR alone): read as line breaks, so positions name the real line.
+  if (/\r(?!\n)/.test(text)) text = text.replace(/\r(?!\n)/g, "\n");
+  const refused = refusedText(text, file);
+  if (refused) return { ok: false, errors: [refused] };
   const lineCounter = new LineCounter();
   if (options.json) {
     const err = jsonSyntaxError(text, file, new LineCounterFor(text));
@@ -167,6 +198,9 @@ function checkKeys(node: unknown, report: (node: unknown, message: string, hint:
     }
   } else if (isSeq(node)) {
     for (const item of node.items) checkKeys(item, report);
+  } else if (isScalar(node) && node.value === "__proto__") {
+    // As a component id or node name it would be a key of the results' records and vanish.
+    report(node, "the name `__proto__` is not allowed", "rename it; prototype-related names are rejected in untrusted files");
   }
 }
 

@@ -15,6 +15,7 @@ const RENAMED: Readonly<Record<string, readonly { readonly key: string; readonly
     { key: "baseEmitterDrift", note: "the saturation current's temperature law now follows from the VBE drift at `driftCurrent`" },
   ],
   betaExponent: [{ key: "betaDrift", note: "the current gain's drift in %/°C, e.g. 0.5 %/°C" }],
+  lambda: [{ key: "channelLengthModulation", note: "λ in 1/V, spelled out" }],
   control: [{ key: "sense", note: "the id of any resistor, capacitor, inductor or source; the current through it from its first pin to its second" }],
 };
 

@@ -149,6 +149,7 @@ export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model |
   const what = `model ${id}`;
   const pos = ctx.pos(path, true);
   const powerRating = readOptional(ctx, raw, "powerRating", path, "power", what);
+  if (powerRating !== undefined && !(powerRating > 0)) ctx.error([...path, "powerRating"], `${what}: powerRating must be a positive power`, "write the datasheet's total dissipation, e.g. 625 mW");
   const base = { id, pos, ...(powerRating !== undefined ? { powerRating } : {}) };
   const n = (key: string, q: Quantity, fallback: number) => readNumberOr(ctx, raw, key, path, q, what, fallback);
   const s = (key: string, q: Quantity, fallback: number) => readSpreadOr(ctx, raw, key, path, q, what, fallback);
@@ -163,6 +164,8 @@ export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model |
     const breakdown = diodeBreakdown(ctx, raw, path, what);
     const ratings = readRatings(ctx, raw, path, what, [["reverseVoltage", "voltage"], ["forwardCurrent", "current"]] as const);
     if (!forward?.saturationCurrent || !breakdown || !drift) return undefined;
+    if (!(ideality.min > 0)) ctx.error([...path, "ideality"], `${what}: ideality must be positive`, "silicon junctions have 1 to 2");
+    if (!(forward.saturationCurrent.min > 0)) ctx.error([...path, "saturationCurrent"], `${what}: saturationCurrent must be positive`, "write the datasheet's IS, e.g. 2.5 nA");
     return { ...base, kind, ...forward, saturationCurrent: forward.saturationCurrent, ideality, seriesResistance, drift, ...breakdown, ...ratings };
   }
   if (kind === "npn" || kind === "pnp") {
@@ -179,6 +182,7 @@ export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model |
     if (!(Math.abs(betaDrift) < MAX_BETA_DRIFT_PER_K)) ctx.error([...path, "betaDrift"], `${what}: betaDrift ${betaDrift * 100} %/°C is outside ±${MAX_BETA_DRIFT_PER_K * 100} %/°C`, "small-signal transistors' gain rises about 0.5 %/°C; write e.g. 0.5 %/°C");
     if (earlyVoltage.min <= 0) ctx.error([...path, "earlyVoltage"], `${what}: earlyVoltage must be a positive magnitude`, "write it without a sign, e.g. 90 V; omit it for no Early effect");
     if (beta.min <= 0) ctx.error([...path, "beta"], `${what}: beta must be positive`);
+    if (!(reverseBeta.min > 0)) ctx.error([...path, "reverseBeta"], `${what}: reverseBeta must be positive`, "small-signal transistors have about 1 to 10; omit it for the default");
     if (saturationCurrent.min <= 0) ctx.error([...path, "saturationCurrent"], `${what}: saturationCurrent must be positive`);
     const caps = optionalPositive(ctx, raw, path, what, [
       ["transitFrequency", "frequency"],
@@ -192,14 +196,16 @@ export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model |
     const kPrime = req("kPrime", "transconductance-parameter");
     const width = n("width", "length", NaN);
     const length = n("length", "length", NaN);
-    const lambda = s("lambda", "per-volt", D.DEFAULT_LAMBDA);
+    const channelLengthModulation = s("channelLengthModulation", "per-volt", D.DEFAULT_CHANNEL_LENGTH_MODULATION);
     const bodyEffect = n("bodyEffect", "sqrt-volt", D.DEFAULT_BODY_EFFECT);
     const fermiPotential = n("fermiPotential", "voltage", D.DEFAULT_FERMI_POTENTIAL_V);
     const thresholdTempco = n("thresholdTempco", "volt-per-kelvin", D.DEFAULT_THRESHOLD_TEMPCO_V_PER_K);
     const kPrimeExponent = n("kPrimeExponent", "dimensionless", D.DEFAULT_KPRIME_EXPONENT);
-    if (!threshold || !kPrime || !lambda || width === undefined || length === undefined) return undefined;
+    if (!threshold || !kPrime || !channelLengthModulation || width === undefined || length === undefined) return undefined;
     if (bodyEffect === undefined || fermiPotential === undefined || thresholdTempco === undefined || kPrimeExponent === undefined) return undefined;
     if (!(width > 0)) ctx.error([...path, "width"], `${what}: width must be positive`);
+    if (!(lambda.min >= 0)) ctx.error([...path, "lambda"], `${what}: lambda must be zero or positive`, "write it without a sign, e.g. 0.02 /V; omit it for no channel-length modulation");
+    if (!(bodyEffect >= 0)) ctx.error([...path, "bodyEffect"], `${what}: bodyEffect must be zero or positive`, "write it without a sign, e.g. 0.4 √V");
     if (!(length > 0)) ctx.error([...path, "length"], `${what}: length must be positive`);
     if (kPrime.min <= 0) ctx.error([...path, "kPrime"], `${what}: kPrime must be positive`);
     if (!(fermiPotential > 0)) ctx.error([...path, "fermiPotential"], `${what}: fermiPotential φF must be positive`, "typical silicon substrates give 0.3–0.4 V");
@@ -218,9 +224,19 @@ export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model |
       ["oxideCapacitance", "capacitance-per-area"],
     ]);
     const ratings = readRatings(ctx, raw, path, what, [["drainSource", "voltage"], ["gateSource", "voltage"], ["drainCurrent", "current"]] as const);
-    return { ...base, kind, threshold, kPrime, width, length, lambda, bodyEffect, fermiPotential, thresholdTempco, kPrimeExponent, ...caps, ...ratings };
+    return { ...base, kind, threshold, kPrime, width, length, channelLengthModulation, bodyEffect, fermiPotential, thresholdTempco, kPrimeExponent, ...caps, ...ratings };
   }
   return undefined;
+}
+
+/**
+ * A node name as written: `01`, `0x2` or `1.0e0` are read by YAML as numbers, but as node names
+ * they are text (the number 1 would merge `01` with node `1`), so the source text is kept.
+ */
+function nodeName(ctx: ResolveContext, path: readonly PathSegment[], v: unknown): string {
+  if (typeof v !== "number") return String(v);
+  const node = ctx.positioned.doc.getIn(path as PathSegment[], true) as { source?: unknown } | undefined;
+  return typeof node?.source === "string" && node.source !== "" ? node.source : String(v);
 }
 
 function resolveComponent(ctx: ResolveContext, raw: Obj, index: number): Component | undefined {
@@ -230,8 +246,8 @@ function resolveComponent(ctx: ResolveContext, raw: Obj, index: number): Compone
   const pos: SourcePos = ctx.pos(path);
   const pinsRaw = raw["pins"];
   // Node names may be written as whole numbers (`0`); inside they are always text.
-  const pins = Object.fromEntries(Object.entries(asObj(pinsRaw)).map(([k, v]) => [k, String(v)])) as Record<string, string>;
-  const two = Array.isArray(pinsRaw) ? { a: String(pinsRaw[0]), b: String(pinsRaw[1]) } : { a: "", b: "" };
+  const pins = Object.fromEntries(Object.entries(asObj(pinsRaw)).map(([k, v]) => [k, nodeName(ctx, [...path, "pins", k], v)])) as Record<string, string>;
+  const two = Array.isArray(pinsRaw) ? { a: nodeName(ctx, [...path, "pins", 0], pinsRaw[0]), b: nodeName(ctx, [...path, "pins", 1], pinsRaw[1]) } : { a: "", b: "" };
   const tol = (key: string, q: Quantity): Toleranced | undefined => readToleranced(ctx, raw, key, path, q, what);
   const opt = (key: string, q: Quantity) => readOptional(ctx, raw, key, path, q, what);
   const waive = raw["waive"] !== undefined ? Object.fromEntries(Object.entries(asObj(raw["waive"])).map(([rule, reason]) => [rule, String(reason)])) : undefined;
@@ -240,6 +256,7 @@ function resolveComponent(ctx: ResolveContext, raw: Obj, index: number): Compone
     case "resistor": {
       const value = tol("value", "resistance");
       const powerRating = opt("powerRating", "power");
+      if (powerRating !== undefined && !(powerRating > 0)) ctx.error([...path, "powerRating"], `${what}: powerRating must be a positive power`, "write the resistor's rating, e.g. 250 mW");
       const mustOperateCurrent = opt("mustOperateCurrent", "current");
       const mustOperateVoltage = opt("mustOperateVoltage", "voltage");
       if (!value) return undefined;
@@ -265,9 +282,10 @@ function resolveComponent(ctx: ResolveContext, raw: Obj, index: number): Compone
     case "capacitor": {
       const value = tol("value", "capacitance");
       const voltageRating = opt("voltageRating", "voltage");
+      if (voltageRating !== undefined && !(voltageRating > 0)) ctx.error([...path, "voltageRating"], `${what}: voltageRating must be a positive magnitude`, "write it without a sign, e.g. 25 V");
       if (!value) return undefined;
       if (value.min <= 0) ctx.error([...path, "value"], `${what}: capacitance must be positive`);
-      const positive = raw["positive"] !== undefined ? String(raw["positive"]) : undefined;
+      const positive = raw["positive"] !== undefined ? nodeName(ctx, [...path, "positive"], raw["positive"]) : undefined;
       if (positive !== undefined && positive !== two.a && positive !== two.b)
         ctx.error([...path, "positive"], `${what}: \`positive: ${positive}\` is not one of its pins (${two.a}, ${two.b})`, "name the node the capacitor's + terminal is on");
       return { ...base, kind: "capacitor", pins: two, value, ...(voltageRating !== undefined ? { voltageRating } : {}), ...(positive !== undefined ? { positive } : {}) };
@@ -331,7 +349,7 @@ function resolveSpecs(ctx: ResolveContext, raw: Obj, ground: string): Specs {
     const target = readValue(ctx, g["target"], [...path, "target"], "gain", `${what} \`target\``);
     const frequency = readOptional(ctx, g, "frequency", path, "frequency", what);
     const out = g["output"];
-    const output = typeof out === "string" || typeof out === "number" ? { plus: String(out), minus: ground } : { plus: String(asObj(out)["plus"]), minus: String(asObj(out)["minus"]) };
+    const output = typeof out === "string" || typeof out === "number" ? { plus: nodeName(ctx, [...path, "output"], out), minus: ground } : { plus: nodeName(ctx, [...path, "output", "plus"], asObj(out)["plus"]), minus: nodeName(ctx, [...path, "output", "minus"], asObj(out)["minus"]) };
     if (target === undefined) return;
     let window: { min: number; max: number } | undefined;
     const tol = g["tolerance"];
@@ -432,11 +450,12 @@ export function resolveCircuit(ctx: ResolveContext, root: Obj, library: Readonly
     if (t !== undefined) {
       temperature = t;
       if (t <= 0) ctx.error(["temperature"], `\`temperature\` ${t} K is at or below absolute zero`, "write e.g. 25 °C");
+      else if (t > D.MAX_TEMPERATURE_K) ctx.error(["temperature"], `\`temperature\` ${(t - 273.15).toPrecision(4)} °C is beyond what the device models hold (at most ${D.MAX_TEMPERATURE_K - 273.15} °C)`, "semiconductor ratings end near 150–200 °C; write the ambient the board sees");
       else if (typeof root["temperature"] === "number" && t < D.SUSPICIOUS_KELVIN_BELOW)
         ctx.warn(["temperature"], `\`temperature: ${t}\` is read as ${t} K (a bare number is kelvin)`, `write "${t} °C" if Celsius was meant`);
     }
   }
-  const ground = root["ground"] !== undefined ? String(root["ground"]) : D.DEFAULT_GROUND;
+  const ground = root["ground"] !== undefined ? nodeName(ctx, ["ground"], root["ground"]) : D.DEFAULT_GROUND;
   const models = new Map<string, Model>(library);
   for (const [id, m] of Object.entries(asObj(root["models"]))) {
     const shared = library.get(id);

@@ -251,7 +251,8 @@ export interface MosfetModel extends ModelBase {
   readonly kPrime: Spread; // A/V², µn·Cox
   readonly width: number; // m
   readonly length: number; // m
-  readonly lambda: Spread; // 1/V, default 0
+  /** Channel-length modulation λ, 1/V (ID ∝ 1 + λ·VDS); default 0. */
+  readonly channelLengthModulation: Spread;
   readonly bodyEffect: number; // γ in √V, default 0
   /** Fermi potential φF of the substrate in V (the body-effect law uses 2φF); default 0.35 V. */
   readonly fermiPotential: number;

@@ -190,7 +190,12 @@ export function parseFraction(raw: unknown): ValueResult {
   if (typeof raw === "string") {
     const t = raw.trim();
     const m = /^\+?(\d+(?:\.\d*)?|\.\d+)\s*%$/.exec(t);
-    if (m) return ok(Number(m[1]) / 100);
+    if (m) {
+      // The same limit as for a bare fraction: a symmetric band over 100 % reaches below zero.
+      const pct = Number(m[1]);
+      if (pct > 100) return fail(`tolerance ${t} is more than 100 %: a symmetric band would reach below zero`, "give the limits instead, e.g. { min: \"-50%\", max: \"+300%\" }");
+      return ok(pct / 100);
+    }
     if (/^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$/.test(t)) return parseFraction(Number(t));
     if (/^[±]/.test(t)) return parseFraction(t.slice(1));
     return fail(`tolerance \`${t}\` is not a percentage`, 'write e.g. "5%" or { min, max }');

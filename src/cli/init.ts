@@ -7,6 +7,12 @@ import { EXIT_CLEAN, EXIT_INPUT, type CliIo } from "./io.js";
 import type { CommandSpec } from "./main.js";
 
 export const STARTER_RULE_PATH = "team-rules/divider-current.ts";
+export const STARTER_LIBRARY_PATH = "lib/parts.yaml";
+
+/** The example model library shipped with the package (also the one the examples use). */
+export function starterLibrary(): string {
+  return readFileSync(join(PACKAGE_ROOT, "examples", "lib", "tidewater-parts.yaml"), "utf8");
+}
 
 /** The example team rule shipped with the package (also the one the examples use). */
 export function starterRule(): string {
@@ -42,6 +48,11 @@ rules:
   band-flatness: warning
   tidewater/divider-current: warning
 
+# Model libraries every circuit uses (format opgate-library/1): write each part's model once.
+# A circuit's own model with the same id overrides a library model (with a warning).
+libraries:
+  - ${STARTER_LIBRARY_PATH}
+
 # Team rules: JavaScript (.js, .mjs) or TypeScript (.ts) modules whose default export is a rule.
 plugins:
   - ${STARTER_RULE_PATH}
@@ -71,10 +82,12 @@ export const initCommand: CommandSpec = {
     const files: [string, string][] = [
       ["opgate.config.yaml", STARTER_CONFIG],
       [STARTER_RULE_PATH, starterRule()],
+      [STARTER_LIBRARY_PATH, starterLibrary()],
     ];
     const existing = files.map(([p]) => p).filter((p) => existsSync(join(io.cwd, p)));
     if (existing.length > 0 && args.force !== true) {
-      io.stderr(`opgate: ${existing.join(" and ")} already exist${existing.length === 1 ? "s" : ""}; nothing written — run \`opgate init --force\` to overwrite\n`);
+      const list = existing.length > 1 ? `${existing.slice(0, -1).join(", ")} and ${existing.at(-1)}` : existing[0];
+      io.stderr(`opgate: ${list} already exist${existing.length === 1 ? "s" : ""}; nothing written — run \`opgate init --force\` to overwrite\n`);
       return EXIT_INPUT;
     }
     for (const [path, text] of files) {

@@ -73,11 +73,11 @@ class MosInstance implements DeviceInstance {
   // may box a double per stamp.
   private readonly p: number = 0;
   private readonly vt0: number = 0;
-  private readonly beta: number = 0;
-  private readonly lambda: number = 0;
-  private readonly gamma: number = 0;
-  private readonly phi2: number = 0;
-  private readonly sqrtPhi2: number = 0;
+  private readonly kn: number = 0;
+  private readonly clmCoeff: number = 0;
+  private readonly bodyCoeff: number = 0;
+  private readonly twoPhiF: number = 0;
+  private readonly sqrtTwoPhiF: number = 0;
 
   constructor(
     readonly id: string,
@@ -88,19 +88,19 @@ class MosInstance implements DeviceInstance {
     private readonly sr: Terminal,
     private readonly bd: Terminal,
     vt0: number,
-    beta: number,
-    lambda: number,
-    gamma: number,
-    phi2: number,
-    sqrtPhi2: number,
+    kn: number,
+    clmCoeff: number,
+    bodyCoeff: number,
+    twoPhiF: number,
+    sqrtTwoPhiF: number,
   ) {
     this.p = p;
     this.vt0 = vt0;
-    this.beta = beta;
-    this.lambda = lambda;
-    this.gamma = gamma;
-    this.phi2 = phi2;
-    this.sqrtPhi2 = sqrtPhi2;
+    this.kn = kn;
+    this.clmCoeff = clmCoeff;
+    this.bodyCoeff = bodyCoeff;
+    this.twoPhiF = twoPhiF;
+    this.sqrtTwoPhiF = sqrtTwoPhiF;
     this.terminals = [dr, gt, sr, bd];
     this.stampIndices = [dr.index, gt.index, sr.index, bd.index];
     this.dcLinks = [[dr, sr]];
@@ -108,14 +108,14 @@ class MosInstance implements DeviceInstance {
 
   /** Square law in the forward orientation (vds ≥ 0). */
   private forward(vgs: number, vds: number, vbs: number): void {
-    const { beta, lambda, gamma } = this;
-    const arg = this.phi2 - vbs;
+    const { kn, clmCoeff, bodyCoeff } = this;
+    const arg = this.twoPhiF - vbs;
     let vt = this.vt0;
     let dVtdVbs = 0;
-    if (gamma !== 0) {
+    if (bodyCoeff !== 0) {
       const s = Math.sqrt(Math.max(arg, 0));
-      vt = this.vt0 + gamma * (s - this.sqrtPhi2);
-      dVtdVbs = s > 0 ? -gamma / (2 * s) : 0;
+      vt = this.vt0 + bodyCoeff * (s - this.sqrtTwoPhiF);
+      dVtdVbs = s > 0 ? -bodyCoeff / (2 * s) : 0;
     }
     const vov = vgs - vt;
     this.vt = vt;
@@ -126,18 +126,18 @@ class MosInstance implements DeviceInstance {
       this.gds = 0;
       this.region = "cutoff";
     } else {
-      const clm = 1 + lambda * vds;
+      const clm = 1 + clmCoeff * vds;
       if (vds < vov) {
         const core = vov * vds - 0.5 * vds * vds;
-        this.id_ = beta * core * clm;
-        this.gm = beta * vds * clm;
-        this.gds = beta * ((vov - vds) * clm + core * lambda);
+        this.id_ = kn * core * clm;
+        this.gm = kn * vds * clm;
+        this.gds = kn * ((vov - vds) * clm + core * clmCoeff);
         this.region = "triode";
       } else {
         const core = 0.5 * vov * vov;
-        this.id_ = beta * core * clm;
-        this.gm = beta * vov * clm;
-        this.gds = beta * core * lambda;
+        this.id_ = kn * core * clm;
+        this.gm = kn * vov * clm;
+        this.gds = kn * core * clmCoeff;
         this.region = "saturation";
       }
     }
@@ -271,9 +271,9 @@ export function mosfet(c: Mosfet, ctx: SetupContext): DeviceInstance {
   const bd = terminal(ctx, "body", c.pins.body);
   const t = ctx.temperature;
   const vt0 = p * m.threshold.typ + m.thresholdTempco * (t - MODEL_TEMPERATURE);
-  const beta = (powerLawAt(m.kPrime.typ, t, m.kPrimeExponent) * m.width) / m.length;
-  const phi2 = 2 * Math.max(m.fermiPotential, 0);
-  return new MosInstance(c.id, c.kind, p, dr, gt, sr, bd, vt0, beta, m.lambda.typ, m.bodyEffect, phi2, Math.sqrt(phi2));
+  const kn = (powerLawAt(m.kPrime.typ, t, m.kPrimeExponent) * m.width) / m.length;
+  const twoPhiF = 2 * Math.max(m.fermiPotential, 0);
+  return new MosInstance(c.id, c.kind, p, dr, gt, sr, bd, vt0, kn, m.channelLengthModulation.typ, m.bodyEffect, twoPhiF, Math.sqrt(twoPhiF));
 }
 
 /**

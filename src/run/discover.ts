@@ -54,6 +54,9 @@ export function declaresCircuit(text: string): boolean {
   return YAML_FORMAT.test(text) || JSON_FORMAT.test(text);
 }
 
+/** A model library (`format: opgate-library/…`): one of ours, read through the circuits that name it. */
+const LIBRARY_FORMAT = /^(?:format|"format"|'format')[ \t]*:[ \t]*["']?opgate-library\/|"format"\s*:\s*"opgate-library\//m;
+
 function under(abs: string, dir: string): string | null {
   const rel = relative(dir, abs);
   return rel === "" || rel.startsWith("..") || isAbsolute(rel) ? null : rel.split(sep).join("/");
@@ -196,22 +199,24 @@ export async function discover(patterns: readonly string[], options: DiscoverOpt
   const skipped: string[] = [];
   for (const abs of byReal.values()) {
     const entry = { abs, display: displayPath(abs, options.root, options.cwd) };
-    if (options.circuitsOnly && !named.has(abs) && !isCircuitFile(abs)) skipped.push(entry.display);
-    else files.push(entry);
+    const kind = options.circuitsOnly && !named.has(abs) ? fileKind(abs) : "circuit";
+    // A model library found by a folder or glob is neither checked nor counted as a stray file.
+    if (kind === "other") skipped.push(entry.display);
+    else if (kind === "circuit") files.push(entry);
   }
   files.sort((a, b) => compareText(a.display, b.display));
   skipped.sort(compareText);
   return { files, skipped };
 }
 
-function isCircuitFile(abs: string): boolean {
+function fileKind(abs: string): "circuit" | "library" | "other" {
   let text: string;
   try {
     text = readFileSync(abs, "utf8");
   } catch {
-    return true; // unreadable: let the check say so, naming the file
+    return "circuit"; // unreadable: let the check say so, naming the file
   }
-  return declaresCircuit(text);
+  return declaresCircuit(text) ? "circuit" : LIBRARY_FORMAT.test(text) ? "library" : "other";
 }
 
 /** discover() without the non-circuit skipping, for callers that want every match. */

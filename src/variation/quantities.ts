@@ -24,7 +24,7 @@ const SPREAD_FIELDS = [
   "breakdownVoltage",
   "threshold",
   "kPrime",
-  "lambda",
+  "channelLengthModulation",
 ] as const;
 
 function valueField(c: Component): "value" | "voltage" | "current" | null {

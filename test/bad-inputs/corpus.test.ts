@@ -61,7 +61,26 @@ const CORPUS: Record<string, [RegExp, boolean]> = {
   "old-key-surface-potential.yaml": [/unknown key `surfacePotential` in model n1.*`surfacePotential` is now `fermiPotential` \(the Fermi potential φF, half the old value/, true],
   "old-key-energy-gap.yaml": [/unknown key `energyGap` in model q1.*`energyGap` is now `baseEmitterDrift`.*VBE drift/, true],
   "old-key-saturation-exponent.yaml": [/unknown key `saturationCurrentExponent` in model d1.*`saturationCurrentExponent` is now `forwardVoltageDrift`/, true],
+  "old-key-lambda.yaml": [/unknown key `lambda` in model n1.*`lambda` is now `channelLengthModulation`/, true],
   "old-key-control.yaml": [/unknown key `control` in component F1.*`control` is now `sense`/, true],
+  // Issue 12 items 10 and 15: text that was read as something other than what it says.
+  "yaml-1-1-directive.yaml": [/yaml-1-1-directive\.yaml:1:1 .*the `%YAML 1\.1` directive is not allowed: circuit files are read as YAML 1\.2/, true],
+  "nul-in-comment.yaml": [/nul-in-comment\.yaml:3:\d+ .*the file contains a NUL character/, true],
+  "invalid-utf8-with-fffd.yaml": [/invalid-utf8-with-fffd\.yaml:4:1 .*the file is not valid UTF-8 text/, true],
+  "cr-only-line-endings.yaml": [/cr-only-line-endings\.yaml:5:\d+ .*unknown key `vaule` in component R1/, true],
+  "proto-name.yaml": [/proto-name\.yaml:5:\d+ .*the name `__proto__` is not allowed/, true],
+  // Issue 12 items 11 and 13.
+  "parameter-shadows-constant.yaml": [/parameter-shadows-constant\.yaml:4:\d+ .*parameter `e` has the name of a constant of expressions/, true],
+  "tolerance-over-100-percent.yaml": [/tolerance 300% is more than 100 %/, true],
+  "tolerance-reaches-zero.yaml": [/tolerance 100% takes value down to zero/, true],
+  // Issue 12 item 14: values out of physical range, refused with the parameter named.
+  "model-reverse-beta-zero.yaml": [/model small-npn: reverseBeta must be positive/, true],
+  "model-power-rating-negative.yaml": [/model small-npn: powerRating must be a positive power/, true],
+  "model-diode-saturation-negative.yaml": [/model d1: saturationCurrent must be positive/, true],
+  "model-diode-ideality-zero.yaml": [/model d1: ideality must be positive/, true],
+  "model-lambda-negative.yaml": [/model n1: lambda must be zero or positive/, true],
+  "resistor-power-rating-negative.yaml": [/component R1: powerRating must be a positive power/, true],
+  "temperature-beyond-models.yaml": [/`temperature` 1\.000e\+6 °C is beyond what the device models hold/, true],
   "signal-negative.yaml": [/component V1: the signal amplitude must be positive/, true],
 };
 

@@ -30,7 +30,7 @@ describe("defaults (DESIGN.md section 3)", () => {
     );
     const c = load(text);
     const m = c.models.get("n") as MosfetModel;
-    expect(m.lambda.typ).toBe(D.DEFAULT_LAMBDA);
+    expect(m.channelLengthModulation.typ).toBe(D.DEFAULT_CHANNEL_LENGTH_MODULATION);
     expect(m.bodyEffect).toBe(0);
     expect(m.fermiPotential).toBe(0.35); // φF = VT·ln(NA/ni), src/circuit/defaults.ts
     expect(m.thresholdTempco).toBe(-0.002);

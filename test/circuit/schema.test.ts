@@ -41,7 +41,7 @@ describe("schemas/circuit.schema.json", () => {
     const bjt = [...base, "beta", "reverseBeta", "saturationCurrent", "earlyVoltage", "saturationEdge", "baseEmitterDrift", "driftCurrent", "betaDrift", "betaAt", "transitFrequency", "baseCollectorCapacitance"].sort();
     expect(props("npn")).toEqual(bjt);
     expect(props("pnp")).toEqual(bjt);
-    const mos = [...base, "threshold", "kPrime", "width", "length", "lambda", "bodyEffect", "fermiPotential", "thresholdTempco", "kPrimeExponent", "gateSourceCapacitance", "gateDrainCapacitance", "oxideCapacitance"].sort();
+    const mos = [...base, "threshold", "kPrime", "width", "length", "channelLengthModulation", "bodyEffect", "fermiPotential", "thresholdTempco", "kPrimeExponent", "gateSourceCapacitance", "gateDrainCapacitance", "oxideCapacitance"].sort();
     expect(props("nmos")).toEqual(mos);
     expect(props("pmos")).toEqual(mos);
   });

@@ -17,7 +17,7 @@ async function check(name: string) {
 }
 
 describe("the example boards under the Tidewater policy (corners, −20…60 °C)", () => {
-  it.each(["tide-gauge-preamp.yaml", "tide-gauge-line-buffer.yaml", "wind-vane-bridge-amp.yaml"])("%s passes with no findings", async (name) => {
+  it.each(["tide-gauge-preamp.yaml", "tide-gauge-line-buffer.yaml", "wind-vane-bridge-amp.yaml", "tide-gauge-reference.yaml"])("%s passes with no findings", async (name) => {
     const r = await check(name);
     expect(r.status).toBe("pass");
     expect(r.findings).toEqual([]);

@@ -41,7 +41,7 @@ function solverNeutral(json: string): string {
 let doc: ResultsDocument;
 beforeAll(async () => {
   const ctx = await makeCheckContext({ cwd: ROOT });
-  const files = await discoverCircuitFiles(["examples"], { cwd: ROOT, root: ROOT, include: ctx.config.include, exclude: ctx.config.exclude });
+  const files = await discoverCircuitFiles(["examples"], { cwd: ROOT, root: ROOT, include: ctx.config.include, exclude: ctx.config.exclude, circuitsOnly: true });
   doc = await runCheck(files, { ctx, contextOptions: { cwd: ROOT }, jobs: 1 });
 });
 

@@ -32,7 +32,7 @@ it("writes a commented config and the example rule, and refuses to overwrite wit
 
   const again = fakeIo(repo);
   expect(await run(["init"], again)).toBe(2);
-  expect(again.err.join("")).toContain("opgate.config.yaml and team-rules/divider-current.ts already exist; nothing written");
+  expect(again.err.join("")).toContain("opgate.config.yaml, team-rules/divider-current.ts and lib/parts.yaml already exist; nothing written");
 
   writeFileSync(join(repo, "opgate.config.yaml"), "# mine\n");
   expect(await run(["init", "--force"], fakeIo(repo))).toBe(0);
@@ -44,6 +44,11 @@ it("writes a config that validates, whose plugin needs the opgate package instal
   const c = await loadConfig({ cwd: repo });
   expect(c).toMatchObject({ failOn: "error", variation: { mode: "corners" } });
   expect(c.plugins).toEqual([join(repo, "team-rules", "divider-current.ts")]);
+  // The starter library is listed, and it loads (a valid opgate-library/1 file).
+  expect(c.libraries).toEqual([join(repo, "lib", "parts.yaml")]);
+  const { loadLibrary, loadCircuitSchema } = await import("../../src/circuit/index.js");
+  const lib = loadLibrary({ path: c.libraries[0]!, shown: "lib/parts.yaml" }, loadCircuitSchema());
+  expect(lib.ok && [...lib.library.models.keys()]).toEqual(["tw-npn", "tw-pnp", "tw-ref-5v1", "tw-status-led"]);
 
   const missing = fakeIo(repo);
   expect(await run(["rules"], missing)).toBe(2);

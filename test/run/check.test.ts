@@ -53,7 +53,7 @@ describe("opgate check", () => {
     const { discoverCircuitFiles } = await import("../../src/run/discover.js");
     const { renderJson } = await import("../../src/report/json.js");
     const ctx = await makeCheckContext({ cwd: repo.dir });
-    const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude });
+    const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude, circuitsOnly: true });
     const notices: string[] = [];
     const onNotice = (m: string): void => void notices.push(m);
     const single = await runCheck(files, { ctx, contextOptions: { cwd: repo.dir }, jobs: 1 });
@@ -70,7 +70,7 @@ describe("opgate check", () => {
     const { makeCheckContext } = await import("../../src/run/context.js");
     const { discoverCircuitFiles } = await import("../../src/run/discover.js");
     const ctx = await makeCheckContext({ cwd: repo.dir });
-    const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude });
+    const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude, circuitsOnly: true });
     // A worker would crash on this file: a run in which it checks fine used no worker.
     const victim = files[1]!.display;
     const auto = await checkFiles(files, { jobs: 2, autoJobs: true, context: { cwd: repo.dir }, ctx, crashOn: victim });
@@ -84,7 +84,7 @@ describe("opgate check", () => {
     const { makeCheckContext } = await import("../../src/run/context.js");
     const { discoverCircuitFiles } = await import("../../src/run/discover.js");
     const ctx = await makeCheckContext({ cwd: repo.dir });
-    const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude });
+    const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude, circuitsOnly: true });
     const victim = files[1]!.display;
     const notices: string[] = [];
     const results = await checkFiles(files, { jobs: 2, minFilesPerWorker: 1, mainThreadLane: false, context: { cwd: repo.dir }, ctx, crashOn: victim, lanes, onNotice: (m) => notices.push(m) });
@@ -178,7 +178,7 @@ describe("opgate check", () => {
     const many = ["check", "boards", "--jobs", "1", "--quiet"];
     const tty = await cli(many, repo.dir, {}, true);
     expect(tty.stderr).toContain("\r[");
-    expect(tty.stderr).toMatch(/\] 31\/31 files\n$/);
+    expect(tty.stderr).toMatch(/\] 32\/32 files\n$/);
     expect((await cli(many, repo.dir, { CI: "true" }, true)).stderr).not.toContain("\r[");
     expect((await cli(many, repo.dir, {}, false)).stderr).not.toContain("\r[");
     // Decided by the stream it is drawn on: stderr. `opgate check 2>log` on a terminal draws none;

@@ -18,6 +18,9 @@ export function makeRepo(extra: Record<string, string> = {}): { dir: string; cle
   const dir = mkdtempSync(join(tmpdir(), "opgate-run-"));
   mkdirSync(join(dir, "boards"), { recursive: true });
   for (const f of exampleFiles()) copyFileSync(join(EXAMPLES, f), join(dir, "boards", f));
+  // The model library an example names (`libraries: [lib/…]`), beside the circuits as in examples/.
+  mkdirSync(join(dir, "boards", "lib"), { recursive: true });
+  for (const f of readdirSync(join(EXAMPLES, "lib"))) copyFileSync(join(EXAMPLES, "lib", f), join(dir, "boards", "lib", f));
   for (const [rel, text] of Object.entries(extra)) {
     mkdirSync(dirname(join(dir, rel)), { recursive: true });
     writeFileSync(join(dir, rel), text);

@@ -57,7 +57,7 @@ export function mosModel(id: string, kind: "nmos" | "pmos", p: MosParams = {}): 
     kPrime: spread(p.kPrime ?? 200e-6),
     width: p.width ?? 10e-6,
     length: p.length ?? 1e-6,
-    lambda: spread(p.lambda ?? 0),
+    channelLengthModulation: spread(p.lambda ?? 0),
     bodyEffect: p.bodyEffect ?? 0,
     fermiPotential: p.fermiPotential ?? 0.3,
     thresholdTempco: -2e-3,

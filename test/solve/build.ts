@@ -130,7 +130,7 @@ export class CircuitBuilder {
       kPrime: spread(p.kPrime),
       width: p.width ?? 1e-6,
       length: p.length ?? 1e-6,
-      lambda: spread(p.lambda ?? 0),
+      channelLengthModulation: spread(p.lambda ?? 0),
       bodyEffect: p.bodyEffect ?? 0,
       fermiPotential: p.fermiPotential ?? 0.3,
       thresholdTempco: -2e-3,
