@@ -204,7 +204,7 @@ export function resolveModel(ctx: ResolveContext, id: string, raw: Obj): Model |
     if (!threshold || !kPrime || !channelLengthModulation || width === undefined || length === undefined) return undefined;
     if (bodyEffect === undefined || fermiPotential === undefined || thresholdTempco === undefined || kPrimeExponent === undefined) return undefined;
     if (!(width > 0)) ctx.error([...path, "width"], `${what}: width must be positive`);
-    if (!(lambda.min >= 0)) ctx.error([...path, "lambda"], `${what}: lambda must be zero or positive`, "write it without a sign, e.g. 0.02 /V; omit it for no channel-length modulation");
+    if (!(channelLengthModulation.min >= 0)) ctx.error([...path, "channelLengthModulation"], `${what}: channelLengthModulation must be zero or positive`, "write it without a sign, e.g. 0.02 /V; omit it for no channel-length modulation");
     if (!(bodyEffect >= 0)) ctx.error([...path, "bodyEffect"], `${what}: bodyEffect must be zero or positive`, "write it without a sign, e.g. 0.4 √V");
     if (!(length > 0)) ctx.error([...path, "length"], `${what}: length must be positive`);
     if (kPrime.min <= 0) ctx.error([...path, "kPrime"], `${what}: kPrime must be positive`);
