@@ -1,4 +1,4 @@
-// Convergence aid 1: gmin stepping. A shunt conductance from every node to ground makes the
+// Convergence aid 1: conductance stepping. A shunt conductance from every node to ground makes the
 // network nearly linear and well conditioned; it is stepped down by decades to zero, each
 // solve starting from the previous answer. It starts from all-zero with the junctions off (not
 // from the plain stage's forward-biased guess): the shunt, not the guess, carries the first step.

@@ -1,5 +1,5 @@
 // Public entry of the bias solve: the DC operating point of a resolved Circuit by Newton–Raphson
-// on modified nodal analysis, with gmin stepping and then source stepping when plain Newton
+// on modified nodal analysis, with conductance stepping and then source stepping when plain Newton
 // fails. Pure and deterministic: the same circuit gives bit-identical results.
 import type { Circuit } from "../circuit/types.js";
 import { diagnoseTopology } from "./diagnose.js";
@@ -30,7 +30,7 @@ export interface SolveOptions {
   readonly maxIterations?: number;
 }
 
-const AIDS: readonly ConvergenceAid[] = ["none", "gmin-stepping", "source-stepping"];
+const AIDS: readonly ConvergenceAid[] = ["none", "conductance-stepping", "source-stepping"];
 
 export function solveOperatingPoint(circuit: Circuit, options: SolveOptions = {}): SolveResult {
   try {
@@ -67,7 +67,7 @@ function solve(circuit: Circuit, options: SolveOptions): SolveResult {
       newton(plan, solver, { gmin: 0, sourceScale: 1, init: true, maxIterations: Math.min(PLAIN_ITERATION_CAP, cap), polish: true }, rec);
       total.iterations += rec.iterations;
       ok = rec.status === "converged";
-    } else if (aid === "gmin-stepping") {
+    } else if (aid === "conductance-stepping") {
       ok = gminStepping(plan, solver, rec, total, cap);
     } else {
       ok = sourceStepping(plan, solver, rec, total, cap);
@@ -156,5 +156,5 @@ function nonConvergence(plan: Plan, rec: NewtonRecord, status: NewtonRecord["sta
   }
   const where = unknowns.map(describeUnknown).join(" and ");
   const at = where ? `; the largest changes and residuals were at ${where}` : "";
-  return failure(`the operating point did not converge (plain Newton, gmin stepping and source stepping all failed)${at}${near}; check the bias network there`, parts, nodes, "source-stepping", iterations, rec.residual);
+  return failure(`the operating point did not converge (plain Newton, conductance stepping and source stepping all failed)${at}${near}; check the bias network there`, parts, nodes, "source-stepping", iterations, rec.residual);
 }

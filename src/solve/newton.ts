@@ -1,7 +1,7 @@
 // One Newton–Raphson run on a compiled plan: stamp the companion models at the trial point,
 // test convergence on both the last update and the KCL residual, factor, solve, repeat.
 // Nothing in the loop allocates; the convergence aids call this with a shunt conductance
-// (gmin stepping) or a source scale (source stepping).
+// (conductance stepping) or a source scale (source stepping).
 import type { IterationState } from "../devices/device.js";
 import {
   BRANCH_RESIDUAL_ABSTOL,

@@ -112,7 +112,7 @@ export interface SourcePoint {
   readonly voltage: number;
 }
 
-export type ConvergenceAid = "none" | "gmin-stepping" | "source-stepping";
+export type ConvergenceAid = "none" | "conductance-stepping" | "source-stepping";
 
 export interface SolveStats {
   readonly iterations: number;

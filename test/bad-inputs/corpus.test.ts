@@ -78,7 +78,7 @@ const CORPUS: Record<string, [RegExp, boolean]> = {
   "model-power-rating-negative.yaml": [/model small-npn: powerRating must be a positive power/, true],
   "model-diode-saturation-negative.yaml": [/model d1: saturationCurrent must be positive/, true],
   "model-diode-ideality-zero.yaml": [/model d1: ideality must be positive/, true],
-  "model-lambda-negative.yaml": [/model n1: channelLengthModulation must be zero or positive/, true],
+  "model-channel-length-modulation-negative.yaml": [/model n1: channelLengthModulation must be zero or positive/, true],
   "resistor-power-rating-negative.yaml": [/component R1: powerRating must be a positive power/, true],
   "temperature-beyond-models.yaml": [/`temperature` 1\.000e\+6 °C is beyond what the device models hold/, true],
   "signal-negative.yaml": [/component V1: the signal amplitude must be positive/, true],

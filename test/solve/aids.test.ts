@@ -27,10 +27,10 @@ const cases = {
 
 describe("convergence aids", () => {
   for (const [name, c] of Object.entries(cases)) {
-    it(`${name}: gmin stepping and source stepping agree with plain Newton`, () => {
+    it(`${name}: conductance stepping and source stepping agree with plain Newton`, () => {
       const plain = solved(solveOperatingPoint(c));
       expect(plain.stats.aid).toBe("none");
-      for (const aid of ["gmin-stepping", "source-stepping"] as const) {
+      for (const aid of ["conductance-stepping", "source-stepping"] as const) {
         const op = solved(solveOperatingPoint(c, { startWith: aid }));
         expect(op.stats.aid).toBe(aid);
         expect(op.stats.iterations).toBeGreaterThan(plain.stats.iterations);
@@ -55,7 +55,7 @@ describe("fall-back order", () => {
     // Each stage inverts: an on (saturated) stage pulls the next base low, an off stage lets
     // the next base draw current through its collector resistor (logic-inverter chain).
     for (let k = 0; k < 20; k++) expect((op.devices[`Q${k}`] as { region: string }).region).toBe(k % 2 === 0 ? "saturation" : "cutoff");
-    expect(["gmin-stepping", "source-stepping"]).toContain(op.stats.aid);
+    expect(["conductance-stepping", "source-stepping"]).toContain(op.stats.aid);
   });
 });
 

@@ -74,7 +74,7 @@ describe("non-convergence", () => {
       .r("RT", "e", "vee", 4.7e3)
       .build();
     const f = failed(solveOperatingPoint(c, { maxIterations: 2 }));
-    expect(f.reason).toMatch(/did not converge \(plain Newton, gmin stepping and source stepping all failed\)/);
+    expect(f.reason).toMatch(/did not converge \(plain Newton, conductance stepping and source stepping all failed\)/);
     expect(f.reason).toMatch(/node `/);
     expect(f.parts.length).toBeGreaterThan(0);
     expect(f.parts.every((p) => ["Q1", "Q2"].includes(p))).toBe(true);

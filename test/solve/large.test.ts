@@ -54,7 +54,7 @@ describe(`circuits of ${PATTERN_RESTORE_MIN_UNKNOWNS} unknowns and more`, () => 
   it("gmin and source stepping reach the same point (1e-9 relative) on a large chain", () => {
     const c = longChain(Math.ceil(PATTERN_RESTORE_MIN_UNKNOWNS / 3) + 10, 7);
     const plain = solved(solveOperatingPoint(c), "plain");
-    for (const aid of ["gmin-stepping", "source-stepping"] as const) {
+    for (const aid of ["conductance-stepping", "source-stepping"] as const) {
       const op = solved(solveOperatingPoint(c, { startWith: aid }), aid);
       expect(op.stats.aid).toBe(aid);
       expect(kclError(c, op).worst).toBeLessThan(1e-9);

@@ -100,7 +100,7 @@ describe("sparse and dense storage", () => {
   it("converge by gmin and source stepping to the dense answer", () => {
     const c = chainCircuit(400, 5);
     const dense = solved(solveOperatingPoint(c, { storage: "dense" }), "dense");
-    for (const aid of ["gmin-stepping", "source-stepping"] as const) {
+    for (const aid of ["conductance-stepping", "source-stepping"] as const) {
       const op = solved(solveOperatingPoint(c, { storage: "sparse", startWith: aid }), aid);
       expect(op.stats.aid).toBe(aid);
       for (const [node, v] of Object.entries(dense.nodes)) expect(Math.abs(op.nodes[node]! - v), `${aid} ${node}`).toBeLessThanOrEqual(1e-9 * Math.max(1, Math.abs(v)));
