@@ -16,6 +16,8 @@ import { renderJson } from "../report/json.js";
 import { renderJunit } from "../report/junit.js";
 import { renderMarkdown, truncateMarkdown } from "../report/markdown.js";
 import { renderSarif, type SarifOptions } from "../report/sarif.js";
+import { renderHtml } from "../report/html.js";
+import { chartFileName, renderCircuitSvg } from "../report/svg-chart.js";
 import { DocumentError, readDocument } from "../report/validate.js";
 import { makeCheckContext } from "../run/context.js";
 import { discover, DiscoveryError, type Discovery } from "../run/discover.js";
@@ -34,7 +36,7 @@ const PROGRESS_MIN_FILES = 20;
 /** GitHub drops a step summary over 1 MiB entirely. */
 export const STEP_SUMMARY_MAX_BYTES = 1024 * 1024;
 
-const FORMATS = ["json", "junit", "markdown", "sarif"] as const;
+const FORMATS = ["json", "junit", "markdown", "sarif", "html"] as const;
 type Format = (typeof FORMATS)[number];
 
 export interface ReportOptions {
@@ -78,6 +80,8 @@ export function renderFormat(format: Format, doc: ResultsDocument, options: Repo
       return renderMarkdown(doc, options.baseline ? { baseline: options.baseline } : {});
     case "sarif":
       return renderSarif(doc, options.sarif ?? {});
+    case "html":
+      return renderHtml(doc);
   }
 }
 
@@ -216,6 +220,22 @@ function outputTargets(args: Record<string, unknown>, ctx: CheckContext): Partia
   return targets;
 }
 
+/**
+ * One SVG per circuit with gains, named from its display path (chartFileName: letters, digits, `.`,
+ * `_`, `-`; always `.svg`, so a chart can never overwrite a circuit, config, baseline or plugin).
+ */
+export function writeCharts(doc: ResultsDocument, dir: string, shown: string): void {
+  for (const c of doc.circuits) {
+    const svg = renderCircuitSvg(c);
+    if (!svg) continue;
+    try {
+      writeAtomically(resolve(dir, chartFileName(c.file)), svg);
+    } catch (err) {
+      throw new CliExit(EXIT_INPUT, `cannot write the chart of ${c.file} to ${shown}: ${err instanceof Error ? err.message : String(err)}`);
+    }
+  }
+}
+
 /** What a report must never overwrite: the circuits, the config, its plugins, the baseline. */
 function runInputs(files: readonly { abs: string; display: string }[], ctx: CheckContext, baseline: string | undefined): Input[] {
   return [
@@ -262,6 +282,8 @@ export const checkCommand: CommandSpec = {
       .option("junit", { type: "string", describe: "Write JUnit XML to PATH" })
       .option("markdown", { type: "string", describe: "Write the markdown report to PATH" })
       .option("sarif", { type: "string", describe: "Write SARIF 2.1.0 to PATH (code-scanning upload)" })
+      .option("html", { type: "string", describe: "Write one self-contained HTML report (verdict, findings, charts, hand analysis) to PATH" })
+      .option("charts", { type: "string", describe: "Write each circuit's frequency-response chart as DIR/<file path>.svg" })
       .option("baseline", { type: "string", describe: "Compare with an earlier results document (e.g. from the target branch)" })
       .option("jobs", { type: "number", describe: "Files are checked by this process and N − 1 worker threads (default: up to one per core, one per 2,000 files)" })
       .option("shard", { type: "string", describe: "Check only slice k of n of the sorted files (k/n, e.g. 2/4)" })
@@ -373,6 +395,7 @@ export const checkCommand: CommandSpec = {
       ...(targets.sarif ? { sarif: sarifOptionsFor(ctx.root, io.env) } : {}),
     };
     const reportOnStdout = writeReports(doc, targets, io, reportOptions);
+    if (typeof args.charts === "string") writeCharts(doc, resolve(io.cwd, args.charts), args.charts);
     const consoleText = renderConsole(doc, {
       color: colourEnabled(io.env, reportOnStdout ? io.stderrIsTTY === true : io.isTTY),
       quiet: args.quiet === true,

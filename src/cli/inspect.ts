@@ -10,6 +10,9 @@ import { analyseSmallSignal, defaultSweepRange, sweepGain, type SweepOptions } f
 import { formatSi, renderSmallSignal, renderSweep, sweepCsv } from "../smallsignal/table.js";
 import { swingLimits } from "../review/swing.js";
 import { writeFileSync } from "node:fs";
+import { explainGains } from "../smallsignal/explain/index.js";
+import { jsonSafe } from "../pipeline/gain-extras.js";
+import { renderExplanationText } from "../report/explain-text.js";
 import { formatInputError } from "./check.js";
 import { loadConfig } from "../review/config.js";
 import { EXIT_CLEAN, EXIT_INPUT, type CliIo } from "./io.js";
@@ -65,8 +68,10 @@ export const inspectCommand: CommandSpec = {
       .option("from", { type: "number", describe: "Sweep start frequency in Hz (default: two decades below band.low)" })
       .option("to", { type: "number", describe: "Sweep stop frequency in Hz (default: two decades above band.high)" })
       .option("points", { type: "number", describe: "Number of log-spaced sweep points" })
+      .option("explain", { type: "boolean", describe: "Also print the hand-analysis chain of every gain: stages, bias, resistances seen, textbook formula vs exact" })
       .option("csv", { type: "string", describe: "Write the sweep of one gain as CSV to this path" })
       .example("$0 inspect wind-vane.json | less -S", "Page through a wide table")
+      .example("$0 inspect preamp.yaml --explain", "Each gain as a hand analysis: bias → re → resistances → formula, next to the exact value")
       .example("$0 inspect preamp.yaml --sweep preamp --csv preamp.csv", "Frequency response of gain `preamp`, also as CSV"),
   handler: async (args, io: CliIo) => {
     const file = String(args.file);
@@ -98,6 +103,10 @@ export const inspectCommand: CommandSpec = {
       return EXIT_UNSOLVABLE;
     }
     io.stdout(header + INSPECT_SECTIONS.map((s) => s(circuit, result)).join("\n"));
+    if (args.explain === true) {
+      const chains = explainGains(circuit, result);
+      io.stdout(`\nHand analysis\n\n${chains.length === 0 ? "no gains in specs.gains\n" : chains.map((e) => renderExplanationText(jsonSafe(e))).join("\n")}`);
+    }
     if (args.sweep === undefined && args.csv === undefined) return EXIT_CLEAN;
     const asked = typeof args.sweep === "string" && args.sweep !== "" ? [args.sweep] : circuit.specs.gains.map((g) => g.name);
     if (asked.length === 0) {

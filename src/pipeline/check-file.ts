@@ -12,6 +12,7 @@ import { analyseSmallSignal } from "../smallsignal/index.js";
 import { buildScenarios } from "../variation/index.js";
 import type { ScenarioAnalysis } from "./types.js";
 import { gainEntries, operatingPointEntry } from "./entries.js";
+import { withGainExtras } from "./gain-extras.js";
 
 /** Everything a check needs besides the file; built once per process (or worker). */
 export interface CheckContext {
@@ -114,7 +115,7 @@ export async function checkCircuit(circuit: Circuit, ctx: CheckContext, displayP
     name: circuit.name,
     status,
     operatingPoint: nominal.solve.ok ? operatingPointEntry(nominal.solve) : null,
-    gains: nominal.smallSignal ? gainEntries(circuit, nominal.smallSignal) : [],
+    gains: nominal.smallSignal && nominal.solve.ok ? withGainExtras(gainEntries(circuit, nominal.smallSignal), circuit, nominal.solve) : [],
     scenarios: analyses.map((a) => ({ id: a.scenario.id, label: a.scenario.label, converged: a.solve.ok })),
     findings: located,
     passed,

@@ -1,5 +1,38 @@
 // The results document: the one value every reporter, baseline and shard merge reads.
 // Its JSON Schema is schemas/results.schema.json; keep the two in step.
+import type { GainExplanation } from "../smallsignal/explain/types.js";
+
+/** A stage value as JSON carries it: every number may be null (non-finite: unbounded or undefined). */
+export type JsonSafe<T> = T extends number
+  ? number | null
+  : T extends readonly (infer U)[]
+    ? readonly JsonSafe<U>[]
+    : T extends object
+      ? { readonly [K in keyof T]: JsonSafe<T[K]> }
+      : T;
+
+/** The hand-analysis chain of a gain (see src/smallsignal/explain/types.ts for the fields). */
+export type ExplanationEntry = JsonSafe<GainExplanation>;
+
+export interface ResponsePoint {
+  readonly frequency: number;
+  readonly re: number | null;
+  readonly im: number | null;
+  readonly magnitude: number | null;
+  readonly db: number | null;
+  readonly phaseDeg: number | null;
+}
+
+/** The nominal frequency response of a gain, for charts (the default sweep of `inspect --sweep`). */
+export interface ResponseEntry {
+  readonly points: readonly ResponsePoint[];
+  readonly lowCorner: number | null;
+  readonly highCorner: number | null;
+  readonly reference: number | null;
+  readonly band: { readonly low: number; readonly high: number } | null;
+  /** Why the sweep could not run; points are then empty. */
+  readonly error?: string;
+}
 
 export type Severity = "error" | "warning" | "note";
 export type CircuitStatus = "pass" | "fail" | "error";
@@ -66,6 +99,10 @@ export interface GainEntry {
   }[];
   readonly inputImpedance: number | null;
   readonly outputImpedance: number | null;
+  /** Nominal frequency response (absent in documents written before it existed). */
+  readonly response?: ResponseEntry;
+  /** The hand-analysis chain; null when it could not be built. */
+  readonly explanation?: ExplanationEntry | null;
 }
 
 export interface ScenarioEntry {

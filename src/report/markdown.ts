@@ -17,6 +17,7 @@ import type { BaselineDiff, CircuitDiff, FigureChange } from "./baseline.js";
 import type { CircuitResult, DeviceEntry, Finding, ResultsDocument } from "./document.js";
 import { count, formatMargin, formatNumber, formatQuantity, measuredLimitMargin } from "./format.js";
 import { inertText } from "./untrusted.js";
+import { explanationBlocks } from "./explain-md.js";
 
 /** A pull-request comment holds at most 65,536 characters. */
 export const PR_COMMENT_MAX_CHARS = 65_536;
@@ -46,7 +47,7 @@ export interface MarkdownOptions {
  * word joiner, U+2060, inside each: mentions and bare-URL links are GitHub extensions that a
  * backslash escape does not turn off). The serializer escapes the markdown syntax itself.
  */
-function untrusted(value: string): string {
+export function untrusted(value: string): string {
   return inertText(value)
     .replace(/@(?=[A-Za-z0-9_-])/g, "@\u2060")
     .replace(/:\/\//g, ":/\u2060/")
@@ -146,6 +147,7 @@ function circuitFindings(c: CircuitResult): RootContent[] {
     heading(3, text(`${STATUS_ICON[c.status]} `), ...circuitLabel(c)),
     table([null, null, null, "right", "right"], ["Severity", "Rule", "Subject", "Measured vs limit", "Margin"], rows),
     ...details(`What is wrong, the worst scenario and the fix (${count(c.findings.length, "finding")})`, [list(items, true)]),
+    ...explanationBlocks(c, untrusted),
   ];
 }
 

@@ -34,5 +34,6 @@ export interface ResolvedConfig {
     readonly junit?: string;
     readonly markdown?: string;
     readonly sarif?: string;
+    readonly html?: string;
   };
 }
