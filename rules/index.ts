@@ -11,6 +11,8 @@ import devicePower from "./device-power.js";
 import deviceRatings from "./device-ratings.js";
 import gainWindow from "./gain-window.js";
 import headroom from "./headroom.js";
+import impedanceWindow from "./impedance-window.js";
+import nodeLevel from "./node-level.js";
 import region from "./region.js";
 import resistorPower from "./resistor-power.js";
 import signalSwing from "./signal-swing.js";
@@ -28,6 +30,8 @@ export const BUILTIN_RULES: ReadonlyMap<string, Rule> = new Map<string, Rule>([
   ["device-ratings", deviceRatings],
   ["gain-window", gainWindow],
   ["headroom", headroom],
+  ["impedance-window", impedanceWindow],
+  ["node-level", nodeLevel],
   ["region", region],
   ["resistor-power", resistorPower],
   ["signal-swing", signalSwing],

@@ -9,6 +9,8 @@ import type {
   CircuitRuleOverride,
   Component,
   DeviceSpec,
+  NodeSpec,
+  ValueWindow,
   GainSpec,
   Model,
   SourcePos,
@@ -248,7 +250,8 @@ function resolveComponent(ctx: ResolveContext, raw: Obj, index: number): Compone
   const two = Array.isArray(pinsRaw) ? { a: nodeName(ctx, [...path, "pins", 0], pinsRaw[0]), b: nodeName(ctx, [...path, "pins", 1], pinsRaw[1]) } : { a: "", b: "" };
   const tol = (key: string, q: Quantity): Toleranced | undefined => readToleranced(ctx, raw, key, path, q, what);
   const opt = (key: string, q: Quantity) => readOptional(ctx, raw, key, path, q, what);
-  const base = { id, pos };
+  const waive = raw["waive"] !== undefined ? Object.fromEntries(Object.entries(asObj(raw["waive"])).map(([rule, reason]) => [rule, String(reason)])) : undefined;
+  const base = { id, pos, ...(waive ? { waive } : {}) };
   switch (raw["kind"]) {
     case "resistor": {
       const value = tol("value", "resistance");
@@ -368,7 +371,19 @@ function resolveSpecs(ctx: ResolveContext, raw: Obj, ground: string): Specs {
       window = { min: t.min, max: t.max };
     }
     if (frequency !== undefined && !(frequency > 0)) ctx.error([...path, "frequency"], `${what}: frequency must be positive`);
-    gains.push({ name: String(g["name"]), input: String(g["input"]), output, target, window, ...(frequency !== undefined ? { frequency } : {}), pos: ctx.pos(path) });
+    const inputImpedance = readWindow(ctx, g["inputImpedance"], [...path, "inputImpedance"], "resistance", `${what} \`inputImpedance\``);
+    const outputImpedance = readWindow(ctx, g["outputImpedance"], [...path, "outputImpedance"], "resistance", `${what} \`outputImpedance\``);
+    gains.push({
+      name: String(g["name"]),
+      input: String(g["input"]),
+      output,
+      target,
+      window,
+      ...(frequency !== undefined ? { frequency } : {}),
+      ...(inputImpedance ? { inputImpedance } : {}),
+      ...(outputImpedance ? { outputImpedance } : {}),
+      pos: ctx.pos(path),
+    });
   });
   const names = new Set<string>();
   gains.forEach((g) => {
@@ -403,7 +418,27 @@ function resolveSpecs(ctx: ResolveContext, raw: Obj, ground: string): Specs {
     if (minCurrent !== undefined && maxCurrent !== undefined && minCurrent > maxCurrent) ctx.error(path, `${what}: minCurrent is above maxCurrent`);
     devices.push({ device, ...(o["region"] !== undefined ? { region: String(o["region"]) } : {}), ...(minCurrent !== undefined ? { minCurrent } : {}), ...(maxCurrent !== undefined ? { maxCurrent } : {}), pos: ctx.pos(path, true) });
   }
-  return { gains, ...(band ? { band } : {}), supplies, devices };
+  const nodes: NodeSpec[] = [];
+  for (const [node, w] of Object.entries(asObj(raw["nodes"]))) {
+    const path: PathSegment[] = ["specs", "nodes", node];
+    const window = readWindow(ctx, w, path, "voltage", `node level \`${node}\``);
+    if (window) nodes.push({ node, ...window, pos: ctx.pos(path, true) });
+  }
+  return { gains, ...(band ? { band } : {}), supplies, devices, ...(raw["nodes"] !== undefined ? { nodes } : {}) };
+}
+
+/** An optional { min?, max? } window in one quantity; min above max is an error. */
+function readWindow(ctx: ResolveContext, raw: unknown, path: PathSegment[], quantity: Quantity, what: string): ValueWindow | undefined {
+  if (raw === undefined) return undefined;
+  const o = asObj(raw);
+  const min = readOptional(ctx, o, "min", path, quantity, what);
+  const max = readOptional(ctx, o, "max", path, quantity, what);
+  if (min !== undefined && max !== undefined && min > max) {
+    ctx.error(path, `${what}: min is above max`, "give min ≤ max");
+    return undefined;
+  }
+  if (min === undefined && max === undefined) return undefined;
+  return { ...(min !== undefined ? { min } : {}), ...(max !== undefined ? { max } : {}) };
 }
 
 /** Resolves a schema-valid tree. Returns the circuit (possibly with errors in ctx) — callers check ctx.errors. */

@@ -41,6 +41,8 @@ export interface Spread {
 interface ComponentBase {
   readonly id: string;
   readonly pos: SourcePos;
+  /** Rules waived for this component: rule id → the reason given (`waive:` in the file). */
+  readonly waive?: Readonly<Record<string, string>>;
 }
 
 export interface Resistor extends ComponentBase {
@@ -290,6 +292,22 @@ export interface GainSpec {
   readonly window: { readonly min: number; readonly max: number };
   /** Evaluate at this frequency (Hz) instead of midband. */
   readonly frequency?: number;
+  /** Midband input impedance window (Ω), as seen by the ideal input source. */
+  readonly inputImpedance?: ValueWindow;
+  /** Midband output impedance window (Ω), input zeroed, circuit load included. */
+  readonly outputImpedance?: ValueWindow;
+  readonly pos: SourcePos;
+}
+
+/** An acceptance window; at least one side is given. */
+export interface ValueWindow {
+  readonly min?: number;
+  readonly max?: number;
+}
+
+/** A DC level window on a named node (V against ground). */
+export interface NodeSpec extends ValueWindow {
+  readonly node: string;
   readonly pos: SourcePos;
 }
 
@@ -313,6 +331,8 @@ export interface Specs {
   readonly band?: { readonly low: number; readonly high: number; readonly pos: SourcePos };
   readonly supplies: readonly SupplySpec[];
   readonly devices: readonly DeviceSpec[];
+  /** DC level windows by node; absent when the file gives none. */
+  readonly nodes?: readonly NodeSpec[];
 }
 
 /** Per-circuit rule option overrides, allowed only where a rule declares them overridable. */

@@ -6,7 +6,12 @@ import { PACKAGE_ROOT } from "../paths.js";
 import { EXIT_CLEAN, EXIT_INPUT, type CliIo } from "./io.js";
 import type { CommandSpec } from "./main.js";
 
-export const STARTER_RULE_PATH = "team-rules/divider-current.ts";
+/**
+ * An .mjs module exporting a plain rule object: it loads in any repository, with or without a
+ * package.json, TypeScript or opgate installed there (an import of "opgate" would need the package
+ * in the repository's node_modules).
+ */
+export const STARTER_RULE_PATH = "team-rules/divider-current.mjs";
 export const STARTER_LIBRARY_PATH = "lib/parts.yaml";
 
 /** The example model library shipped with the package (also the one the examples use). */
@@ -14,9 +19,9 @@ export function starterLibrary(): string {
   return readFileSync(join(PACKAGE_ROOT, "examples", "lib", "tidewater-parts.yaml"), "utf8");
 }
 
-/** The example team rule shipped with the package (also the one the examples use). */
+/** The starter team rule (shipped in the package as schemas/ are: src/cli/starter/). */
 export function starterRule(): string {
-  return readFileSync(join(PACKAGE_ROOT, "examples", "team-rules", "divider-current.ts"), "utf8");
+  return readFileSync(join(PACKAGE_ROOT, "src", "cli", "starter", "divider-current.mjs"), "utf8");
 }
 
 export const STARTER_CONFIG = `# opgate repository config: which circuit files to check and how strictly.
@@ -46,7 +51,7 @@ rules:
       fraction: 0.8 # of the voltage rating
   band-edges: error
   band-flatness: warning
-  tidewater/divider-current: warning
+  team/divider-current: warning
 
 # Model libraries every circuit uses (format opgate-library/1): write each part's model once.
 # A circuit's own model with the same id overrides a library model (with a warning).

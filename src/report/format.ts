@@ -57,13 +57,14 @@ export function formatMargin(margin: number | null): string {
   return `${pct > 0 ? "+" : ""}${text === "-0" ? "0" : text}%`;
 }
 
-/** "measured 6.8 mA vs limit 6 mA, margin -13.3%", or "" when the check is not numeric. */
+/**
+ * "measured 6.8 mA vs limit 6 mA, margin -800 µA" (the margin in the quantity's own unit: a
+ * percentage of dB or of a signed voltage says nothing), or "" when the check is not numeric.
+ */
 export function measuredVsLimit(item: Finding | PassedCheck): string {
   if (item.measured === null && item.limit === null) return "";
-  const parts = [`measured ${formatQuantity(item.measured, item.unit)}`];
-  if (item.limit !== null) parts[0] += ` vs limit ${formatQuantity(item.limit, item.unit)}`;
-  if (item.margin !== null) parts.push(`margin ${formatMargin(item.margin)}`);
-  return parts.join(", ");
+  if (item.measured === null) return `limit ${formatQuantity(item.limit, item.unit)}`;
+  return `measured ${measuredLimitMargin(item)}`;
 }
 
 /**

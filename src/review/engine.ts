@@ -272,6 +272,7 @@ export class RuleSession {
   readonly #circuit: Circuit;
   readonly #states: RuleState[] = [];
   readonly #errors: Finding[];
+  readonly #rules: readonly ConfiguredRule[];
   readonly #timeLimitMs: number;
   readonly #budgetMs: number;
 
@@ -282,6 +283,7 @@ export class RuleSession {
     const validated = validateRuleOptions(input.rules);
     const { rules, errors } = applyOverrides(input.circuit, validated);
     this.#errors = errors;
+    this.#rules = rules;
     for (const configured of rules) {
       if (configured.severity === "off") continue;
       this.#states.push({ configured, severity: configured.severity, worst: new Map(), order: 0, budgetMs: this.#budgetMs, spentMs: 0, scenarios: 0, exhausted: false });
@@ -344,9 +346,10 @@ export class RuleSession {
         });
       }
     }
-    findings.sort(compareFindings);
+    const waived = applyWaivers(circuit, this.#rules, findings);
+    waived.sort(compareFindings);
     passed.sort((a, b) => cmp(a.rule, b.rule) || cmp(a.subject, b.subject));
-    return { findings, passed };
+    return { findings: waived, passed };
   }
 }
 
@@ -507,4 +510,39 @@ export async function runRules(input: RunRulesInput): Promise<RuleResults> {
   const session = new RuleSession(input);
   for (const analysis of input.analyses) await session.judge(analysis);
   return session.finish();
+}
+
+/**
+ * A component's `waive:` entries: that rule's findings on that component become notes that
+ * carry the reason (so they stay visible in every report but no longer gate). A waiver naming
+ * a rule that is not loaded is an input error at the component.
+ */
+function applyWaivers(circuit: Circuit, rules: readonly ConfiguredRule[], findings: readonly Finding[]): Finding[] {
+  const loaded = new Set(rules.map((c) => c.rule.id));
+  const out: Finding[] = findings.map((f) => {
+    const reason = circuit.components.find((c) => c.id === f.subject)?.waive?.[f.rule];
+    if (reason === undefined || f.rule === OVERRIDE_RULE) return f;
+    return { ...f, severity: "note", message: `${f.message} — waived for ${f.subject}: ${reason}` };
+  });
+  for (const c of circuit.components) {
+    for (const rule of Object.keys(c.waive ?? {})) {
+      if (loaded.has(rule)) continue;
+      out.push({
+        rule: OVERRIDE_RULE,
+        severity: "error",
+        subject: c.id,
+        message: `${c.id} waives rule \`${rule}\`, which is not loaded`,
+        measured: null,
+        limit: null,
+        unit: null,
+        margin: null,
+        scenario: "nominal",
+        file: c.pos.file,
+        line: c.pos.line,
+        column: c.pos.column,
+        hint: didYouMean(rule, [...loaded]) ?? "run `opgate rules` for the list",
+      });
+    }
+  }
+  return out;
 }

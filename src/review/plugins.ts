@@ -80,7 +80,7 @@ export async function loadPlugins(config: ResolvedConfig): Promise<LoadedPlugin[
     const result = exports[pluginIndex]!;
     if ("error" in result) {
       const hint = /Cannot find (package|module) 'opgate'/.test(result.error)
-        ? "install opgate in the repository (npm install --save-dev opgate), or export a plain rule object that needs no import"
+        ? "export a plain rule object, which needs no import (as the rule `opgate init` writes does), or add opgate to the repository's devDependencies so that the import resolves"
         : /Unexpected token 'export'|Cannot use import statement/.test(result.error)
           ? "this .js file is ESM but the package is CommonJS: rename it to .mjs, or add \"type\": \"module\" to package.json"
           : "fix the module so that it loads with node";

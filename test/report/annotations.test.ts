@@ -24,7 +24,7 @@ describe("renderAnnotations", () => {
   it("emits one command per finding at its file, line and column", () => {
     expect(lines).toHaveLength(5);
     expect(lines).toContain(
-      "::error file=boards/soil-probe/buffer.yaml,line=24,col=7,title=opgate supply-budget%3A VCC::VCC delivers 6.8 mA, over its 6 mA budget (measured 6.8 mA vs limit 6 mA, margin -13.3%25; scenario corner-03)%0ARaise R4 or lower the load current; or raise the budget in specs.supplies if the regulator allows it.",
+      "::error file=boards/soil-probe/buffer.yaml,line=24,col=7,title=opgate supply-budget%3A VCC::VCC delivers 6.8 mA, over its 6 mA budget (measured 6.8 mA vs limit 6 mA, margin -800 µA; scenario corner-03)%0ARaise R4 or lower the load current; or raise the budget in specs.supplies if the regulator allows it.",
     );
     expect(lines.filter((l) => l.startsWith("::warning "))).toHaveLength(3);
   });

@@ -48,7 +48,12 @@ describe("formatMargin", () => {
   });
   it("composes measured vs limit", () => {
     expect(measuredVsLimit({ rule: "r", subject: "s", measured: 6.8e-3, limit: 6e-3, unit: "A", margin: -0.1333, scenario: "nominal" })).toBe(
-      "measured 6.8 mA vs limit 6 mA, margin -13.3%",
+      "measured 6.8 mA vs limit 6 mA, margin -800 µA",
     );
+    // The margin in the quantity's own unit, never a percentage of dB or of a signed voltage
+    // (11.3 dB against a 1 dB limit is 10.3 dB over; -236 mV against 500 mV is 736 mV short).
+    expect(measuredVsLimit({ rule: "r", subject: "s", measured: 11.3, limit: 1, unit: "dB", margin: -10.3, scenario: "nominal" })).toBe("measured 11.3 dB vs limit 1 dB, margin -10.3 dB");
+    expect(measuredVsLimit({ rule: "r", subject: "s", measured: -0.236, limit: 0.5, unit: "V", margin: -1.47, scenario: "nominal" })).toBe("measured -236 mV vs limit 500 mV, margin -736 mV");
+    expect(measuredVsLimit({ rule: "r", subject: "s", measured: 2e-3, limit: 3e-3, unit: "A", margin: 0.33, scenario: "nominal" })).toBe("measured 2 mA vs limit 3 mA, margin +1 mA");
   });
 });

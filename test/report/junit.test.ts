@@ -46,7 +46,7 @@ describe("renderJunit", () => {
     const failure = descendants(root, "failure")[0]!;
     expect(failure.attributes.type).toBe("error");
     expect(failure.attributes.message).toBe(
-      "boards/soil-probe/buffer.yaml:24:7: error: VCC delivers 6.8 mA, over its 6 mA budget — measured 6.8 mA vs limit 6 mA, margin -13.3%; worst scenario corner-03 (VCC max, R1 min, Q1 beta max)",
+      "boards/soil-probe/buffer.yaml:24:7: error: VCC delivers 6.8 mA, over its 6 mA budget — measured 6.8 mA vs limit 6 mA, margin -800 µA; worst scenario corner-03 (VCC max, R1 min, Q1 beta max)",
     );
     expect(failure.text).toContain("How to fix: Raise R4");
     const error = descendants(root, "error")[0]!;

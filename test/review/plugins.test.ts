@@ -100,7 +100,7 @@ describe("plugins in a repository", () => {
     expect(code).toBe(0);
     const listing = JSON.parse(io.out.join("")) as { id: string; source: string; severity: string; options: Record<string, { value: unknown; default: unknown }> }[];
     expect(listing.map((r) => r.id)).toEqual([
-      "band-edges", "band-flatness", "capacitor-polarity", "capacitor-voltage", "coil-drive", "device-current", "device-power", "device-ratings", "gain-window", "headroom", "region", "resistor-power", "signal-swing", "solve", "supply-budget",
+      "band-edges", "band-flatness", "capacitor-polarity", "capacitor-voltage", "coil-drive", "device-current", "device-power", "device-ratings", "gain-window", "headroom", "impedance-window", "node-level", "region", "resistor-power", "signal-swing", "solve", "supply-budget",
       "tidewater/collector-ceiling", "tidewater/no-bare-capacitors", "tidewater/resistor-count",
     ]);
     const ceiling = listing.find((r) => r.id === "tidewater/collector-ceiling")!;

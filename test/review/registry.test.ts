@@ -12,7 +12,7 @@ const files = readdirSync(RULES_DIR);
 const ruleFiles = files.filter((f) => f.endsWith(".ts") && !f.endsWith(".test.ts") && f !== "index.ts").map((f) => f.slice(0, -3));
 
 // DESIGN.md section 4: the built-in rule set.
-const DESIGNED = ["band-edges", "band-flatness", "capacitor-polarity", "capacitor-voltage", "coil-drive", "device-current", "device-power", "device-ratings", "gain-window", "headroom", "region", "resistor-power", "signal-swing", "solve", "supply-budget"];
+const DESIGNED = ["band-edges", "band-flatness", "capacitor-polarity", "capacitor-voltage", "coil-drive", "device-current", "device-power", "device-ratings", "gain-window", "headroom", "impedance-window", "node-level", "region", "resistor-power", "signal-swing", "solve", "supply-budget"];
 
 describe("built-in rule registry", () => {
   it("holds exactly the rules of DESIGN.md section 4, sorted by id", () => {
