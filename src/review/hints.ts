@@ -10,6 +10,12 @@ export const HINT_PARTS = 3;
 export const HINT_STEP_PERCENT = 10;
 /** Tolerance a tightening hint proposes, %. */
 export const TIGHT_TOLERANCE_PERCENT = 1;
+/**
+ * A move is named only when it changes the quantity by at least this fraction of the shortfall
+ * (|limit − measured|): a part that moves a 1.3 dB shortfall by a microdecibel is noise, not a fix,
+ * and naming it sends the reviewer to the wrong part.
+ */
+export const HINT_MIN_SHARE = 0.01;
 
 export interface HintInput {
   readonly measured: number;
@@ -31,7 +37,9 @@ function signed(v: number, unit: string | null): string {
 export function sensitivityHint(h: HintInput): string | null {
   // The way the quantity must go: up when it is below its limit, down when above.
   const want = h.limit >= h.measured ? 1 : -1;
-  const parts = h.entries.filter((e) => h.bands.get(e.parameter)?.kind === "tolerance" && e.normalised !== null && e.normalised !== 0);
+  const floor = HINT_MIN_SHARE * Math.abs(h.limit - h.measured);
+  const perStep = (e: SensitivityEntry): number => Math.abs(e.derivative * h.bands.get(e.parameter)!.nominal * (HINT_STEP_PERCENT / 100));
+  const parts = h.entries.filter((e) => h.bands.get(e.parameter)?.kind === "tolerance" && e.normalised !== null && e.normalised !== 0 && perStep(e) >= floor);
   const ranked = [...parts].sort((a, b) => Math.abs(b.normalised!) - Math.abs(a.normalised!)).slice(0, HINT_PARTS);
   const moves = ranked.map((e) => {
     const nominal = h.bands.get(e.parameter)!.nominal;
@@ -49,14 +57,14 @@ export function sensitivityHint(h: HintInput): string | null {
     const tight = (TIGHT_TOLERANCE_PERCENT / 100) * Math.abs(b.nominal);
     if (half <= tight * (1 + 1e-9)) continue;
     const gain = Math.abs(e.derivative) * (half - tight);
-    if (gain > best) {
+    if (gain >= floor && gain > best) {
       best = gain;
       tighten = `tighten ${e.name} to ${TIGHT_TOLERANCE_PERCENT} %: worst-case ${h.quantity} ${signed(gain * want, h.unit)}`;
     }
   }
   const spread = h.entries.find((e) => {
     const kind = h.bands.get(e.parameter)?.kind;
-    return (kind === "spread" || kind === "temperature") && Math.max(Math.abs(e.low), Math.abs(e.high)) > 0;
+    return (kind === "spread" || kind === "temperature") && Math.abs(e.high - e.low) >= floor && Math.abs(e.high - e.low) > 0;
   });
   const across = spread ? `${spread.name} alone moves it ${formatQuantity(Math.abs(spread.high - spread.low), h.unit ?? "")} across its range` : null;
   const pieces = [...moves, ...(tighten ? [tighten] : []), ...(across ? [across] : [])];
