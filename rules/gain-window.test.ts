@@ -43,9 +43,9 @@ it("judges the gain the textbook formula gives from the solved small-signal para
   // from collector to emitter, and with 1.2 kΩ of degeneration it raises the output resistance
   // far above RC‖RL, so it drops out. β = 250 (model typ), rπ = β·VT/IC = 250·25.85 mV/1.175 mA.
   const beta = 250;
-  const rPi = (beta * 0.02585) / 1.175e-3;
+  const rBaseInput = (beta * 0.02585) / 1.175e-3;
   const rcRl = 1 / (1 / 4700 + 1 / 10000);
-  const av = (-beta * rcRl) / (rPi + (beta + 1) * 1200);
+  const av = (-beta * rcRl) / (rBaseInput + (beta + 1) * 1200);
   expect(f.measured! / av).toBeCloseTo(1, 2);
   expect(f).toMatchObject({ limit: -2.85, unit: "V/V" });
   expect(f.margin).toBeLessThan(0);

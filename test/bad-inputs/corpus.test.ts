@@ -58,9 +58,6 @@ const CORPUS: Record<string, [RegExp, boolean]> = {
   "old-key-dc.yaml": [/unknown key `dc` in component V1.*`dc` is now `voltage`/, true],
   "old-key-dc-current.yaml": [/unknown key `dc` in component I1.*`dc` is now `current`/, true],
   "old-key-ac.yaml": [/unknown key `ac` in component V1.*`ac` is now `signal`/, true],
-  "old-key-surface-potential.yaml": [/unknown key `surfacePotential` in model n1.*`surfacePotential` is now `fermiPotential` \(the Fermi potential φF, half the old value/, true],
-  "old-key-energy-gap.yaml": [/unknown key `energyGap` in model q1.*`energyGap` is now `baseEmitterDrift`.*VBE drift/, true],
-  "old-key-saturation-exponent.yaml": [/unknown key `saturationCurrentExponent` in model d1.*`saturationCurrentExponent` is now `forwardVoltageDrift`/, true],
   "old-key-lambda.yaml": [/unknown key `lambda` in model n1.*`lambda` is now `channelLengthModulation`/, true],
   "old-key-control.yaml": [/unknown key `control` in component F1.*`control` is now `sense`/, true],
   // Issue 12 items 10 and 15: text that was read as something other than what it says.

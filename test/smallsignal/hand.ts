@@ -18,7 +18,7 @@ export function emitterBias(vb: number, vee: number, re: number, beta: number, i
     ic = (beta / (beta + 1)) * ie;
     vbe = VT * Math.log(ic / is);
   }
-  return { ic, vbe, gm: ic / VT, rPi: beta / (ic / VT), re: VT / (ic * (1 + 1 / beta)) };
+  return { ic, vbe, gm: ic / VT, rBaseInput: beta / (ic / VT), re: VT / (ic * (1 + 1 / beta)) };
 }
 
 /**

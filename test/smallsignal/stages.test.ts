@@ -168,7 +168,7 @@ describe("bipolar stages", () => {
     const rep = par(RE, q.outputResistance);
     expect(record("EF gain vs tool", relErr(g.midband, ((1 + beta) * rep) / (q.inputResistance + (1 + beta) * rep)))).toBeLessThan(MODEL_EXACT);
     const h = emitterBias(3, 0, RE, BETA, IS);
-    expect(record("EF hand", relErr(g.midband, ((1 + BETA) * RE) / (h.rPi + (1 + BETA) * RE)))).toBeLessThan(HAND);
+    expect(record("EF hand", relErr(g.midband, ((1 + BETA) * RE) / (h.rBaseInput + (1 + BETA) * RE)))).toBeLessThan(HAND);
     // With source resistance RB.
     const c2 = build(RB);
     const op2 = solve(c2);
