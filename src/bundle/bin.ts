@@ -5,7 +5,7 @@
 // instead of hundreds). `run` is exported too, so that tests can drive the bundle in-process.
 import { realpathSync } from "node:fs";
 import { fileURLToPath } from "node:url";
-import type { CliIo } from "../cli/io.js";
+import { processIo, type CliIo } from "../cli/io.js";
 import { toolVersion } from "../run/version.js";
 
 /** The CLI's run(); cli.js is loaded only when there is a command to run. */
@@ -30,13 +30,5 @@ function isMain(): boolean {
 }
 
 if (isMain()) {
-  const code = await run(process.argv.slice(2), {
-    cwd: process.cwd(),
-    env: process.env,
-    isTTY: Boolean(process.stdout.isTTY),
-    stderrIsTTY: Boolean(process.stderr.isTTY),
-    stdout: (text) => void process.stdout.write(text),
-    stderr: (text) => void process.stderr.write(text),
-  });
-  process.exitCode = code;
+  process.exitCode = await run(process.argv.slice(2), processIo());
 }

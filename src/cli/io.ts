@@ -11,6 +11,18 @@ export interface CliIo {
   stderr(text: string): void;
 }
 
+/** The streams and environment of this process: what both executable entries hand to run(). */
+export function processIo(): CliIo {
+  return {
+    cwd: process.cwd(),
+    env: process.env,
+    isTTY: Boolean(process.stdout.isTTY),
+    stderrIsTTY: Boolean(process.stderr.isTTY),
+    stdout: (text) => void process.stdout.write(text),
+    stderr: (text) => void process.stderr.write(text),
+  };
+}
+
 /** Thrown by a command to end with an exit code and a message, never a stack trace. */
 export class CliExit extends Error {
   constructor(
