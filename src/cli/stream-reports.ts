@@ -44,8 +44,10 @@ class Spool {
     readonly path: string,
     private readonly what: string,
   ) {
-    mkdirSync(dirname(path), { recursive: true });
-    this.fd = this.guard(() => openSync(path, "w"));
+    this.fd = this.guard(() => {
+      mkdirSync(dirname(path), { recursive: true });
+      return openSync(path, "w");
+    });
   }
   write(data: string | Buffer): void {
     this.guard(() => {
@@ -163,20 +165,6 @@ export function openReportWriters(targets: Partial<Record<ReportFormat, string>>
     spool.finishAt(resolve(io.cwd, target));
     return false;
   };
-  const writeText = (format: ReportFormat, text: string): boolean => {
-    const target = targets[format]!;
-    if (target === "-") {
-      io.stdout(text);
-      return true;
-    }
-    try {
-      writeAtomically(resolve(io.cwd, target), text);
-    } catch (err) {
-      throw new CliExit(EXIT_INPUT, `cannot write the ${format} report to ${target}: ${err instanceof Error ? err.message : String(err)}`);
-    }
-    return false;
-  };
-
   return {
     start(h: DocumentHead): void {
       head = h;
@@ -211,10 +199,12 @@ export function openReportWriters(targets: Partial<Record<ReportFormat, string>>
       count++;
     },
     finish(doc: ReportDocument, reportOptions: ReportOptions): boolean {
-      let toStdout = false;
+      // Every report is completed in its temporary file first, then all are moved into place:
+      // one that cannot be written leaves none behind.
+      const done: [ReportFormat, Spool][] = [];
       if (json) {
         json.write(jsonEnd(doc, doc.summary, count));
-        toStdout = finishOne("json", json) || toStdout;
+        done.push(["json", json]);
       }
       if (junitBody) {
         if (count === 0) {
@@ -227,11 +217,19 @@ export function openReportWriters(targets: Partial<Record<ReportFormat, string>>
         junit.append(junitBody);
         junitBody.remove();
         junit.write(JUNIT_END);
-        toStdout = finishOne("junit", junit) || toStdout;
+        done.push(["junit", junit]);
       }
-      if (targets.markdown) toStdout = writeText("markdown", renderMarkdown(doc, reportOptions.baseline ? { baseline: reportOptions.baseline } : {})) || toStdout;
-      if (targets.sarif) toStdout = writeText("sarif", renderSarif(doc, reportOptions.sarif ?? {})) || toStdout;
-      if (targets.html && whole) toStdout = writeText("html", renderHtml({ ...doc, circuits: whole })) || toStdout;
+      const text = (format: ReportFormat, render: () => string): void => {
+        if (!targets[format]) return;
+        const spool = open(format)!;
+        spool.write(render());
+        done.push([format, spool]);
+      };
+      text("markdown", () => renderMarkdown(doc, reportOptions.baseline ? { baseline: reportOptions.baseline } : {}));
+      text("sarif", () => renderSarif(doc, reportOptions.sarif ?? {}));
+      if (whole) text("html", () => renderHtml({ ...doc, circuits: whole }));
+      let toStdout = false;
+      for (const [format, spool] of done) toStdout = finishOne(format, spool) || toStdout;
       return toStdout;
     },
     abort(): void {
