@@ -4,7 +4,7 @@
 // values, model spreads. The expected values here come from the Shockley law
 // I = IS·(exp(V/nVT) − 1) (textbook; common practice), not from the solver.
 import { describe, expect, it } from "vitest";
-import type { Circuit, Component } from "../../src/circuit/types.js";
+import type { Circuit, Component, Model } from "../../src/circuit/types.js";
 import { solveOperatingPoint, type OperatingPoint, type SolveResult, type WarmStart } from "../../src/solve/index.js";
 import { UPDATE_RELTOL, VOLTAGE_ABSTOL } from "../../src/solve/convergence.js";
 import {
@@ -30,14 +30,13 @@ function varied(c: Circuit, factor: number, kelvin: number): Circuit {
 
 /** The same circuit with every model's saturation current and k′ moved (a spread corner). */
 function spread(c: Circuit, isFactor: number, kFactor: number): Circuit {
-  const models = new Map(
-    [...c.models].map(([id, m]) => {
-      if (m.kind === "diode" || m.kind === "npn" || m.kind === "pnp") return [id, { ...m, saturationCurrent: { ...m.saturationCurrent, typ: m.saturationCurrent.typ * isFactor } }];
-      if (m.kind === "nmos" || m.kind === "pmos") return [id, { ...m, kPrime: { ...m.kPrime, typ: m.kPrime.typ * kFactor } }];
-      return [id, m];
-    }),
-  );
-  return { ...c, models } as Circuit;
+  const models = new Map<string, Model>();
+  for (const [id, m] of c.models) {
+    if (m.kind === "diode" || m.kind === "npn" || m.kind === "pnp") models.set(id, { ...m, saturationCurrent: { ...m.saturationCurrent, typ: m.saturationCurrent.typ * isFactor } });
+    else if (m.kind === "nmos" || m.kind === "pmos") models.set(id, { ...m, kPrime: { ...m.kPrime, typ: m.kPrime.typ * kFactor } });
+    else models.set(id, m);
+  }
+  return { ...c, models };
 }
 
 describe("warm start from a solved nominal point", () => {
