@@ -29,6 +29,21 @@ testsFromVerdict(await verifyRule(bandEdges, [
     expect: [{ subject: "stage at band.high", severity: "error", messageIncludes: "CL (10 nF) sets" }],
   },
   { name: "a 2 nF load capacitor is within 3 dB (a flatness warning, not this rule's error)", circuit: npnStage({ specs, parts: load("2n") }), expect: [] },
+  {
+    // RC 15k: 1.2 mA would drop 18 V, so Q1 saturates (common practice: VC cannot fall below VE + VCE(sat)).
+    // The same 47 µF bypass that loses band.low when Q1 amplifies is then not blamed: the band of
+    // a saturated stage is not the designed band (region and gain-window report the stage).
+    name: "a saturated stage is not judged: no capacitor is blamed for what the bias did",
+    circuit: npnStage({ specs, rc: "15k", parts: bypass("47u") }),
+    expect: [],
+    passed: [],
+  },
+  {
+    name: "with its amplifying region named in specs.devices, the active stage is judged as before",
+    circuit: npnStage({ specs: `${specs}\n  devices:\n    Q1: { region: active }`, parts: bypass("47u") }),
+    expect: [{ subject: "stage at band.low", severity: "error", messageIncludes: "CE (47 µF) sets" }],
+    passed: ["stage at band.high"],
+  },
   { name: "no band in the specs: nothing to judge", circuit: npnStage({ specs: `  gains:\n    - { name: stage, input: VIN, output: out, target: -2.6, tolerance: 10% }`, parts: bypass("47u") }), expect: [] },
 ]));
 

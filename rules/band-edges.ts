@@ -14,7 +14,10 @@ impedance, must be within 3 dB of the midband (flat-band) gain. 3 dB is the half
 that defines a band edge, so beyond it the band spec is not met. Each finding gives the −3 dB
 corner itself, the capacitor that sets that corner (its share by short-circuit time constants
 at the low edge, open-circuit time constants at the high edge) and the value of that capacitor
-that would meet the edge. The tighter flatness check is \`band-flatness\` (a warning).
+that would meet the edge. The tighter flatness check is \`band-flatness\` (a warning). A scenario
+in which a transistor meant to amplify is outside its amplifying region is not judged here: the
+band of a stage that does not amplify is not the designed band (\`region\` and \`gain-window\`
+report it).
 
 Why it matters: midband analysis assumes the coupling and bypass capacitors are large enough and
 the load, cable and device capacitances small enough; this rule checks both where they are
@@ -24,7 +27,7 @@ band; a cable capacitor on a high-impedance output loses the top.
 How to fix: change the capacitor the finding names to the value it gives (or the resistance it
 sees), or correct the band if it was specified wider than the product needs.`,
   check({ circuit, op, smallSignal }, report) {
-    for (const m of edgeMeasures(circuit, smallSignal?.gains)) {
+    for (const m of edgeMeasures(circuit, op, smallSignal?.gains)) {
       const deviation = Math.abs(m.relativeDb);
       const check = { measured: deviation, limit: BAND_EDGE_DB, unit: "dB", bound: "max" as const };
       if (deviation <= BAND_EDGE_DB) {

@@ -34,7 +34,7 @@ computed for.
 How to fix: change the capacitor the finding names to the value it gives, or relax
 \`flatnessDb\` for a circuit whose band edges are meant to roll off.`,
   check({ circuit, op, smallSignal, options }, report) {
-    for (const m of edgeMeasures(circuit, smallSignal?.gains)) {
+    for (const m of edgeMeasures(circuit, op, smallSignal?.gains)) {
       const deviation = Math.abs(m.relativeDb);
       if (deviation > BAND_EDGE_DB) continue; // band-edges' error
       const check = { measured: deviation, limit: options.flatnessDb, unit: "dB", bound: "max" as const };

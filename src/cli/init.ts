@@ -68,6 +68,9 @@ variation:
   samples: 200 # Monte Carlo only
   seed: 1
   temperature: { min: "-20 °C", max: "60 °C" }
+  # A circuit of thousands of parts can exceed the per-circuit work budget and is then judged at
+  # nominal only, with a variation-budget finding: warning (passes on its nominal verdict) or error.
+  overBudget: warning
 
 # Report files, written by \`opgate check\` (command-line flags override them).
 outputs:

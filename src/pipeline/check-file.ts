@@ -128,7 +128,7 @@ export async function checkCircuit(circuit: Circuit, ctx: CheckContext, displayP
     };
   });
   const budget = v.budget.map(
-    (b): Finding => ({ rule: BUDGET_RULE, severity: "warning", subject: circuit.name, message: b.message, measured: null, limit: null, unit: null, margin: null, scenario: "nominal", file: displayPath, line: circuit.pos.line, column: circuit.pos.column, hint: b.hint }),
+    (b): Finding => ({ rule: BUDGET_RULE, severity: ctx.config.variation.overBudget ?? "warning", subject: circuit.name, message: b.message, measured: null, limit: null, unit: null, margin: null, scenario: "nominal", file: displayPath, line: circuit.pos.line, column: circuit.pos.column, hint: b.hint }),
   );
   const located = [...fileWarningFindings(circuit.warnings, displayPath), ...budget, ...decorated];
   const nominal = v.nominal;

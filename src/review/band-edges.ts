@@ -7,7 +7,7 @@ import type { Circuit, GainSpec } from "../circuit/types.js";
 import type { OperatingPoint } from "../solve/types.js";
 import { capacitorForEdge } from "../smallsignal/index.js";
 import type { CapacitorShare, GainResult } from "../smallsignal/types.js";
-import { formatQuantity } from "./quantities.js";
+import { formatQuantity, intendedRegion, isTransistorKind, REGIONS } from "./quantities.js";
 
 /** Frequencies within this relative distance are the same point (they come from the same spec value). */
 const SAME_FREQUENCY = 1e-9;
@@ -28,10 +28,19 @@ export interface EdgeMeasure {
   readonly subject: string;
 }
 
-/** The gain at each band edge, per gain; gains without a result or band points are skipped (gain-window reports them). */
-export function edgeMeasures(circuit: Circuit, gains: readonly GainResult[] | undefined): EdgeMeasure[] {
+/**
+ * The gain at each band edge, per gain; gains without a result or band points are skipped
+ * (gain-window reports them). None while a transistor meant to amplify is outside its
+ * amplifying region: the band of a stage that does not amplify is not the designed band, and
+ * naming the capacitor that "sets" it misleads (a saturated transistor makes an emitter bypass
+ * capacitor look like one that limits the top of the band). The region rule, and gain-window
+ * for the gain itself, report such a scenario; the band is judged in the scenarios where the
+ * stage amplifies.
+ */
+export function edgeMeasures(circuit: Circuit, op: OperatingPoint, gains: readonly GainResult[] | undefined): EdgeMeasure[] {
   const band = circuit.specs.band;
   if (!band || !gains) return [];
+  if (notAmplifying(circuit, op).length > 0) return [];
   const out: EdgeMeasure[] = [];
   for (const spec of circuit.specs.gains) {
     const result = gains.find((g) => g.name === spec.name);
@@ -48,6 +57,25 @@ export function edgeMeasures(circuit: Circuit, gains: readonly GainResult[] | un
 
 export function capacitorName(c: { readonly id: string; readonly between?: string }): string {
   return c.between ? `${c.id}'s ${c.between} capacitance` : c.id;
+}
+
+/**
+ * Transistors meant to amplify (no other region named in specs.devices) that are outside their
+ * amplifying region at this operating point. While one is, the small-signal network describes
+ * a stage that does not amplify, and which capacitor "sets" a band edge says nothing about the
+ * designed amplifier: a saturated transistor makes an emitter bypass capacitor look like one
+ * that limits the top of the band.
+ */
+export function notAmplifying(circuit: Circuit, op: OperatingPoint): { id: string; region: string; wanted: string }[] {
+  const out: { id: string; region: string; wanted: string }[] = [];
+  for (const c of circuit.components) {
+    if (!isTransistorKind(c.kind)) continue;
+    const point = op.devices[c.id];
+    if (!point || !("region" in point)) continue;
+    const wanted = intendedRegion(circuit, c.id, c.kind);
+    if (wanted === REGIONS[c.kind][0] && point.region !== wanted) out.push({ id: c.id, region: point.region, wanted });
+  }
+  return out;
 }
 
 /** The parts of a finding's message after the measured deviation: corner, dominant capacitor, value that meets `allowedDb`. */

@@ -76,7 +76,7 @@ interface RawConfig {
   plugins?: string[];
   libraries?: string[];
   failOn?: Severity;
-  variation?: { mode?: VariationSettings["mode"]; samples?: number; seed?: number; temperature?: { min: string | number; max: string | number } };
+  variation?: { mode?: VariationSettings["mode"]; samples?: number; seed?: number; overBudget?: VariationSettings["overBudget"]; temperature?: { min: string | number; max: string | number } };
   outputs?: Record<string, string>;
   nonCircuitFiles?: "skip" | "error";
 }
@@ -168,7 +168,7 @@ export async function loadConfig(options: LoadConfigOptions): Promise<ResolvedCo
     return path;
   });
 
-  let variation: VariationSettings = { ...DEFAULT_VARIATION, ...pick(raw.variation, ["mode", "samples", "seed"]) };
+  let variation: VariationSettings = { ...DEFAULT_VARIATION, ...pick(raw.variation, ["mode", "samples", "seed", "overBudget"]) };
   if (raw.variation?.temperature) {
     const t = raw.variation.temperature;
     const min = temperature(t.min, positionOf(doc, ["variation", "temperature", "min"]), shown, problems);

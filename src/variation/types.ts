@@ -19,4 +19,10 @@ export interface VariationSettings {
   readonly seed: number;
   /** Ambient range in kelvin for corners and Monte Carlo; absent = the circuit's own temperature. */
   readonly temperature?: { readonly min: number; readonly max: number };
+  /**
+   * Severity of the `variation-budget` finding, given when a circuit is too large for the
+   * per-circuit budget and is judged at nominal only (or on part of its samples or corners):
+   * "warning" (default) lets it pass on its nominal verdict, "error" fails it.
+   */
+  readonly overBudget?: "warning" | "error";
 }

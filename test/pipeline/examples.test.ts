@@ -32,11 +32,15 @@ describe("the example boards under the Tidewater policy (corners, −20…60 °C
     expect(r.findings[0]!.scenario).not.toBe("nominal");
   });
 
-  it("rev B fails for the reasons a reviewer gives: saturated, starved, gain lost, resistor hot, bypass too small", async () => {
+  it("rev B fails for the reasons a reviewer gives: saturated, starved, gain lost, resistor hot", async () => {
     const r = await check("tide-gauge-preamp-rev-b.yaml");
     expect(r.status).toBe("fail");
     const rules = new Set(r.findings.map((f) => f.rule));
-    for (const rule of ["region", "headroom", "device-current", "gain-window", "resistor-power", "band-edges"]) expect(rules).toContain(rule);
+    for (const rule of ["region", "headroom", "device-current", "gain-window", "resistor-power"]) expect(rules).toContain(rule);
+    // Rev B has rev A's capacitors (only RC changed), and rev A's band passes: the band of a
+    // saturated stage is not judged, so no capacitor is blamed for what the bias did.
+    expect(rules).not.toContain("band-edges");
+    expect(rules).not.toContain("band-flatness");
     const headroom = r.findings.find((f) => f.rule === "headroom")!;
     expect(headroom.measured).toBeLessThan(0);
     expect(headroom.margin).toBeLessThan(0);
