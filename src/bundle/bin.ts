@@ -2,11 +2,15 @@
 // Entry of the bundled CLI (dist/bundle/bin.js, the package's `opgate`): the same run() as
 // src/cli/bin.ts. It is small: `--version` is answered here, and everything else is handed to
 // dist/bundle/cli.js, the command line in one file with its dependencies (one module to load
-// instead of hundreds). `run` is exported too, so that tests can drive the bundle in-process.
+// instead of hundreds), loaded through V8's code cache (code-cache.ts). `run` is exported too, so
+// that tests can drive the bundle in-process.
 import { realpathSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 import { processIo, type CliIo } from "../cli/io.js";
 import { toolVersion } from "../run/version.js";
+import { codeCacheDir, loadBundled } from "./code-cache.js";
+
+let cli: typeof import("./cli.js") | undefined;
 
 /** The CLI's run(); cli.js is loaded only when there is a command to run. */
 export async function run(argv: readonly string[], io: CliIo): Promise<number> {
@@ -15,8 +19,8 @@ export async function run(argv: readonly string[], io: CliIo): Promise<number> {
     io.stdout(`${toolVersion()}\n`);
     return 0;
   }
-  // A computed specifier: the bundler leaves it alone, so cli.js stays a file of its own.
-  const cli = (await import(new URL("./cli.js", import.meta.url).href)) as typeof import("./cli.js");
+  // A computed path: the bundler leaves it alone, so cli.js stays a file of its own.
+  cli ??= loadBundled(fileURLToPath(new URL("./cli.js", import.meta.url)), codeCacheDir(process.env)) as unknown as typeof import("./cli.js");
   return cli.run(argv, io);
 }
 
@@ -30,5 +34,7 @@ function isMain(): boolean {
 }
 
 if (isMain()) {
-  process.exitCode = await run(process.argv.slice(2), processIo());
+  void run(process.argv.slice(2), processIo()).then((code) => {
+    process.exitCode = code;
+  });
 }

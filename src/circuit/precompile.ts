@@ -10,6 +10,7 @@ import { createRequire } from "node:module";
 import { join } from "node:path";
 import { Ajv2020, type ValidateFunction } from "ajv/dist/2020.js";
 import standaloneCode from "ajv/dist/standalone/index.js";
+import { loadCommonJs } from "../load-generated.js";
 import { PACKAGE_ROOT, schemaPath } from "../paths.js";
 import { useCompiled, VALIDATOR_OPTIONS } from "./validate.js";
 
@@ -35,23 +36,13 @@ export function validatorSource(schemaText: string): string {
 
 const requireHere = createRequire(import.meta.url);
 
-/**
- * Runs a generated module's text as CommonJS with OUR `require`: its `require("ajv/dist/runtime/…")`
- * then resolves from this package's own dependencies wherever the file sits (a temporary folder,
- * a clone in any place, a tarball installed elsewhere), not from the folders around the file.
- */
-function evaluateCommonJs(source: string): unknown {
-  const module = { exports: {} as unknown };
-  const run = new Function("module", "exports", "require", source) as (m: typeof module, e: unknown, r: NodeJS.Require) => void;
-  run(module, module.exports, requireHere);
-  return module.exports;
-}
-
 /** The generated validator at `file` when it was made from exactly `schemaText`, else undefined. */
 export function loadGenerated(file: string, schemaText: string): ValidateFunction | undefined {
   if (!existsSync(file)) return undefined;
   try {
-    const mod = evaluateCommonJs(readFileSync(file, "utf8")) as ValidateFunction & { schemaSha256?: string };
+    // Run with OUR require: its `require("ajv/dist/runtime/…")` then resolves from this package's
+    // own dependencies wherever the file sits (a temporary folder, a clone, an installed tarball).
+    const mod = loadCommonJs(file, requireHere) as ValidateFunction & { schemaSha256?: string };
     return typeof mod === "function" && mod.schemaSha256 === schemaDigest(schemaText) ? mod : undefined;
   } catch {
     // A damaged build output must not stop a check: compiling the schema still works.

@@ -6,10 +6,10 @@
 // rule's schema as loaded is not used (the schema is compiled instead), so a stale build can
 // never validate against an old schema.
 import { createHash } from "node:crypto";
-import { readFileSync } from "node:fs";
 import { createRequire } from "node:module";
 import { join } from "node:path";
 import type { ValidateFunction } from "ajv";
+import { loadCommonJs } from "../load-generated.js";
 import { PACKAGE_ROOT } from "../paths.js";
 import type { Rule } from "./rule.js";
 
@@ -42,10 +42,8 @@ const requireHere = createRequire(import.meta.url);
 
 function load(): Record<string, unknown> | null {
   try {
-    const module = { exports: {} as Record<string, unknown> };
     // Run with our require, so that ajv's runtime helpers resolve from this package wherever the file sits.
-    new Function("module", "exports", "require", readFileSync(RULE_OPTIONS_FILE, "utf8"))(module, module.exports, requireHere);
-    return module.exports;
+    return loadCommonJs(RULE_OPTIONS_FILE, requireHere) as Record<string, unknown>;
   } catch {
     // Not built, or damaged: compiling still works.
     return null;
