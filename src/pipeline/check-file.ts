@@ -6,6 +6,7 @@ import type { ConfiguredRule } from "../review/engine.js";
 import { quantityKey, RuleSession } from "../review/engine.js";
 import { sensitivityHint } from "../review/hints.js";
 import { sensitivityEntries } from "../variation/sensitivity.js";
+import { firstOrderExplains } from "../variation/first-order.js";
 import { BUDGET_RULE, runVariation } from "./variation.js";
 import { loadCircuitFile } from "../circuit/index.js";
 import type { Circuit, InputError, LibraryUse } from "../circuit/types.js";
@@ -116,7 +117,10 @@ export async function checkCircuit(circuit: Circuit, ctx: CheckContext, displayP
   const decorated = findings.map((f): Finding => {
     const corner = v.cornerOf(f.scenario);
     const key = quantityKey(f.rule, f.subject, f.unit);
-    const entries = v.table ? sensitivityEntries(v.table, key) : [];
+    // Sensitivities at nominal name parts only where they explain the finding's worst scenario
+    // (src/variation/first-order.ts); an MC sample without a parameter set is taken as explained.
+    const explained = v.table !== null && f.measured !== null && (corner === undefined || firstOrderExplains(v.table, key, corner.parameters, f.measured));
+    const entries = v.table && explained ? sensitivityEntries(v.table, key) : [];
     let hint = f.hint;
     if (entries.length && f.measured !== null && f.limit !== null) hint = sensitivityHint({ measured: f.measured, limit: f.limit, unit: f.unit, quantity: quantityWord(f.rule, f.unit), entries, bands }) ?? hint;
     return {
