@@ -29,7 +29,7 @@ const deferInit = {
     });
   },
 };
-const common = { outdir, bundle: true, platform: "node", target: "node20", external: ["tsx", "tsx/*", "junit-report-builder"], legalComments: "none", logLevel: "warning", plugins: [deferInit] };
+const common = { outdir, bundle: true, platform: "node", target: "node20", external: ["tsx", "tsx/*", "junit-report-builder", "esbuild"], legalComments: "none", logLevel: "warning", plugins: [deferInit] };
 await build({
   ...common,
   entryPoints: { bin: "dist/src/bundle/bin.js", cli: "dist/src/bundle/cli.js", "plugin-host": "dist/src/bundle/plugin-host.js" },

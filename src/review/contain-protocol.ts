@@ -42,7 +42,7 @@ export type ToHost =
   | { readonly t: "run"; readonly id: number; readonly plugin: number; readonly rule: number; readonly options: unknown };
 
 export type FromHost =
-  | { readonly t: "loaded"; readonly id: number; readonly plugins: readonly WireExport[] }
+  | { readonly t: "loaded"; readonly id: number; readonly plugins: readonly WireExport[]; readonly notes?: readonly string[] }
   | { readonly t: "ready"; readonly id: number }
   | { readonly t: "ran"; readonly id: number; readonly reports: readonly WireReport[]; readonly errors: readonly { readonly scenario: string; readonly reason: string }[] }
   | { readonly t: "failed"; readonly id: number; readonly reason: string };

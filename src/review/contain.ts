@@ -17,7 +17,7 @@ import type { FromHost, ToHost, WireAnalysis, WireExport, WireReport, WireRuleMe
 import { EMPTY_OPTIONS, type Rule } from "./rule.js";
 
 /**
- * How long importing a config's plugins may take. A plugin is a small module; tsx compiling a
+ * How long importing a config's plugins may take. A plugin is a small module; compiling a
  * TypeScript one takes well under a second. Twenty seconds is far beyond an honest plugin on a
  * loaded CI runner, and ends a plugin whose import never finishes.
  */
@@ -151,6 +151,9 @@ export class PluginHost {
   private async ensureLoaded(): Promise<readonly WireExport[]> {
     const m = await this.request<Extract<FromHost, { t: "loaded" }>>({ t: "load", paths: this.paths }, loadBudgetMs, "importing the plugins");
     this.loaded = true;
+    // A compiled team rule kept in the cache that could not be trusted (it was compiled again):
+    // one line, as the result cache does.
+    for (const note of m.notes ?? []) process.stderr.write(`opgate: ${note}\n`);
     return m.plugins;
   }
 

@@ -5,7 +5,7 @@
 // thread alive, and the main side never waits for it. Rules see the circuit and its analyses as
 // deep-frozen copies: a write throws inside the rule and touches nothing that is published.
 import { parentPort } from "node:worker_threads";
-import { importModule } from "./plugin-import.js";
+import { importModule, importNotes } from "./plugin-import.js";
 import { describeValue, ruleShapeProblems } from "./rule.js";
 import type { FromHost, ToHost, WireAnalysis, WireExport, WireReport, WireRuleMeta, WireValue } from "./contain-protocol.js";
 
@@ -163,7 +163,7 @@ port.on("message", (message: ToHost) => {
     try {
       switch (message.t) {
         case "load":
-          send({ t: "loaded", id: message.id, plugins: await load(message.paths) });
+          send({ t: "loaded", id: message.id, plugins: await load(message.paths), notes: importNotes.splice(0) });
           return;
         case "circuit":
           analyses = deepFreeze(message.analyses);
