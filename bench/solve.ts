@@ -212,6 +212,11 @@ export const TARGET_MS_3000 = 10;
 
 export interface StorageBenchRow {
   readonly nodes: number;
+  readonly unknowns: number;
+  /** Newton iterations of the solve (the same with either storage: the same steps, to rounding). */
+  readonly iterations: number;
+  /** What the default ("auto") storage picks at this size. */
+  readonly auto: "dense" | "sparse";
   readonly denseMicros: number;
   readonly denseCpuMicros: number;
   readonly sparseMicros: number;
@@ -222,6 +227,9 @@ export interface StorageBenchRow {
 /**
  * Dense against sparse storage on the same chains, measured alternately (dense, sparse, dense,
  * sparse; the faster median of each kept) so that a slow spell of the shared machine hits both.
+ * Prints the targets of issue 15 with met/missed: the 1,000- and 3,000-node medians, and no
+ * regression at 10–300 nodes (the default storage there no slower than dense, on CPU time, with
+ * NOISE_MARGIN for a shared machine).
  */
 export async function benchStorage(print: (line: string) => void = console.log): Promise<StorageBenchRow[]> {
   const rows: StorageBenchRow[] = [];
@@ -237,13 +245,24 @@ export async function benchStorage(print: (line: string) => void = console.log):
     const best = <T extends { wall: number }>(xs: T[]): T => xs.reduce((a, b) => (b.wall < a.wall ? b : a));
     const bd = best(dense);
     const bs = best(sparse);
-    rows.push({ nodes: c.nodes.length, denseMicros: bd.wall, denseCpuMicros: bd.cpu, sparseMicros: bs.wall, sparseCpuMicros: bs.cpu, sparseBestMicros: Math.min(...sparse.map((m) => m.best)) });
+    const unknowns = c.nodes.length + 1; // every node but ground, and the rail source's branch current
+    rows.push({
+      nodes: c.nodes.length,
+      unknowns,
+      iterations: s.stats.iterations,
+      auto: unknowns >= SPARSE_MIN_UNKNOWNS ? "sparse" : "dense",
+      denseMicros: bd.wall,
+      denseCpuMicros: bd.cpu,
+      sparseMicros: bs.wall,
+      sparseCpuMicros: bs.cpu,
+      sparseBestMicros: Math.min(...sparse.map((m) => m.best)),
+    });
   }
   print(`bias solve, matrix storage (median per operating point; default: sparse from ${SPARSE_MIN_UNKNOWNS} unknowns)`);
-  print("  nodes   dense µs (cpu)        sparse µs (cpu) [fastest batch]   dense/sparse");
+  print("  nodes  iterations  default   dense µs (cpu)        sparse µs (cpu) [fastest batch]   dense/sparse (cpu)");
   for (const r of rows) {
     print(
-      `  ${String(r.nodes).padStart(5)}  ${r.denseMicros.toFixed(0).padStart(8)} (${r.denseCpuMicros.toFixed(0).padStart(8)})  ${r.sparseMicros.toFixed(0).padStart(8)} (${r.sparseCpuMicros.toFixed(0).padStart(8)}) [${r.sparseBestMicros.toFixed(0).padStart(8)}]  ${(r.denseMicros / r.sparseMicros).toFixed(2).padStart(6)}×`,
+      `  ${String(r.nodes).padStart(5)}  ${String(r.iterations).padStart(10)}  ${r.auto.padEnd(7)}  ${r.denseMicros.toFixed(0).padStart(8)} (${r.denseCpuMicros.toFixed(0).padStart(8)})  ${r.sparseMicros.toFixed(0).padStart(8)} (${r.sparseCpuMicros.toFixed(0).padStart(8)}) [${r.sparseBestMicros.toFixed(0).padStart(8)}]  ${(r.denseMicros / r.sparseMicros).toFixed(2).padStart(6)}× (${(r.denseCpuMicros / r.sparseCpuMicros).toFixed(2)}×)`,
     );
   }
   const at = (n: number) => rows.find((r) => Math.abs(r.nodes - n) <= 2);
@@ -251,12 +270,21 @@ export async function benchStorage(print: (line: string) => void = console.log):
   const r3 = at(3000);
   if (r1 && r3) {
     print(
-      `  targets: 1,000 nodes ≤ ${TARGET_MS_1000} ms: ${r1.sparseMicros <= TARGET_MS_1000 * 1000 ? "met" : "missed"} (${(r1.sparseMicros / 1000).toFixed(2)} ms); ` +
-        `3,000 nodes ≤ ${TARGET_MS_3000} ms: ${r3.sparseMicros <= TARGET_MS_3000 * 1000 ? "met" : "missed"} (${(r3.sparseMicros / 1000).toFixed(2)} ms)`,
+      `  targets: 1,000 nodes ≤ ${TARGET_MS_1000} ms: ${r1.sparseMicros <= TARGET_MS_1000 * 1000 ? "met" : "missed"} (${(r1.sparseMicros / 1000).toFixed(2)} ms, cpu ${(r1.sparseCpuMicros / 1000).toFixed(2)}); ` +
+        `3,000 nodes ≤ ${TARGET_MS_3000} ms: ${r3.sparseMicros <= TARGET_MS_3000 * 1000 ? "met" : "missed"} (${(r3.sparseMicros / 1000).toFixed(2)} ms, cpu ${(r3.sparseCpuMicros / 1000).toFixed(2)})`,
     );
   }
+  const small = rows.filter((r) => r.nodes <= 301);
+  const slower = small.filter((r) => r.auto === "sparse" && r.sparseCpuMicros > r.denseCpuMicros * (1 + NOISE_MARGIN));
+  print(
+    `  no regression at 10–300 nodes (default storage vs dense, cpu, ${(100 * NOISE_MARGIN).toFixed(0)} % margin): ${slower.length === 0 ? "met" : `missed at ${slower.map((r) => r.nodes).join(", ")} nodes`}` +
+      `; sparse is faster than dense at ${rows.filter((r) => r.sparseCpuMicros < r.denseCpuMicros).map((r) => r.nodes).join(", ") || "no size"} nodes`,
+  );
   return rows;
 }
+
+/** Run-to-run spread of a median on the shared bench machine; a difference within it is not a regression. */
+const NOISE_MARGIN = 0.05;
 
 if (import.meta.url === pathToFileURL(process.argv[1] ?? "").href) {
   await benchSolve();

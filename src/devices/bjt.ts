@@ -12,7 +12,7 @@
 // βF is the value that reproduces it there (forwardBetaFor), then drifts with temperature.
 import type { Bjt, BjtModel } from "../circuit/types.js";
 import type { BjtPoint, BjtRegion } from "../solve/types.js";
-import { criticalVoltage, limitJunction } from "../solve/limiting.js";
+import { criticalVoltage, limitJunction, warmJunctionVoltage } from "../solve/limiting.js";
 import {
   DeviceSetupError,
   NO_LINKS,
@@ -56,6 +56,9 @@ class BjtInstance implements DeviceInstance {
   // double stored in it (one allocation per stamp).
   private lastVbe = 0;
   private lastVbc = 0;
+  /** The next pass evaluates at lastVbe/lastVbc as primed from a warm start, not at x. */
+  private primed = false;
+  readonly warmSize = 2;
   // Scratch of one evaluation: currents and partial derivatives in normalised terms.
   private ic = 0;
   private ib = 0;
@@ -144,16 +147,32 @@ class BjtInstance implements DeviceInstance {
     g[8] = -(g[2]! + g[5]!);
   }
 
-  prime(x: Float64Array): void {
+  /** The transport currents IF and IR at x (normalised, leakage excluded). */
+  saveWarm(x: Float64Array, out: Float64Array, at: number): void {
     const bi = this.base.index;
     const vb = bi >= 0 ? x[bi]! : 0;
-    this.lastVbe = this.p * (vb - (this.emi.index >= 0 ? x[this.emi.index]! : 0));
-    this.lastVbc = this.p * (vb - (this.col.index >= 0 ? x[this.col.index]! : 0));
+    const vbe = this.p * (vb - (this.emi.index >= 0 ? x[this.emi.index]! : 0));
+    const vbc = this.p * (vb - (this.col.index >= 0 ? x[this.col.index]! : 0));
+    junction(vbe, this.is, this.vt);
+    out[at] = junctionOut[0]!;
+    junction(vbc, this.is, this.vt);
+    out[at + 1] = junctionOut[0]!;
+  }
+
+  prime(x: Float64Array, saved?: Float64Array, at = 0): void {
+    const bi = this.base.index;
+    const vb = bi >= 0 ? x[bi]! : 0;
+    const vbe = this.p * (vb - (this.emi.index >= 0 ? x[this.emi.index]! : 0));
+    const vbc = this.p * (vb - (this.col.index >= 0 ? x[this.col.index]! : 0));
+    this.lastVbe = saved ? warmJunctionVoltage(vbe, saved[at]!, this.is, this.vt, this.vcrit) : vbe;
+    this.lastVbc = saved ? warmJunctionVoltage(vbc, saved[at + 1]!, this.is, this.vt, this.vcrit) : vbc;
+    this.primed = this.lastVbe !== vbe || this.lastVbc !== vbc;
   }
 
   reset(): void {
     this.lastVbe = this.vcrit;
     this.lastVbc = 0;
+    this.primed = false;
   }
 
   stampNonlinear(x: Float64Array, mt: StampTarget, st: IterationState): void {
@@ -166,6 +185,12 @@ class BjtInstance implements DeviceInstance {
     if (st.init) {
       vbe = vcrit;
       vbc = 0;
+    } else if (this.primed) {
+      // First pass of a warm start: at the primed voltages, which are not x's (so no convergence on it).
+      vbe = this.lastVbe;
+      vbc = this.lastVbc;
+      this.primed = false;
+      st.limited = true;
     } else {
       const vb = bi >= 0 ? x[bi]! : 0;
       const vbeNew = p * (vb - (ei >= 0 ? x[ei]! : 0));

@@ -159,10 +159,20 @@ export interface DeviceInstance {
   /** Forget limiting state (start of a new continuation from the initial guess). */
   reset?(): void;
   /**
+   * Numbers the device keeps from a solved point for later warm starts (its junction currents),
+   * written by saveWarm at out[at …] and handed back to prime.
+   */
+  readonly warmSize?: number;
+  saveWarm?(x: Float64Array, out: Float64Array, at: number): void;
+  /**
    * Take the controlling voltages at x as the limiting reference (a warm start from a nearby
    * solved point), so that the first Newton pass is not limited back toward the reset state.
+   * With `saved` (what saveWarm kept at that point): a conducting junction is first evaluated
+   * at the voltage that carries the saved current under this circuit's own model (temperature,
+   * saturation current), instead of at x's voltage, where a sample at another temperature
+   * would find its current off by decades.
    */
-  prime?(x: Float64Array): void;
+  prime?(x: Float64Array, saved?: Float64Array, at?: number): void;
   /** The operating-point record at the solved x (sourceScale is 1 at the end of a solve). */
   point(x: Float64Array): DevicePoint | SourcePoint;
 }

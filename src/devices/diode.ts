@@ -5,7 +5,7 @@
 // breakdown voltage (a Zener) adds its reverse breakdown branch (breakdown.ts) to the junction.
 import type { Diode, DiodeModel } from "../circuit/types.js";
 import type { DiodePoint } from "../solve/types.js";
-import { criticalVoltage, limitJunction } from "../solve/limiting.js";
+import { criticalVoltage, limitJunction, warmJunctionVoltage } from "../solve/limiting.js";
 import {
   DeviceSetupError,
   stampConductance,
@@ -44,6 +44,8 @@ export function diode(c: Diode, ctx: SetupContext): DeviceInstance {
   const off: number[] = [-1, -1, -1, -1];
   let offN = -1;
   const last = Float64Array.of(vcrit);
+  // The next pass evaluates at last[0] as primed from a warm start, not at x.
+  let primed = false;
 
   const evaluate = (v: number): void => {
     junction(v, is, nvt);
@@ -65,15 +67,32 @@ export function diode(c: Diode, ctx: SetupContext): DeviceInstance {
     },
     reset() {
       last[0] = vcrit;
+      primed = false;
     },
-    prime(x: Float64Array) {
-      last[0] = volt(x, inner) - volt(x, cathode.index);
+    warmSize: 1,
+    saveWarm(x: Float64Array, out: Float64Array, at: number) {
+      // The Shockley current alone (leakage and breakdown excluded).
+      junction(volt(x, inner) - volt(x, cathode.index), is, nvt);
+      out[at] = junctionOut[0]!;
+    },
+    prime(x: Float64Array, saved?: Float64Array, at = 0) {
+      const v = volt(x, inner) - volt(x, cathode.index);
+      last[0] = saved ? warmJunctionVoltage(v, saved[at]!, is, nvt, vcrit) : v;
+      primed = last[0] !== v;
     },
     stampNonlinear(x: Float64Array, m: StampTarget, st: IterationState) {
-      let v = st.init ? vcrit : volt(x, inner) - volt(x, cathode.index);
-      const vl = limitJunction(v, last[0]!, nvt, vcrit);
-      if (vl !== v) st.limited = true;
-      v = vl;
+      let v: number;
+      if (primed) {
+        // First pass of a warm start: at the primed voltage, which is not x's.
+        v = last[0]!;
+        primed = false;
+        st.limited = true;
+      } else {
+        v = st.init ? vcrit : volt(x, inner) - volt(x, cathode.index);
+        const vl = limitJunction(v, last[0]!, nvt, vcrit);
+        if (vl !== v) st.limited = true;
+        v = vl;
+      }
       last[0] = v;
       evaluate(v);
       const i = junctionOut[0]!;

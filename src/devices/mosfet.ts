@@ -59,6 +59,9 @@ class MosInstance implements DeviceInstance {
   // place (unlike a closure's variables), so the Newton loop allocates nothing.
   private lastVgs = 0;
   private lastVds = 0;
+  /** The next pass evaluates at lastVgs as primed from a warm start, not at x's vgs. */
+  private primed = false;
+  readonly warmSize = 1;
   // Scratch of one evaluation.
   private id_ = 0; // normalised current into the drain
   private gm = 0; // ∂ID/∂vgs
@@ -177,15 +180,54 @@ class MosInstance implements DeviceInstance {
     g[11] = -this.gmb;
   }
 
-  prime(x: Float64Array): void {
+  /** The channel current at x (normalised, leakage excluded); 0 unless conducting forward. */
+  saveWarm(x: Float64Array, out: Float64Array, at: number): void {
     const vs = this.sr.index >= 0 ? x[this.sr.index]! : 0;
-    this.lastVgs = this.p * ((this.gt.index >= 0 ? x[this.gt.index]! : 0) - vs);
-    this.lastVds = this.p * ((this.dr.index >= 0 ? x[this.dr.index]! : 0) - vs);
+    const p = this.p;
+    const vgs = p * ((this.gt.index >= 0 ? x[this.gt.index]! : 0) - vs);
+    const vds = p * ((this.dr.index >= 0 ? x[this.dr.index]! : 0) - vs);
+    const vbs = p * ((this.bd.index >= 0 ? x[this.bd.index]! : 0) - vs);
+    if (vds < 0) {
+      out[at] = 0;
+      return;
+    }
+    this.forward(vgs, vds, vbs);
+    out[at] = this.id_;
+  }
+
+  /**
+   * With `saved`, a device that conducted forward there is first evaluated at the vgs that
+   * carries the saved current under this circuit's threshold and k′ (the square law solved for
+   * the overdrive, in saturation or, below it, in triode), like a junction (see DeviceInstance).
+   */
+  prime(x: Float64Array, saved?: Float64Array, at = 0): void {
+    const vs = this.sr.index >= 0 ? x[this.sr.index]! : 0;
+    const p = this.p;
+    const vgs = p * ((this.gt.index >= 0 ? x[this.gt.index]! : 0) - vs);
+    const vds = p * ((this.dr.index >= 0 ? x[this.dr.index]! : 0) - vs);
+    this.lastVgs = vgs;
+    this.lastVds = vds;
+    this.primed = false;
+    const current = saved ? saved[at]! : 0;
+    if (!(current > 0) || !(vds >= 0)) return;
+    const vbs = p * ((this.bd.index >= 0 ? x[this.bd.index]! : 0) - vs);
+    this.forward(vgs, vds, vbs);
+    const clm = 1 + this.clmCoeff * vds;
+    const beta = this.kn * clm;
+    if (!(beta > 0)) return;
+    // Saturation: ID = ½β·Vov²; triode (Vov > vds): ID = β(Vov·vds − vds²/2).
+    let vov = Math.sqrt((2 * current) / beta);
+    if (vov > vds && vds > 0) vov = current / (beta * vds) + vds / 2;
+    const primedVgs = this.vt + vov;
+    if (!Number.isFinite(primedVgs) || primedVgs === vgs) return;
+    this.lastVgs = primedVgs;
+    this.primed = true;
   }
 
   reset(): void {
     this.lastVgs = 0;
     this.lastVds = 0;
+    this.primed = false;
   }
 
   stampNonlinear(x: Float64Array, mt: StampTarget, st: IterationState): void {
@@ -198,7 +240,12 @@ class MosInstance implements DeviceInstance {
     let vgs = st.init ? 0 : p * ((gi >= 0 ? x[gi]! : 0) - vs);
     let vds = st.init ? 0 : p * ((di >= 0 ? x[di]! : 0) - vs);
     const vbs = st.init ? 0 : p * ((bi >= 0 ? x[bi]! : 0) - vs);
-    if (!st.init) {
+    if (this.primed) {
+      // First pass of a warm start: at the primed vgs, which is not x's (so no convergence on it).
+      vgs = this.lastVgs;
+      this.primed = false;
+      st.limited = true;
+    } else if (!st.init) {
       const vgsLast = this.lastVgs;
       const vdsLast = this.lastVds;
       const vgsL = limitStep(vgs, vgsLast, vgsLast - this.vt0, MOS_VGS_STEP_MIN, MOS_VGS_STEP_RELATIVE);

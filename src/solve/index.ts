@@ -39,6 +39,13 @@ export interface SolveOptions {
 
 export interface WarmStart {
   x: Float64Array | null;
+  /**
+   * What the nonlinear devices kept from that point (their junction currents, DeviceInstance
+   * saveWarm), in plan order; set with x. A sample at another temperature finds its junction
+   * currents off by decades at x's voltages, and Newton then spent 5–15 iterations on the way
+   * back; evaluated first at the voltages that carry these currents, it lands within a few mV.
+   */
+  state?: Float64Array | null;
 }
 
 /** Iterations a warm start may take before the solve falls back to the cold path. */
@@ -75,9 +82,12 @@ function solve(circuit: Circuit, options: SolveOptions): SolveResult {
   const warm = options.warmStart;
   if (warm?.x && warm.x.length === plan.n && first === 0) {
     plan.x.set(warm.x);
+    const saved = warm.state && warm.state.length === warmStateSize(plan) ? warm.state : undefined;
+    let at = 0;
     for (const d of plan.nonlinear) {
       d.reset?.();
-      d.prime?.(plan.x);
+      d.prime?.(plan.x, saved, at);
+      at += d.warmSize ?? 0;
     }
     newton(plan, solver, { gmin: 0, sourceScale: 1, init: false, maxIterations: Math.min(WARM_ITERATION_CAP, cap), polish: true }, rec);
     total.iterations += rec.iterations;
@@ -105,11 +115,30 @@ function solve(circuit: Circuit, options: SolveOptions): SolveResult {
     if (ok) {
       const op = readOperatingPoint(plan, { iterations: total.iterations, residual: rec.residual, aid });
       if ("bad" in op) return failure(`the solve produced a non-finite value at ${op.bad}`, [], [], aid, total.iterations, rec.residual);
-      if (warm && !warm.x) warm.x = Float64Array.from(plan.x);
+      if (warm && !warm.x) {
+        warm.x = Float64Array.from(plan.x);
+        warm.state = saveWarmState(plan);
+      }
       return implausible(circuit, plan, op) ?? op;
     }
   }
   return nonConvergence(plan, rec, lastStatus, singular, total.iterations);
+}
+
+function warmStateSize(plan: Plan): number {
+  let size = 0;
+  for (const d of plan.nonlinear) size += d.warmSize ?? 0;
+  return size;
+}
+
+function saveWarmState(plan: Plan): Float64Array {
+  const out = new Float64Array(warmStateSize(plan));
+  let at = 0;
+  for (const d of plan.nonlinear) {
+    d.saveWarm?.(plan.x, out, at);
+    at += d.warmSize ?? 0;
+  }
+  return out;
 }
 
 function failure(
