@@ -5,7 +5,7 @@ import { bjt } from "../devices/bjt.js";
 import { capacitor } from "../devices/capacitor.js";
 import { currentControlled, voltageControlled } from "../devices/controlled.js";
 import { currentSource } from "../devices/current-source.js";
-import { DeviceSetupError, EntryList, TouchedList, type DeviceInstance, type SetupContext, type StampTarget } from "../devices/device.js";
+import { DeviceSetupError, EntryList, TouchedList, type BindContext, type DeviceInstance, type SetupContext, type StampTarget } from "../devices/device.js";
 import { diode } from "../devices/diode.js";
 import { inductor } from "../devices/inductor.js";
 import { mosfet } from "../devices/mosfet.js";
@@ -108,7 +108,26 @@ export const SPARSE_MIN_UNKNOWNS = 250;
 
 export type MatrixStorage = "dense" | "sparse" | "auto";
 
-export function compilePlan(circuit: Circuit, storage: MatrixStorage = "auto"): CompileResult {
+/** The node unknowns of a circuit's node list: what every plan of that list starts from. */
+interface NodeTable {
+  readonly ground: string;
+  readonly nodeIndex: ReadonlyMap<string, number>;
+  readonly nodeNames: readonly string[];
+  readonly nodeSlots: readonly number[];
+  readonly unknowns: readonly Unknown[];
+}
+
+/**
+ * Node tables by node list. A circuit's node list is immutable and every scenario of it (a
+ * corner, a Monte Carlo sample: other values, same topology) shares it, so the name → unknown
+ * map is built once per list (at 3,000 nodes it was ~5 % of a solve). A plan that meets a pin on
+ * a node the list lacks copies the table before adding to it.
+ */
+const nodeTables = new WeakMap<readonly string[], NodeTable>();
+
+function nodeTableOf(circuit: Circuit): NodeTable {
+  const known = nodeTables.get(circuit.nodes);
+  if (known && known.ground === circuit.ground) return known;
   const unknowns: Unknown[] = [];
   const nodeIndex = new Map<string, number>();
   const nodeNames: string[] = [];
@@ -120,6 +139,18 @@ export function compilePlan(circuit: Circuit, storage: MatrixStorage = "auto"): 
     nodeSlots.push(unknowns.length);
     unknowns.push({ kind: "node", name });
   }
+  const table: NodeTable = { ground: circuit.ground, nodeIndex, nodeNames, nodeSlots, unknowns };
+  nodeTables.set(circuit.nodes, table);
+  return table;
+}
+
+export function compilePlan(circuit: Circuit, storage: MatrixStorage = "auto"): CompileResult {
+  const table = nodeTableOf(circuit);
+  const unknowns: Unknown[] = table.unknowns.slice();
+  let nodeIndex = table.nodeIndex as Map<string, number>;
+  let nodeNames = table.nodeNames as string[];
+  let nodeSlots = table.nodeSlots as number[];
+  let shared = true;
   const ctx: SetupContext = {
     circuit,
     temperature: circuit.temperature,
@@ -127,7 +158,14 @@ export function compilePlan(circuit: Circuit, storage: MatrixStorage = "auto"): 
       if (name === circuit.ground) return -1;
       let i = nodeIndex.get(name);
       if (i === undefined) {
-        // A pin on a node the loader did not list: still solvable, so give it an unknown.
+        // A pin on a node the loader did not list: still solvable, so give it an unknown (in a
+        // copy of the shared node table).
+        if (shared) {
+          nodeIndex = new Map(nodeIndex);
+          nodeNames = nodeNames.slice();
+          nodeSlots = nodeSlots.slice();
+          shared = false;
+        }
         i = unknowns.length;
         nodeIndex.set(name, i);
         nodeNames.push(name);
@@ -147,19 +185,25 @@ export function compilePlan(circuit: Circuit, storage: MatrixStorage = "auto"): 
     model: (id) => circuit.models.get(id),
   };
   const devices: DeviceInstance[] = [];
-  const byId = new Map<string, DeviceInstance>();
   try {
-    for (const c of circuit.components) {
-      const d = instantiate(c, ctx);
-      devices.push(d);
-      byId.set(c.id, d);
-    }
+    for (const c of circuit.components) devices.push(instantiate(c, ctx));
   } catch (err) {
     if (err instanceof DeviceSetupError) return { ok: false, reason: err.message, parts: err.parts };
     throw err;
   }
+  // Devices by id, built only when a current-controlled source asks (most circuits have none).
+  let byId: Map<string, DeviceInstance> | undefined;
+  const bind: BindContext = {
+    sensedCurrent(id) {
+      if (!byId) {
+        byId = new Map();
+        for (let k = 0; k < devices.length; k++) byId.set(circuit.components[k]!.id, devices[k]!);
+      }
+      return byId.get(id)?.sensed;
+    },
+  };
   for (const d of devices) {
-    const msg = d.bind?.({ sensedCurrent: (id) => byId.get(id)?.sensed });
+    const msg = d.bind?.(bind);
     if (msg !== undefined) return { ok: false, reason: msg, parts: [d.id] };
   }
   const n = unknowns.length;
