@@ -100,11 +100,13 @@ function instantiate(c: Component, ctx: SetupContext): DeviceInstance {
 }
 
 /**
- * From this many unknowns on, a plan stores its matrices sparse (sparse-lu.ts); below it dense,
- * where scanning n² entries is cheaper than following index lists. Measured side by side on the
- * bench chains (bench/solve.ts).
+ * From this many unknowns on, a plan stores its matrices sparse (sparse-lu.ts); below it dense.
+ * Measured side by side on the bench chains (CPU per solve, dense/sparse, 2026-12-02): 0.97× at
+ * 11 unknowns, 1.00–1.02× at 20–50, 1.06× at 65, 1.12× at 101, 1.49× at 302 — sparse wins by
+ * more than the noise from here on. (It was 250 while the sparse path rebuilt its layout on every
+ * solve and took 17 Newton iterations at 300 nodes: sparse was then 0.84× dense at 302.)
  */
-export const SPARSE_MIN_UNKNOWNS = 250;
+export const SPARSE_MIN_UNKNOWNS = 64;
 
 export type MatrixStorage = "dense" | "sparse" | "auto";
 
