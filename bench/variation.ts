@@ -5,10 +5,11 @@
 import { pathToFileURL } from "node:url";
 import { readdirSync } from "node:fs";
 import { join } from "node:path";
+import { loadavg } from "node:os";
 import { BUILTIN_RULES } from "../rules/index.js";
 import { loadCircuitFile } from "../src/circuit/index.js";
 import type { Circuit, Component, Model } from "../src/circuit/types.js";
-import { runVariation } from "../src/pipeline/variation.js";
+import { runVariation, type StageTimes } from "../src/pipeline/variation.js";
 import { RuleSession, type ConfiguredRule } from "../src/review/engine.js";
 import { solveOperatingPoint, type WarmStart } from "../src/solve/index.js";
 import { sampleValues } from "../src/variation/monte-carlo.js";
@@ -20,6 +21,8 @@ const AMBIENT = { min: 273.15 - 20, max: 273.15 + 60 };
 const SAMPLES = 1000;
 /** Target from the issue: 1,000 samples of the 30-node circuit. */
 export const TARGET_MC_MS = 150;
+/** Whole-check runs of the Monte Carlo: the first (JIT warm-up of its loop) and the median of the rest. */
+const PIPELINE_RUNS = 6;
 
 /** The generated chain with 5 % resistors, a 5 % supply and datasheet-like spreads. */
 export function tolerancedChain(nodes: number): Circuit {
@@ -72,12 +75,29 @@ function monteCarloSolves(circuit: Circuit, warm: boolean): { ms: number; iterat
   return { ms: performance.now() - t0, iterations, failed };
 }
 
-async function monteCarloPipeline(circuit: Circuit): Promise<{ ms: number; iterations: number; yield: number }> {
+interface PipelineRun {
+  readonly ms: number;
+  readonly cpuMs: number;
+  readonly iterations: number;
+  readonly yield: number;
+  readonly times: StageTimes;
+}
+
+async function monteCarloPipeline(circuit: Circuit): Promise<PipelineRun> {
   const session = new RuleSession({ circuit, rules: rules() });
+  const cpu0 = process.cpuUsage();
   const t0 = performance.now();
   const v = await runVariation(circuit, { mode: "monte-carlo", samples: SAMPLES, seed: 1, temperature: AMBIENT }, session, 2);
   session.finish();
-  return { ms: performance.now() - t0, iterations: v.monteCarlo!.iterations, yield: v.monteCarlo!.yield };
+  const ms = performance.now() - t0;
+  const cpu = process.cpuUsage(cpu0);
+  return { ms, cpuMs: (cpu.user + cpu.system) / 1000, iterations: v.monteCarlo!.iterations, yield: v.monteCarlo!.yield, times: v.times };
+}
+
+function median(xs: readonly number[]): number {
+  const s = [...xs].sort((a, b) => a - b);
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m]! : (s[m - 1]! + s[m]!) / 2;
 }
 
 export async function benchVariation(): Promise<void> {
@@ -104,13 +124,24 @@ export async function benchVariation(): Promise<void> {
   monteCarloSolves(chain, true);
   const cold = monteCarloSolves(chain, false);
   const warm = monteCarloSolves(chain, true);
-  const pipe = await monteCarloPipeline(chain);
+  // The whole check, run PIPELINE_RUNS times in this process: the first run carries the JIT
+  // warm-up of the Monte Carlo loop itself; the median is the steady figure the target is about.
+  const runs: PipelineRun[] = [];
+  for (let i = 0; i < PIPELINE_RUNS; i++) runs.push(await monteCarloPipeline(chain));
+  const steady = runs.slice(1);
+  const pipe = steady.find((r) => r.ms === median(steady.map((x) => x.ms)))!;
   console.log("| run | ms | Newton iterations | per sample | non-converged |");
   console.log("|---|---:|---:|---:|---:|");
   console.log(`| bias solves, each from zero (before) | ${cold.ms.toFixed(1)} | ${cold.iterations} | ${(cold.iterations / SAMPLES).toFixed(2)} | ${cold.failed} |`);
   console.log(`| bias solves, warm-started from nominal | ${warm.ms.toFixed(1)} | ${warm.iterations} | ${(warm.iterations / SAMPLES).toFixed(2)} | ${warm.failed} |`);
-  console.log(`| whole check (solve, small-signal, every built-in rule, statistics) | ${pipe.ms.toFixed(1)} | ${pipe.iterations} | ${(pipe.iterations / SAMPLES).toFixed(2)} | yield ${(100 * pipe.yield).toFixed(1)} % |`);
-  console.log(`\nwarm/cold time ratio ${(warm.ms / cold.ms).toFixed(2)}; target for ${SAMPLES} samples: ≤ ${TARGET_MC_MS} ms.`);
+  console.log(`| whole check (solve, small-signal, every built-in rule, statistics), first run | ${runs[0]!.ms.toFixed(1)} | ${runs[0]!.iterations} | ${(runs[0]!.iterations / SAMPLES).toFixed(2)} | yield ${(100 * runs[0]!.yield).toFixed(1)} % |`);
+  console.log(`| whole check, median of the next ${steady.length} runs (${steady.map((r) => r.ms.toFixed(0)).join(", ")} ms) | ${pipe.ms.toFixed(1)} | ${pipe.iterations} | ${(pipe.iterations / SAMPLES).toFixed(2)} | yield ${(100 * pipe.yield).toFixed(1)} % |`);
+  const t = pipe.times;
+  const other = pipe.ms - t.solve - t.smallSignal - t.rules;
+  const us = (ms: number): string => ((1000 * ms) / SAMPLES).toFixed(1);
+  console.log(`\nPer sample, median run (${SAMPLES} samples): ${us(pipe.ms)} µs = solve ${us(t.solve)} + small-signal ${us(t.smallSignal)} + rules ${us(t.rules)} + sampling, scenario records and statistics ${us(other)} µs; CPU ${pipe.cpuMs.toFixed(0)} ms for ${pipe.ms.toFixed(0)} ms wall.`);
+  console.log(`warm/cold time ratio ${(warm.ms / cold.ms).toFixed(2)}; Newton iterations ${cold.iterations} from zero → ${warm.iterations} warm-started.`);
+  console.log(`Target: ${SAMPLES} samples, whole check ≤ ${TARGET_MC_MS} ms: ${pipe.ms <= TARGET_MC_MS ? "met" : "missed"} (median ${pipe.ms.toFixed(1)} ms; first run ${runs[0]!.ms.toFixed(1)} ms). Load average ${loadavg().map((x) => x.toFixed(2)).join(", ")}.`);
 }
 
 if (import.meta.url === pathToFileURL(process.argv[1] ?? "").href) await benchVariation();

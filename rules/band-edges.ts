@@ -38,9 +38,9 @@ sees), or correct the band if it was specified wider than the product needs.`,
       report.fail({
         subject: m.subject,
         message: `gain \`${m.spec.name}\` at band.${m.edge} (${formatQuantity(m.frequency, "Hz")}) is ${formatQuantity(m.relativeDb, "dB")} from midband, beyond the ${formatQuantity(BAND_EDGE_DB, "dB")} of a band edge: ${text}`,
-        ...check,
         hint,
         pos: m.spec.pos,
+        ...check,
       });
     }
   },

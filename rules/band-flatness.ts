@@ -46,9 +46,9 @@ How to fix: change the capacitor the finding names to the value it gives, or rel
       report.fail({
         subject: m.subject,
         message: `gain \`${m.spec.name}\` at band.${m.edge} (${formatQuantity(m.frequency, "Hz")}) is ${formatQuantity(m.relativeDb, "dB")} from midband; at most ±${formatQuantity(options.flatnessDb, "dB")} is allowed: ${text}`,
-        ...check,
         hint,
         pos: m.spec.pos,
+        ...check,
       });
     }
   },

@@ -43,8 +43,8 @@ Option: \`allowance\` (0.5 V, common practice).`,
         report.fail({
           subject: c.id,
           message: `polarised capacitor ${c.id} is reverse-biased by ${formatQuantity(reverse, "V")} (its + terminal on ${c.positive} is the lower side); allowed ${formatQuantity(options.allowance, "V")}`,
-          ...check,
           hint: `turn it round (positive: ${c.positive === c.pins.a ? c.pins.b : c.pins.a}) or use a non-polarised capacitor`,
+          ...check,
         });
     }
   },

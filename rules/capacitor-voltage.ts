@@ -48,8 +48,8 @@ DC across it.`,
         report.fail({
           subject: c.id,
           message: `${c.id} has ${formatQuantity(v, "V")} DC across it; allowed ${formatQuantity(allowed, "V")} (${Math.round(options.fraction * 100)}% of its ${formatQuantity(c.voltageRating, "V")} rating)`,
-          ...check,
           hint: "use a capacitor with a higher voltageRating",
+          ...check,
         });
     }
   },

@@ -51,8 +51,8 @@ Options: \`copperTempco\` (default 0.00393 per K, copper), \`datasheetTemperatur
           report.fail({
             subject: c.id,
             message: `coil ${c.id} carries ${formatQuantity(current, "A")} ${at}; it needs ${formatQuantity(c.mustOperateCurrent, "A")} to operate for sure`,
-            ...check,
             hint: "drive the coil harder (less series resistance, a driver further into saturation, a higher supply) or use a coil with a lower must-operate value",
+            ...check,
           });
       }
       if (c.mustOperateVoltage !== undefined) {
@@ -64,8 +64,8 @@ Options: \`copperTempco\` (default 0.00393 per K, copper), \`datasheetTemperatur
           report.fail({
             subject: c.id,
             message: `coil ${c.id} has ${formatQuantity(voltage, "V")} across it ${at}; it needs ${formatQuantity(needed, "V")} there (must-operate ${formatQuantity(c.mustOperateVoltage, "V")} at ${options.datasheetTemperatureC} °C, copper warmer by ${((warm - 1) * 100).toFixed(1)}%)`,
-            ...check,
             hint: "drive the coil harder (less series resistance, a driver further into saturation, a higher supply) or use a coil with a lower must-operate voltage",
+            ...check,
           });
       }
     }

@@ -47,12 +47,12 @@ How to fix: change the emitter (source) resistor or the bias network that sets t
       if (spec.maxCurrent !== undefined) {
         const check = { measured: value, limit: spec.maxCurrent, unit: "A", bound: "max" as const };
         if (value <= spec.maxCurrent) report.pass(spec.device, check);
-        else report.fail({ subject: spec.device, message: `${spec.device} ${name} is ${formatQuantity(value, "A")}, above its maximum of ${formatQuantity(spec.maxCurrent, "A")}`, ...check, hint: "raise the emitter (source) resistor or lower the bias voltage" });
+        else report.fail({ subject: spec.device, message: `${spec.device} ${name} is ${formatQuantity(value, "A")}, above its maximum of ${formatQuantity(spec.maxCurrent, "A")}`, hint: "raise the emitter (source) resistor or lower the bias voltage", ...check });
       }
       if (spec.minCurrent !== undefined) {
         const check = { measured: value, limit: spec.minCurrent, unit: "A", bound: "min" as const };
         if (value >= spec.minCurrent) report.pass(spec.device, check);
-        else report.fail({ subject: spec.device, message: `${spec.device} ${name} is ${formatQuantity(value, "A")}, below its minimum of ${formatQuantity(spec.minCurrent, "A")}`, ...check, hint: "lower the emitter (source) resistor or raise the bias voltage" });
+        else report.fail({ subject: spec.device, message: `${spec.device} ${name} is ${formatQuantity(value, "A")}, below its minimum of ${formatQuantity(spec.minCurrent, "A")}`, hint: "lower the emitter (source) resistor or raise the bias voltage", ...check });
       }
     }
   },

@@ -46,8 +46,8 @@ resistance, a lower supply), or choose a device with a higher rating.`,
         report.fail({
           subject: c.id,
           message: `${c.id} dissipates ${formatQuantity(point.power, "W")}; allowed ${formatQuantity(allowed, "W")} (${Math.round(options.fraction * 100)}% of ${formatQuantity(rating, "W")}${derate < 1 ? ` derated to ${ambient.toFixed(0)} °C` : ""})`,
-          ...check,
           hint: "lower the device's current or the voltage across it, or use a device with a higher rating",
+          ...check,
         });
     }
   },

@@ -113,8 +113,8 @@ circuit file may override both.`,
         message:
           `${c.id} ${worst.quantity} is ${formatQuantity(worst.measured, worst.unit)}; allowed ${formatQuantity(worst.allowed, worst.unit)} (${Math.round(fraction * 100)}% of its ${worst.rating} rating of ${formatQuantity(worst.max, worst.unit)})` +
           (others.length ? `; also ${others.join(", ")}` : ""),
-        ...check,
         hint: worst.unit === "V" ? "lower the voltage across the part (supply, divider, clamp) or choose a part with a higher rating" : "limit the current (more series or emitter/source resistance) or choose a part rated for more",
+        ...check,
       });
     }
   },

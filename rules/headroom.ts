@@ -58,10 +58,10 @@ Options: \`bjt\` (V, default 0.5) and \`mos\` (V, default 0.3); a circuit file m
       report.fail({
         subject: c.id,
         message: `${c.id} (${c.kind}) has ${formatQuantity(point.headroom, "V")} of headroom to the ${edge}; at least ${formatQuantity(limit, "V")} is required`,
-        ...check,
         hint: isBjt
           ? "raise |VCE|: reduce the collector resistor, reduce the bias current (less base drive or a larger emitter resistor), or raise the supply"
           : "raise |VDS| or lower |Vov|: reduce the drain resistor, reduce the bias current (less gate drive |VGS| or a larger source resistor), or raise the supply",
+        ...check,
       });
     }
   },

@@ -43,7 +43,6 @@ buffer stage, or correct the window.`,
         report.fail({
           subject,
           message: `gain \`${spec.name}\` has a midband ${side} impedance of ${shown}, ${verdict.bound === "max" ? "above" : "below"} its ${verdict.bound} of ${formatQuantity(verdict.limit, "Ω")}${side === "input" ? " (seen by the ideal input source, source resistance in the circuit included)" : " (input zeroed, the circuit's load included)"}`,
-          ...check,
           hint:
             side === "input"
               ? verdict.bound === "min"
@@ -53,6 +52,7 @@ buffer stage, or correct the window.`,
                 ? "lower the output impedance: a smaller collector/drain resistor, feedback, or a follower stage"
                 : "raise the output impedance: series resistance at the output or a larger collector/drain resistor",
           pos: spec.pos,
+          ...check,
         });
       }
     }

@@ -33,9 +33,9 @@ the window.`,
       report.fail({
         subject: spec.node,
         message: `node \`${spec.node}\` sits at ${formatQuantity(v, "V")}, ${verdict.bound === "max" ? "above" : "below"} its ${verdict.bound} of ${formatQuantity(verdict.limit, "V")}`,
-        ...check,
         hint: "adjust the divider, reference or feedback resistors that set this level, or correct the window",
         pos: spec.pos,
+        ...check,
       });
     }
   },

@@ -46,10 +46,10 @@ meant to switch, name its region in specs.devices.`,
           continue;
         }
         report.fail({
-          ...check,
           subject: c.id,
           message: `${c.id} (${c.kind}) is in ${point.region}, expected ${wanted}${spec?.region ? " (specs.devices)" : " (its amplifying region)"}`,
           hint: wanted === REGIONS[c.kind][0] ? "re-bias the stage so that it amplifies, or name the intended region in specs.devices" : "re-bias the device into the region its spec names",
+          ...check,
         });
       }
     }

@@ -73,8 +73,8 @@ Options: \`fraction\` (default 0.5; a circuit file may override it), \`fullRatin
       report.fail({
         subject: c.id,
         message: `${c.id} dissipates ${formatQuantity(check.measured, "W")}; allowed ${formatQuantity(allowed, "W")}${at} (${Math.round(options.fraction * 100)}% of ${formatQuantity(rating, "W")}, ${source})`,
-        ...check,
         hint: "spread the power: a larger package or a part rated higher (give its real powerRating), or change the resistance (higher if the voltage across it is fixed, lower if the current through it is)",
+        ...check,
       });
     }
   },

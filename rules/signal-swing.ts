@@ -66,9 +66,9 @@ VCE − saturation edge ≈ IC·(RC ‖ RL)).`,
       report.fail({
         subject: spec.name,
         message: `gain \`${spec.name}\` clips at its stated ${formatQuantity(amplitude, fit.inputUnit)} peak input: ${describe(first, amplitude)}; the largest input that fits is ${formatQuantity(first.maxInput, fit.inputUnit)} peak`,
-        ...check,
         hint: first.side === "cutoff" ? `raise ${first.subject}'s bias current or lower the gain or the input amplitude` : first.side.endsWith("rail") ? "lower the gain or the input amplitude, or centre the output's DC level between the rails" : `move ${first.subject}'s quiescent point away from the ${first.side} edge (more headroom), or lower the gain or the input amplitude`,
         pos: spec.pos,
+        ...check,
       });
     }
   },

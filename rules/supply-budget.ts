@@ -27,13 +27,13 @@ extra current is intended.`,
         const i = Math.abs(point.current);
         const check = { measured: i, limit: spec.maxCurrent, unit: "A", bound: "max" as const };
         if (i <= spec.maxCurrent) report.pass(spec.source, check);
-        else report.fail({ subject: spec.source, message: `${spec.source} delivers ${formatQuantity(i, "A")}, over its budget of ${formatQuantity(spec.maxCurrent, "A")}`, ...check, hint: "reduce the quiescent current of the stages on this supply, or raise the budget" });
+        else report.fail({ subject: spec.source, message: `${spec.source} delivers ${formatQuantity(i, "A")}, over its budget of ${formatQuantity(spec.maxCurrent, "A")}`, hint: "reduce the quiescent current of the stages on this supply, or raise the budget", ...check });
       }
       if (spec.maxPower !== undefined) {
         const p = Math.abs(point.power);
         const check = { measured: p, limit: spec.maxPower, unit: "W", bound: "max" as const };
         if (p <= spec.maxPower) report.pass(spec.source, check);
-        else report.fail({ subject: spec.source, message: `${spec.source} delivers ${formatQuantity(p, "W")}, over its budget of ${formatQuantity(spec.maxPower, "W")}`, ...check, hint: "reduce the quiescent current of the stages on this supply, or raise the budget" });
+        else report.fail({ subject: spec.source, message: `${spec.source} delivers ${formatQuantity(p, "W")}, over its budget of ${formatQuantity(spec.maxPower, "W")}`, hint: "reduce the quiescent current of the stages on this supply, or raise the budget", ...check });
       }
     }
   },

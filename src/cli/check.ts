@@ -8,16 +8,16 @@ import { isAbsolute, relative, resolve, sep } from "node:path";
 import type { InputError } from "../circuit/types.js";
 import type { CheckContext, CheckContextOptions } from "../pipeline/check-file.js";
 import { renderAnnotations } from "../report/annotations.js";
-import { diffDocuments, type BaselineDiff } from "../report/baseline.js";
+import { diffDocuments } from "../report/baseline.js";
 import { exitCodeFor } from "../report/build.js";
 import { colourEnabled, progressFrame, renderConsole, terminalText } from "../report/console.js";
 import type { ResultsDocument, Severity } from "../report/document.js";
+import type { ReportDocument } from "../report/outline.js";
 import { renderJson } from "../report/json.js";
 import { renderJunit } from "../report/junit.js";
 import { renderMarkdown, truncateMarkdown } from "../report/markdown.js";
 import { renderSarif, type SarifOptions } from "../report/sarif.js";
 import { renderHtml } from "../report/html.js";
-import { chartFileName, renderCircuitSvg } from "../report/svg-chart.js";
 import { DocumentError, readDocument } from "../report/validate.js";
 import { makeCheckContext } from "../run/context.js";
 import { discover, DiscoveryError, type Discovery } from "../run/discover.js";
@@ -28,6 +28,7 @@ import { toolVersion } from "../run/version.js";
 import { parseShard, type Shard } from "../run/shard.js";
 import { CliExit, EXIT_INPUT, type CliIo } from "./io.js";
 import { checkOutputTargets, writeAtomically, type Input } from "./outputs.js";
+import { openReportWriters, REPORT_FORMATS, type ReportOptions } from "./stream-reports.js";
 import type { CommandSpec } from "./main.js";
 
 /** Below this many files a progress bar only flickers. */
@@ -36,13 +37,10 @@ const PROGRESS_MIN_FILES = 20;
 /** GitHub drops a step summary over 1 MiB entirely. */
 export const STEP_SUMMARY_MAX_BYTES = 1024 * 1024;
 
-const FORMATS = ["json", "junit", "markdown", "sarif", "html"] as const;
+const FORMATS = REPORT_FORMATS;
 type Format = (typeof FORMATS)[number];
 
-export interface ReportOptions {
-  readonly baseline?: BaselineDiff;
-  readonly sarif?: SarifOptions;
-}
+export type { ReportOptions } from "./stream-reports.js";
 
 /**
  * SARIF locations are resolved from the repository root: GITHUB_WORKSPACE under Actions, else the
@@ -115,7 +113,7 @@ export function writeReports(doc: ResultsDocument, targets: Partial<Record<Forma
  * Under GitHub Actions: annotations (on stdout, or stderr when a report occupies stdout — the
  * runner reads commands from both) and the markdown appended to the step summary, size-capped.
  */
-export function writeCiOutputs(doc: ResultsDocument, io: CliIo, options: ReportOptions, reportOnStdout = false): void {
+export function writeCiOutputs(doc: ReportDocument, io: CliIo, options: ReportOptions, reportOnStdout = false): void {
   if (io.env.GITHUB_ACTIONS !== "true") return;
   if (reportOnStdout) io.stderr(renderAnnotations(doc));
   else io.stdout(renderAnnotations(doc));
@@ -220,22 +218,6 @@ function outputTargets(args: Record<string, unknown>, ctx: CheckContext): Partia
   return targets;
 }
 
-/**
- * One SVG per circuit with gains, named from its display path (chartFileName: letters, digits, `.`,
- * `_`, `-`; always `.svg`, so a chart can never overwrite a circuit, config, baseline or plugin).
- */
-export function writeCharts(doc: ResultsDocument, dir: string, shown: string): void {
-  for (const c of doc.circuits) {
-    const svg = renderCircuitSvg(c);
-    if (!svg) continue;
-    try {
-      writeAtomically(resolve(dir, chartFileName(c.file)), svg);
-    } catch (err) {
-      throw new CliExit(EXIT_INPUT, `cannot write the chart of ${c.file} to ${shown}: ${err instanceof Error ? err.message : String(err)}`);
-    }
-  }
-}
-
 /** What a report must never overwrite: the circuits, the config, its plugins, the baseline. */
 function runInputs(files: readonly { abs: string; display: string }[], ctx: CheckContext, baseline: string | undefined): Input[] {
   return [
@@ -257,7 +239,7 @@ function skippedLine(skipped: readonly string[]): string {
  * The baseline restricted to the files this run checked and the circuit files deleted since the
  * reference, so that files left out by --changed-since do not show as removed.
  */
-function limitBaseline(base: ResultsDocument, head: ResultsDocument, changes: Changes, root: string): ResultsDocument {
+function limitBaseline(base: ResultsDocument, head: ReportDocument, changes: Changes, root: string): ResultsDocument {
   const keep = new Set(head.circuits.map((c) => c.file));
   for (const path of changes.deleted) keep.add(relative(root, path).split(sep).join("/"));
   return { ...base, circuits: base.circuits.filter((c) => keep.has(c.file)) };
@@ -373,29 +355,44 @@ export const checkCommand: CommandSpec = {
     const cache = openCache(args, ctx, io);
     // The bar is drawn on stderr: whether stderr is a terminal decides, not stdout.
     const showProgress = io.stderrIsTTY === true && io.env.CI !== "true" && !io.env.GITHUB_ACTIONS && files.length >= PROGRESS_MIN_FILES;
-    const doc = await runCheck(files, {
-      ctx,
-      contextOptions,
-      jobs,
-      autoJobs,
-      ...(shard ? { shard } : {}),
-      ...(args.timestamp === true ? { timestamp: new Date().toISOString() } : {}),
-      ...(showProgress ? { onProgress: progressWriter(io) } : {}),
-      onNotice: (message) => io.stderr(`opgate: ${message}\n`),
-      ...(cache ? { cache } : {}),
+    // Reports are written while results arrive (src/cli/stream-reports.ts) and moved into place at the end.
+    const writers = openReportWriters(targets, io, {
+      failOn: ctx.config.failOn,
+      ...(typeof args.charts === "string" ? { charts: { dir: resolve(io.cwd, args.charts), shown: args.charts } } : {}),
     });
-    if (showProgress) io.stderr("\n");
-    if (cache) io.stderr(`opgate: ${cache.summary()}\n`);
-    if (shard && doc.circuits.length === 0) io.stderr(`opgate: shard ${shard.index}/${shard.count} has no files (${files.length} in all)\n`);
+    let doc: ReportDocument;
+    let reportOnStdout: boolean;
+    let reportOptions: ReportOptions;
+    try {
+      doc = await runCheck(
+        files,
+        {
+          ctx,
+          contextOptions,
+          jobs,
+          autoJobs,
+          ...(shard ? { shard } : {}),
+          ...(args.timestamp === true ? { timestamp: new Date().toISOString() } : {}),
+          ...(showProgress ? { onProgress: progressWriter(io) } : {}),
+          onNotice: (message) => io.stderr(`opgate: ${message}\n`),
+          ...(cache ? { cache } : {}),
+        },
+        writers,
+      );
+      if (showProgress) io.stderr("\n");
+      if (cache) io.stderr(`opgate: ${cache.summary()}\n`);
+      if (shard && doc.circuits.length === 0) io.stderr(`opgate: shard ${shard.index}/${shard.count} has no files (${files.length} in all)\n`);
 
-    // With --changed-since the baseline is compared on what this run checked and what was deleted.
-    const baselineFor = baselineDoc && changes ? limitBaseline(baselineDoc, doc, changes, ctx.root) : baselineDoc;
-    const reportOptions: ReportOptions = {
-      ...(baselineFor ? { baseline: diffDocuments(baselineFor, doc) } : {}),
-      ...(targets.sarif ? { sarif: sarifOptionsFor(ctx.root, io.env) } : {}),
-    };
-    const reportOnStdout = writeReports(doc, targets, io, reportOptions);
-    if (typeof args.charts === "string") writeCharts(doc, resolve(io.cwd, args.charts), args.charts);
+      // With --changed-since the baseline is compared on what this run checked and what was deleted.
+      const baselineFor = baselineDoc && changes ? limitBaseline(baselineDoc, doc, changes, ctx.root) : baselineDoc;
+      reportOptions = {
+        ...(baselineFor ? { baseline: diffDocuments(baselineFor, doc) } : {}),
+        ...(targets.sarif ? { sarif: sarifOptionsFor(ctx.root, io.env) } : {}),
+      };
+      reportOnStdout = writers.finish(doc, reportOptions);
+    } finally {
+      writers.abort();
+    }
     const consoleText = renderConsole(doc, {
       color: colourEnabled(io.env, reportOnStdout ? io.stderrIsTTY === true : io.isTTY),
       quiet: args.quiet === true,

@@ -11,7 +11,7 @@ import { analyseSmallSignal } from "../smallsignal/index.js";
 import { Collector, sampleValues, wilsonInterval } from "../variation/monte-carlo.js";
 import {
   celsiusLabel,
-  circuitAt,
+  circuitMaker,
   describeSettings,
   hasBand,
   nominalValues,
@@ -34,11 +34,24 @@ import type { ScenarioAnalysis } from "./types.js";
 export const VARIATION_BUDGET = 4_000_000;
 export const BUDGET_RULE = "variation-budget";
 
+/** Time one circuit's variation spent per stage, ms (for the bench; not part of the results). */
+export interface StageTimes {
+  solve: number;
+  smallSignal: number;
+  rules: number;
+}
+
 /** Solves and linearises one scenario; a throw inside a stage becomes a solve failure, not a crash. */
-export function analyse(scenario: Scenario, warm?: WarmStart): ScenarioAnalysis {
+export function analyse(scenario: Scenario, warm?: WarmStart, times?: StageTimes): ScenarioAnalysis {
   try {
+    const t0 = times ? performance.now() : 0;
     const solve = solveOperatingPoint(scenario.circuit, warm ? { warmStart: warm } : {});
+    const t1 = times ? performance.now() : 0;
     const smallSignal = solve.ok ? analyseSmallSignal(scenario.circuit, solve) : null;
+    if (times) {
+      times.solve += t1 - t0;
+      times.smallSignal += performance.now() - t1;
+    }
     return { scenario, solve, smallSignal };
   } catch (err) {
     const reason = `internal error while solving: ${err instanceof Error ? err.message : String(err)}`;
@@ -68,17 +81,20 @@ export interface VariationOutcome {
   readonly budget: readonly { message: string; hint: string }[];
   /** Bound per quantity key, as rules reported it at nominal. */
   readonly parameters: readonly Parameter[];
+  /** Where the time went (the nominal analysis included). */
+  readonly times: StageTimes;
 }
 
 export async function runVariation(circuit: Circuit, settings: VariationSettings, session: RuleSession, failOnRank: number): Promise<VariationOutcome> {
   const warm: WarmStart = { x: null };
+  const times: StageTimes = { solve: 0, smallSignal: 0, rules: 0 };
   const nominalScenario: Scenario = { id: "nominal", label: `nominal, ${celsiusLabel(circuit.temperature)}`, circuit };
-  const nominal = analyse(nominalScenario, warm);
-  const nominalReadings = await session.judge(nominal);
+  const nominal = analyse(nominalScenario, warm, times);
+  const nominalReadings = await judged(session, nominal, times);
   const scenarios: ScenarioEntry[] = [{ id: "nominal", label: nominalScenario.label, converged: nominal.solve.ok }];
   const corners = new Map<string, CornerEntry>();
   const budget: { message: string; hint: string }[] = [];
-  const base: Omit<VariationOutcome, "nominal" | "scenarios"> = { cornerOf: (id) => corners.get(id), table: null, summary: null, monteCarlo: null, budget, parameters: [] };
+  const base: Omit<VariationOutcome, "nominal" | "scenarios"> = { cornerOf: (id) => corners.get(id), table: null, summary: null, monteCarlo: null, budget, parameters: [], times };
   if (settings.mode === "nominal" || !nominal.solve.ok) return { ...base, nominal, scenarios };
 
   const params = variationParameters(circuit, settings);
@@ -86,7 +102,8 @@ export async function runVariation(circuit: Circuit, settings: VariationSettings
   const size = Math.max(1, circuit.components.length);
   const maxAnalyses = Math.max(1, Math.floor(VARIATION_BUDGET / size));
   const at = nominalValues(params);
-  const scenarioAt = (values: Float64Array, id: string, label: string): Scenario => ({ id, label, circuit: circuitAt(circuit, params, values) });
+  const make = circuitMaker(circuit, params);
+  const scenarioAt = (values: Float64Array, id: string, label: string): Scenario => ({ id, label, circuit: make(values) });
 
   if (settings.mode === "monte-carlo") {
     const requested = Math.min(MAX_SAMPLES, Math.max(1, Math.floor(settings.samples)));
@@ -96,7 +113,7 @@ export async function runVariation(circuit: Circuit, settings: VariationSettings
         message: `Monte Carlo ran ${count} of ${requested} samples: ${requested} samples × ${size} components is over the per-circuit budget of ${VARIATION_BUDGET.toLocaleString("en")} analyses × components`,
         hint: "the yield below is from fewer samples (its interval is wider); check this circuit in its own job with fewer samples, or split it",
       });
-    const mc = await monteCarlo(circuit, params, settings.seed, count, session, scenarios, warm, failOnRank, scenarioAt);
+    const mc = await monteCarlo(params, settings.seed, count, session, scenarios, warm, failOnRank, scenarioAt, times);
     return { ...base, nominal, scenarios, parameters: params, monteCarlo: mc.entry, cornerOf: (id) => mc.corners.get(id) };
   }
 
@@ -104,9 +121,9 @@ export async function runVariation(circuit: Circuit, settings: VariationSettings
   let analyses = 0;
   const measure = async (values: Float64Array): Promise<Readings | null> => {
     analyses++;
-    const a = analyse(scenarioAt(values, "probe", "sensitivity step"), warm);
+    const a = analyse(scenarioAt(values, "probe", "sensitivity step"), warm, times);
     if (!a.solve.ok) return null;
-    return numbers(await session.measure(a));
+    return numbers(await measured(session, a, times));
   };
   // Design values without a band cost two analyses each; they are differentiated (for the hints)
   // only while that leaves most of the budget to the banded ones.
@@ -128,9 +145,9 @@ export async function runVariation(circuit: Circuit, settings: VariationSettings
     const set = settingsOf(params, values);
     const label = describeSettings(set);
     corners.set(id, { label, parameters: set });
-    const a = analyse(scenarioAt(values, id, label), warm);
+    const a = analyse(scenarioAt(values, id, label), warm, times);
     scenarios.push({ id, label, converged: a.solve.ok });
-    const r = await session.judge(a);
+    const r = await judged(session, a, times);
     return a.solve.ok ? numbers(r) : null;
   };
   const wc = banded === 0 ? null : await worstCaseCorners(table, judge, measure, { maxEvaluations: Math.max(0, maxAnalyses - analyses) });
@@ -153,8 +170,21 @@ export async function runVariation(circuit: Circuit, settings: VariationSettings
   return { ...base, nominal, scenarios, parameters: params, table, summary, cornerOf: (id) => corners.get(id) };
 }
 
+async function judged(session: RuleSession, a: ScenarioAnalysis, times: StageTimes): Promise<ScenarioReadings> {
+  const t0 = performance.now();
+  const r = await session.judge(a);
+  times.rules += performance.now() - t0;
+  return r;
+}
+
+async function measured(session: RuleSession, a: ScenarioAnalysis, times: StageTimes): Promise<ScenarioReadings> {
+  const t0 = performance.now();
+  const r = await session.measure(a);
+  times.rules += performance.now() - t0;
+  return r;
+}
+
 async function monteCarlo(
-  circuit: Circuit,
   params: readonly Parameter[],
   seed: number,
   count: number,
@@ -163,6 +193,7 @@ async function monteCarlo(
   warm: WarmStart,
   failOnRank: number,
   scenarioAt: (values: Float64Array, id: string, label: string) => Scenario,
+  times: StageTimes,
 ): Promise<{ entry: MonteCarloEntry; corners: Map<string, CornerEntry> }> {
   const random = seededRandom(seed);
   const width = Math.max(4, String(count).length);
@@ -172,15 +203,15 @@ async function monteCarlo(
   let nonConverged = 0;
   let iterations = 0;
   let worst = { margin: Infinity, id: "", values: null as Float64Array | null };
+  const temperature = params.findIndex((p) => p.kind === "temperature");
   for (let k = 0; k < count; k++) {
     sampleValues(params, random, values);
     const id = `mc-${String(k + 1).padStart(width, "0")}`;
-    const temperature = params.find((p) => p.kind === "temperature");
-    const label = `sample ${k + 1} of ${count}${temperature ? `, ${celsiusLabel(values[params.indexOf(temperature)]!)}` : ""}`;
-    const a = analyse(scenarioAt(values, id, label), warm);
+    const label = `sample ${k + 1} of ${count}${temperature >= 0 ? `, ${celsiusLabel(values[temperature]!)}` : ""}`;
+    const a = analyse(scenarioAt(values, id, label), warm, times);
     iterations += a.solve.stats.iterations;
     scenarios.push({ id, label, converged: a.solve.ok });
-    const r = await session.judge(a);
+    const r = await judged(session, a, times);
     if (!a.solve.ok) nonConverged++;
     if (r.failRank >= failOnRank || !a.solve.ok) failed++;
     const margin = a.solve.ok ? r.lowestMargin : -Infinity;

@@ -1,7 +1,8 @@
 // GitHub Actions workflow commands that put findings on the circuit file and line in the pull
 // request: `::error file=…,line=…,col=…,title=…::message`, `::warning`, `::notice`. At most 10 are
 // shown per level and step, so past that the last slot becomes a summary pointing at the rest.
-import type { Finding, ResultsDocument, Severity } from "./document.js";
+import type { Finding, Severity } from "./document.js";
+import type { ReportDocument } from "./outline.js";
 import { count, measuredVsLimit } from "./format.js";
 import { breakCommand, inertText } from "./untrusted.js";
 
@@ -42,7 +43,7 @@ function annotation(f: Finding): string {
 }
 
 /** The annotation lines for a document (empty string when there are no findings). */
-export function renderAnnotations(doc: ResultsDocument): string {
+export function renderAnnotations(doc: ReportDocument): string {
   const lines: string[] = [];
   for (const severity of ["error", "warning", "note"] as const) {
     // Worst first: non-numeric findings (input errors, crashes), then by how far past the limit.

@@ -2,7 +2,8 @@
 // run, per circuit — midband gains, supply currents, transistor headroom, new and fixed findings.
 // A pure value; the markdown and console renderers show it.
 import { compareText } from "./build.js";
-import type { CircuitResult, CircuitStatus, Finding, ResultsDocument } from "./document.js";
+import type { CircuitStatus, Finding } from "./document.js";
+import type { CircuitOutline, ReportDocument } from "./outline.js";
 
 /**
  * Relative change below which a figure counts as unchanged: solver noise sits many decades lower,
@@ -59,17 +60,17 @@ function changes(before: ReadonlyMap<string, number>, after: ReadonlyMap<string,
   return out;
 }
 
-function gainsOf(c: CircuitResult | undefined): Map<string, number> {
+function gainsOf(c: CircuitOutline | undefined): Map<string, number> {
   return new Map((c?.gains ?? []).map((g) => [g.name, g.midband]));
 }
 
-function suppliesOf(c: CircuitResult | undefined): Map<string, number> {
+function suppliesOf(c: CircuitOutline | undefined): Map<string, number> {
   const out = new Map<string, number>();
   for (const [id, s] of Object.entries(c?.operatingPoint?.sources ?? {})) out.set(id, s.current);
   return out;
 }
 
-function headroomOf(c: CircuitResult | undefined): Map<string, number> {
+function headroomOf(c: CircuitOutline | undefined): Map<string, number> {
   const out = new Map<string, number>();
   for (const [id, d] of Object.entries(c?.operatingPoint?.devices ?? {})) {
     if (typeof d.headroom === "number") out.set(id, d.headroom);
@@ -88,7 +89,7 @@ function findingDelta(before: readonly Finding[], after: readonly Finding[]): { 
   return { added: after.filter((f) => !b.has(findingKey(f))), fixed: before.filter((f) => !a.has(findingKey(f))) };
 }
 
-function diffCircuit(base: CircuitResult | undefined, head: CircuitResult | undefined): CircuitDiff {
+function diffCircuit(base: CircuitOutline | undefined, head: CircuitOutline | undefined): CircuitDiff {
   const any = (head ?? base)!;
   const supplyBefore = suppliesOf(base);
   const supplyAfter = suppliesOf(head);
@@ -122,7 +123,7 @@ function isEmpty(d: CircuitDiff): boolean {
   );
 }
 
-export function diffDocuments(base: ResultsDocument, head: ResultsDocument): BaselineDiff {
+export function diffDocuments(base: ReportDocument, head: ReportDocument): BaselineDiff {
   const before = new Map(base.circuits.map((c) => [c.file, c]));
   const after = new Map(head.circuits.map((c) => [c.file, c]));
   const files = [...new Set([...before.keys(), ...after.keys()])].sort(compareText);

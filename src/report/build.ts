@@ -2,6 +2,7 @@
 // status recomputed against the run's failOn (so `--fail-on` and config agree everywhere),
 // the summary and the verdict. Also the exit code a document implies.
 import type { CircuitResult, CircuitStatus, Finding, ResultsDocument, RuleEntry, Severity, Summary } from "./document.js";
+import type { DocumentHead } from "./outline.js";
 
 export const RESULTS_FORMAT = "opgate-results/1" as const;
 
@@ -45,12 +46,13 @@ function compareFindings(a: Finding, b: Finding): number {
   );
 }
 
-export function statusFor(c: CircuitResult, failOn: Severity): CircuitStatus {
+export function statusFor(c: Pick<CircuitResult, "status" | "findings">, failOn: Severity): CircuitStatus {
   if (c.status === "error" || c.findings.some((f) => ERROR_RULES.has(f.rule))) return "error";
   return c.findings.some((f) => reaches(f.severity, failOn)) ? "fail" : "pass";
 }
 
-function normaliseCircuit(c: CircuitResult, failOn: Severity): CircuitResult {
+/** A circuit as the document holds it: status against failOn, findings and passed checks in report order. */
+export function normaliseCircuit(c: CircuitResult, failOn: Severity): CircuitResult {
   return {
     ...c,
     status: statusFor(c, failOn),
@@ -59,7 +61,7 @@ function normaliseCircuit(c: CircuitResult, failOn: Severity): CircuitResult {
   };
 }
 
-export function summarise(circuits: readonly CircuitResult[], failOn: Severity): Summary {
+export function summarise(circuits: readonly Pick<CircuitResult, "status" | "findings">[], failOn: Severity): Summary {
   const findings = { error: 0, warning: 0, note: 0 };
   let passed = 0;
   let failed = 0;
@@ -74,10 +76,8 @@ export function summarise(circuits: readonly CircuitResult[], failOn: Severity):
   return { circuits: circuits.length, passed, failed, errors, findings, failOn, verdict };
 }
 
-export function buildDocument(circuits: readonly CircuitResult[], options: BuildOptions): ResultsDocument {
-  const sorted = circuits
-    .map((c) => normaliseCircuit(c, options.failOn))
-    .sort((a, b) => compareText(a.file, b.file));
+/** The document without its circuits and summary: what a streamed run writes before the first result. */
+export function documentHead(options: BuildOptions): DocumentHead {
   const rules = [...options.rules].sort((a, b) => compareText(a.id, b.id));
   return {
     format: RESULTS_FORMAT,
@@ -85,14 +85,20 @@ export function buildDocument(circuits: readonly CircuitResult[], options: Build
     ...(options.shard ? { shard: { ...options.shard, files: [...options.shard.files].sort(compareText) } } : {}),
     variation: options.variation,
     rules,
-    circuits: sorted,
-    summary: summarise(sorted, options.failOn),
     ...(options.timestamp ? { generatedAt: options.timestamp } : {}),
   };
 }
 
+export function buildDocument(circuits: readonly CircuitResult[], options: BuildOptions): ResultsDocument {
+  const sorted = circuits
+    .map((c) => normaliseCircuit(c, options.failOn))
+    .sort((a, b) => compareText(a.file, b.file));
+  const { generatedAt, ...head } = documentHead(options);
+  return { ...head, circuits: sorted, summary: summarise(sorted, options.failOn), ...(generatedAt ? { generatedAt } : {}) };
+}
+
 /** 2 when any circuit could not be checked, 1 when a finding reaches failOn, else 0. */
-export function exitCodeFor(doc: ResultsDocument): number {
+export function exitCodeFor(doc: { readonly summary: Summary }): number {
   if (doc.summary.verdict === "error") return 2;
   return doc.summary.verdict === "fail" ? 1 : 0;
 }

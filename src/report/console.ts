@@ -5,7 +5,8 @@
 // Every text from a circuit file or a team rule goes through inertText: no control character, no
 // line break (a line the Actions runner would execute as `::command`), no bidi override.
 import type { BaselineDiff, FigureChange } from "./baseline.js";
-import type { CircuitResult, Finding, ResultsDocument } from "./document.js";
+import type { CircuitStatus, Finding } from "./document.js";
+import type { CircuitOutline, ReportDocument } from "./outline.js";
 import { reaches } from "./build.js";
 import { count, formatQuantity, measuredLimitMargin } from "./format.js";
 import { breakCommand, inertText } from "./untrusted.js";
@@ -35,14 +36,14 @@ export function colourEnabled(env: Readonly<Record<string, string | undefined>>,
 /** A line starting with `::` would be read by the CI runner as a command: break the pair. */
 export const neutraliseCommands = breakCommand;
 
-const STATUS_WORD: Readonly<Record<CircuitResult["status"], [string, Colour]>> = {
+const STATUS_WORD: Readonly<Record<CircuitStatus, [string, Colour]>> = {
   pass: ["ok   ", "green"],
   fail: ["fail ", "red"],
   error: ["error", "red"],
 };
 const SEVERITY_COLOUR: Readonly<Record<Finding["severity"], Colour>> = { error: "red", warning: "yellow", note: "cyan" };
 
-function scenarioText(c: CircuitResult, id: string): string {
+function scenarioText(c: CircuitOutline, id: string): string {
   const s = c.scenarios.find((x) => x.id === id);
   return t(s && s.label && s.label !== id ? `${id} (${s.label})` : id);
 }
@@ -51,7 +52,7 @@ function scenarioText(c: CircuitResult, id: string): string {
  * Line 1: where, how bad, which rule, what, and the numbers once (the message when the finding has
  * no numbers). Line 2 (indented): the fix and the worst scenario, when there are any.
  */
-function findingLines(c: CircuitResult, f: Finding, paint: (t: string, c: Colour) => string): string[] {
+function findingLines(c: CircuitOutline, f: Finding, paint: (t: string, c: Colour) => string): string[] {
   const numbers = measuredLimitMargin(f);
   const head = `  ${t(f.file)}:${f.line}:${f.column}  ${paint(f.severity.padEnd(7), SEVERITY_COLOUR[f.severity])} ${t(f.rule)}  ${t(f.subject)}  ${numbers ? t(numbers) : t(f.message)}`;
   const detail: string[] = [];
@@ -81,7 +82,7 @@ function baselineLines(diff: BaselineDiff): string[] {
   return lines;
 }
 
-export function verdictText(doc: ResultsDocument): string {
+export function verdictText(doc: ReportDocument): string {
   const s = doc.summary;
   const f = s.findings;
   return (
@@ -90,7 +91,7 @@ export function verdictText(doc: ResultsDocument): string {
   );
 }
 
-export function renderConsole(doc: ResultsDocument, options: ConsoleOptions): string {
+export function renderConsole(doc: ReportDocument, options: ConsoleOptions): string {
   const paint = (text: string, c: Colour): string => (options.color ? `\u001b[${ANSI[c]}m${text}\u001b[0m` : text);
   const lines: string[] = [];
   for (const c of doc.circuits) {

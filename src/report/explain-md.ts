@@ -7,7 +7,10 @@
 // log-spaced, so as evenly spaced categories they read as a log-frequency axis. Built as mdast
 // nodes for the report's serializer (markdown.ts); every file text goes through `untrusted`.
 import type { Code, Html, List, ListItem, Paragraph, PhrasingContent, RootContent } from "mdast";
-import type { CircuitResult, GainEntry } from "./document.js";
+import type { Finding, GainEntry } from "./document.js";
+
+/** What the explanation reads of a gain (a whole GainEntry, or its outline). */
+type ExplainedGain = Pick<GainEntry, "name" | "window" | "response" | "explanation">;
 import { biasText, chainHeadline, formulaText, seenText, si, stageTitle, verdictText } from "./explain-text.js";
 import { inertText } from "./untrusted.js";
 
@@ -27,7 +30,7 @@ const item = (...children: Paragraph[]): ListItem => ({ type: "listItem", spread
 const list = (items: ListItem[], ordered: boolean): List => ({ type: "list", ordered, spread: false, children: items });
 
 /** The gains of a circuit that a failing (or any) finding of an explained rule names. */
-export function explainedGains(c: CircuitResult): GainEntry[] {
+export function explainedGains<G extends ExplainedGain>(c: { readonly findings: readonly Finding[]; readonly gains: readonly G[] }): G[] {
   const named = new Set(c.findings.filter((f) => EXPLAINED_RULES.has(f.rule)).map((f) => f.subject));
   return c.gains.filter((g) => named.has(g.name) && (g.explanation || (g.response && g.response.points.length > 0)));
 }
@@ -36,7 +39,7 @@ const label = (f: number): string => si(f, "Hz").replace(/ /g, "");
 const fixed = (v: number): string => String(Math.round(v * 10) / 10);
 
 /** Mermaid xychart-beta source for magnitude and phase; only our own text (numbers, units) inside. */
-export function mermaidCharts(g: GainEntry): Code[] {
+export function mermaidCharts(g: ExplainedGain): Code[] {
   const r = g.response;
   const all = (r?.points ?? []).filter((p) => p.db !== null && p.phaseDeg !== null && Number.isFinite(p.db));
   if (!r || all.length < 2) return [];
@@ -72,7 +75,7 @@ export function mermaidCharts(g: GainEntry): Code[] {
 }
 
 /** The chain as a list: one item per stage, four short lines each. */
-export function explanationNodes(g: GainEntry, untrusted: Untrusted): RootContent[] {
+export function explanationNodes(g: ExplainedGain, untrusted: Untrusted): RootContent[] {
   const e = g.explanation;
   if (!e) return [];
   const out: RootContent[] = [para(text(untrusted(chainHeadline(e))))];
@@ -97,7 +100,7 @@ export function explanationNodes(g: GainEntry, untrusted: Untrusted): RootConten
 }
 
 /** Collapsed blocks, one per explained gain, for the failing circuit's findings section. */
-export function explanationBlocks(c: CircuitResult, untrusted: Untrusted): RootContent[] {
+export function explanationBlocks(c: { readonly findings: readonly Finding[]; readonly gains: readonly ExplainedGain[] }, untrusted: Untrusted): RootContent[] {
   const out: RootContent[] = [];
   for (const g of explainedGains(c)) {
     const stages = g.explanation?.stages.length ?? 0;

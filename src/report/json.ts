@@ -1,7 +1,8 @@
 // The results document as JSON text: fixed key order, records sorted by key, 2-space indent,
 // trailing newline — byte-identical for the same document, whatever order it was built in.
 // Non-finite numbers (an open-circuit impedance, ro without Early effect) become null, as JSON has no ∞.
-import type { ResultsDocument } from "./document.js";
+import type { CircuitResult, ResultsDocument, Summary } from "./document.js";
+import type { DocumentHead } from "./outline.js";
 
 type Json = null | boolean | number | string | Json[] | { [key: string]: Json };
 
@@ -104,9 +105,41 @@ function canonicalChild(value: unknown, child: Shape | { items: Shape } | { reco
   return canonical(value, child);
 }
 
+/** Where the circuits go in the document's text: the top-level key, as JSON.stringify indents it. */
+const CIRCUITS_MARK = '\n  "circuits": []';
+
+/** The document's text without circuits, cut where they go: [before the array's end, from its end on]. */
+function around(doc: Omit<ResultsDocument, "summary" | "circuits"> & { summary?: ResultsDocument["summary"] }): [string, string] {
+  const text = JSON.stringify(canonical({ ...doc, circuits: [] }, DOCUMENT), null, 2);
+  const at = text.indexOf(CIRCUITS_MARK);
+  const cut = at + CIRCUITS_MARK.length - 1;
+  return [text.slice(0, cut), text.slice(cut)];
+}
+
+/**
+ * The results document as a stream of text: `start` (everything before the first circuit), one
+ * `circuit` per (normalised) circuit result in document order, and `end` with the summary. Joined,
+ * they are exactly renderJson of the same document, so a run can write its report while results
+ * arrive and keep none of them.
+ */
+export function jsonStart(head: DocumentHead): string {
+  return around(head)[0];
+}
+
+/** One circuit's text, indented for its place in the circuits array (first one included: `first`). */
+export function jsonCircuit(c: CircuitResult, first: boolean): string {
+  return `${first ? "" : ","}\n    ${JSON.stringify(canonical(c, CIRCUIT), null, 2).replace(/\n/g, "\n    ")}`;
+}
+
+/** Closes the circuits array (`circuits` of them were written) and writes the summary. */
+export function jsonEnd(head: DocumentHead, summary: Summary, circuits: number): string {
+  return `${circuits > 0 ? "\n  " : ""}${around({ ...head, summary })[1]}\n`;
+}
+
 /** The JSON text of a results document (what `--json PATH` writes). */
 export function renderJson(doc: ResultsDocument): string {
-  return `${JSON.stringify(canonical(doc, DOCUMENT), null, 2)}\n`;
+  const { circuits, summary, ...head } = doc;
+  return jsonStart(head) + circuits.map((c, i) => jsonCircuit(c, i === 0)).join("") + jsonEnd(head, summary, circuits.length);
 }
 
 /** Parses a results document written by renderJson (for baselines and merges); shape is checked by the caller. */

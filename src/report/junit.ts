@@ -7,7 +7,7 @@
 import { createRequire } from "node:module";
 import type { Builder } from "junit-report-builder";
 import { ERROR_RULES, reaches } from "./build.js";
-import type { CircuitResult, Finding, PassedCheck, ResultsDocument } from "./document.js";
+import type { CircuitResult, Finding, PassedCheck, ResultsDocument, Severity } from "./document.js";
 import { findingLocation, measuredVsLimit } from "./format.js";
 import { inertLines, inertText } from "./untrusted.js";
 
@@ -50,40 +50,97 @@ function uniqueNamer(): (name: string) => string {
   };
 }
 
-export function renderJunit(doc: ResultsDocument): string {
+/** One suite's XML (indented for its place under the root) and its counts, for the root's totals. */
+export interface JunitSuite {
+  readonly xml: string;
+  readonly tests: number;
+  readonly failures: number;
+  readonly errors: number;
+  readonly skipped: number;
+}
+
+/** What the builder writes around a lone suite; its root line carries that suite's counts. */
+const ALONE = /^<\?xml version="1\.0" encoding="UTF-8"\?>\n<testsuites name="opgate" tests="(\d+)" failures="(\d+)" errors="(\d+)" skipped="(\d+)">\n([^]*)\n<\/testsuites>$/;
+
+/** The library writes the suite (its escaping, its layout); we take it out of the root it wrote around it. */
+function suiteOf(report: Builder): JunitSuite {
+  const text = report.build();
+  const m = ALONE.exec(text);
+  if (!m) throw new Error("junit-report-builder wrote a layout this reporter does not know: check its version");
+  return { tests: Number(m[1]), failures: Number(m[2]), errors: Number(m[3]), skipped: Number(m[4]), xml: m[5]! };
+}
+
+/**
+ * The suite of one (normalised) circuit result. A run writes suites as results arrive and the
+ * root with the totals at the end (junitDocument), so no report holds every circuit at once.
+ */
+export function junitSuite(c: CircuitResult, failOn: Severity): JunitSuite {
   const report = junitBuilder().newBuilder().name("opgate");
-  const failOn = doc.summary.failOn;
-  for (const c of doc.circuits) {
-    const suite = report.testSuite().name(inertText(c.file));
-    const classname = inertText(c.name ?? c.file);
-    const file = inertText(c.file);
-    const unique = uniqueNamer();
-    let cases = 0;
-    for (const f of c.findings) {
-      const tc = suite.testCase().className(classname).name(unique(inertText(`${f.rule}: ${f.subject}`))).file(file);
-      const text = findingText(c, f);
-      // "Could not run": the file did not load, the check crashed, or there is no operating point.
-      const couldNotRun = ERROR_RULES.has(f.rule) || (f.rule === "solve" && c.status === "error");
-      if (couldNotRun) tc.error(text, inertText(f.rule), cdataSafe(f.hint ?? text));
-      else if (reaches(f.severity, failOn)) {
-        tc.failure(text, f.severity);
-        if (f.hint) tc.stacktrace(cdataSafe(`How to fix: ${f.hint}`));
-      } else tc.standardOutput(cdataSafe(`${text}${f.hint ? `\nHow to fix: ${f.hint}` : ""}`));
-      cases++;
-    }
-    for (const p of c.passed) {
-      suite.testCase().className(classname).name(unique(inertText(`${p.rule}: ${p.subject}`))).file(file).standardOutput(cdataSafe(passedText(p)));
-      cases++;
-    }
-    if (cases === 0) {
-      // A circuit in error without findings, or one with no applicable checks: still one case.
-      const tc = suite.testCase().className(classname).name(unique("opgate: circuit")).file(file);
-      if (c.status === "error") tc.error(`${file}: the circuit could not be checked`, "internal");
-      else tc.standardOutput("no rule applied to this circuit");
-    }
+  const suite = report.testSuite().name(inertText(c.file));
+  const classname = inertText(c.name ?? c.file);
+  const file = inertText(c.file);
+  const unique = uniqueNamer();
+  let cases = 0;
+  for (const f of c.findings) {
+    const tc = suite.testCase().className(classname).name(unique(inertText(`${f.rule}: ${f.subject}`))).file(file);
+    const text = findingText(c, f);
+    // "Could not run": the file did not load, the check crashed, or there is no operating point.
+    const couldNotRun = ERROR_RULES.has(f.rule) || (f.rule === "solve" && c.status === "error");
+    if (couldNotRun) tc.error(text, inertText(f.rule), cdataSafe(f.hint ?? text));
+    else if (reaches(f.severity, failOn)) {
+      tc.failure(text, f.severity);
+      if (f.hint) tc.stacktrace(cdataSafe(`How to fix: ${f.hint}`));
+    } else tc.standardOutput(cdataSafe(`${text}${f.hint ? `\nHow to fix: ${f.hint}` : ""}`));
+    cases++;
   }
-  if (doc.circuits.length === 0) {
-    report.testSuite().name("opgate").testCase().className("opgate").name("opgate: no circuit files").standardOutput("no circuit files were checked");
+  for (const p of c.passed) {
+    suite.testCase().className(classname).name(unique(inertText(`${p.rule}: ${p.subject}`))).file(file).standardOutput(cdataSafe(passedText(p)));
+    cases++;
   }
-  return `${report.build()}\n`;
+  if (cases === 0) {
+    // A circuit in error without findings, or one with no applicable checks: still one case.
+    const tc = suite.testCase().className(classname).name(unique("opgate: circuit")).file(file);
+    if (c.status === "error") tc.error(`${file}: the circuit could not be checked`, "internal");
+    else tc.standardOutput("no rule applied to this circuit");
+  }
+  return suiteOf(report);
+}
+
+/** The suite of a run with no circuit files (a report with no cases breaks some viewers). */
+export function junitEmptySuite(): JunitSuite {
+  const report = junitBuilder().newBuilder().name("opgate");
+  report.testSuite().name("opgate").testCase().className("opgate").name("opgate: no circuit files").standardOutput("no circuit files were checked");
+  return suiteOf(report);
+}
+
+/** Totals of the suites written so far. */
+export interface JunitTotals {
+  tests: number;
+  failures: number;
+  errors: number;
+  skipped: number;
+}
+
+export function addSuite(totals: JunitTotals, suite: JunitSuite): void {
+  totals.tests += suite.tests;
+  totals.failures += suite.failures;
+  totals.errors += suite.errors;
+  totals.skipped += suite.skipped;
+}
+
+/** The text before the suites: the XML declaration and the root element with the run's totals. */
+export function junitStart(totals: JunitTotals): string {
+  return `<?xml version="1.0" encoding="UTF-8"?>\n<testsuites name="opgate" tests="${totals.tests}" failures="${totals.failures}" errors="${totals.errors}" skipped="${totals.skipped}">\n`;
+}
+
+/** Between two suites. */
+export const JUNIT_SEPARATOR = "\n";
+/** After the last suite. */
+export const JUNIT_END = "\n</testsuites>\n";
+
+export function renderJunit(doc: ResultsDocument): string {
+  const suites = doc.circuits.length > 0 ? doc.circuits.map((c) => junitSuite(c, doc.summary.failOn)) : [junitEmptySuite()];
+  const totals: JunitTotals = { tests: 0, failures: 0, errors: 0, skipped: 0 };
+  for (const s of suites) addSuite(totals, s);
+  return `${junitStart(totals)}${suites.map((s) => s.xml).join(JUNIT_SEPARATOR)}${JUNIT_END}`;
 }

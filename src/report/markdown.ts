@@ -14,7 +14,8 @@ import type { BlockContent, Break, Heading, Html, InlineCode, List, ListItem, Pa
 import { gfmToMarkdown } from "mdast-util-gfm";
 import { toMarkdown } from "mdast-util-to-markdown";
 import type { BaselineDiff, CircuitDiff, FigureChange } from "./baseline.js";
-import type { CircuitResult, DeviceEntry, Finding, ResultsDocument } from "./document.js";
+import type { CircuitStatus, DeviceEntry, Finding } from "./document.js";
+import type { CircuitOutline, ReportDocument } from "./outline.js";
 import { count, formatMargin, formatNumber, formatQuantity, measuredLimitMargin } from "./format.js";
 import { inertText } from "./untrusted.js";
 import { explanationBlocks } from "./explain-md.js";
@@ -29,9 +30,9 @@ export const CAUTION =
   "opgate checks a model of each circuit, not the board. Mains-connected, high-voltage and battery-powered " +
   "designs still need review under local codes and by a qualified engineer.";
 
-const STATUS_MARK: Readonly<Record<CircuitResult["status"], string>> = { pass: "✅ pass", fail: "❌ fail", error: "⚠️ error" };
-const STATUS_ICON: Readonly<Record<CircuitResult["status"], string>> = { pass: "✅", fail: "❌", error: "⚠️" };
-const STATUS_ORDER: Readonly<Record<CircuitResult["status"], number>> = { error: 0, fail: 1, pass: 2 };
+const STATUS_MARK: Readonly<Record<CircuitStatus, string>> = { pass: "✅ pass", fail: "❌ fail", error: "⚠️ error" };
+const STATUS_ICON: Readonly<Record<CircuitStatus, string>> = { pass: "✅", fail: "❌", error: "⚠️" };
+const STATUS_ORDER: Readonly<Record<CircuitStatus, number>> = { error: 0, fail: 1, pass: 2 };
 
 export interface MarkdownOptions {
   readonly baseline?: BaselineDiff;
@@ -103,7 +104,7 @@ function circuitLabel(c: { name: string | null; file: string }): PhrasingContent
   return c.name ? [utext(c.name), text(" "), code(c.file)] : [code(c.file)];
 }
 
-function verdictBlock(doc: ResultsDocument): RootContent[] {
+function verdictBlock(doc: ReportDocument): RootContent[] {
   const s = doc.summary;
   const head = s.verdict === "pass" ? "✅ " : s.verdict === "fail" ? "❌ " : "⚠️ ";
   const f = s.findings;
@@ -121,7 +122,7 @@ function verdictBlock(doc: ResultsDocument): RootContent[] {
   ];
 }
 
-function scenarioLabel(c: CircuitResult, id: string): string {
+function scenarioLabel(c: CircuitOutline, id: string): string {
   const s = c.scenarios.find((x) => x.id === id);
   return s && s.label && s.label !== id ? `${id} (${s.label})` : id;
 }
@@ -146,7 +147,7 @@ function topSensitivities(f: Finding): string | null {
 }
 
 /** Monte Carlo yield of a circuit, when it ran. */
-function yieldBlock(c: CircuitResult): RootContent[] {
+function yieldBlock(c: CircuitOutline): RootContent[] {
   const mc = c.monteCarlo;
   if (!mc) return [];
   const pct = (v: number): string => `${formatNumber(100 * v)} %`;
@@ -155,7 +156,7 @@ function yieldBlock(c: CircuitResult): RootContent[] {
 }
 
 /** The compact table of one circuit's findings, then each finding's message, worst scenario and fix. */
-function circuitFindings(c: CircuitResult): RootContent[] {
+function circuitFindings(c: CircuitOutline): RootContent[] {
   const rows: Cell[][] = c.findings.map((f) => [f.severity, code(f.rule), code(f.subject), ...numbersCells(f)]);
   const items = c.findings.map((f) => {
     const lines: PhrasingContent[] = [strong(text(f.severity)), text(" "), code(f.rule), text(" "), code(f.subject), text(` (line ${f.line}): `), utext(f.message)];
@@ -175,13 +176,13 @@ function circuitFindings(c: CircuitResult): RootContent[] {
   ];
 }
 
-function bySeverity(c: CircuitResult): { error: number; warning: number; note: number } {
+function bySeverity(c: CircuitOutline): { error: number; warning: number; note: number } {
   const n = { error: 0, warning: 0, note: 0 };
   for (const f of c.findings) n[f.severity]++;
   return n;
 }
 
-function summaryBlock(doc: ResultsDocument): RootContent[] {
+function summaryBlock(doc: ReportDocument): RootContent[] {
   const rows = doc.circuits.length > SUMMARY_ROWS_MAX ? doc.circuits.filter((c) => c.status !== "pass") : [...doc.circuits];
   rows.sort((a, b) => STATUS_ORDER[a.status] - STATUS_ORDER[b.status]);
   const cells: Cell[][] = rows.map((c) => {
@@ -202,7 +203,7 @@ function num(d: DeviceEntry, key: string): number | null {
 
 const TRANSISTOR_KINDS = new Set(["npn", "pnp", "nmos", "pmos"]);
 
-function figuresBlock(c: CircuitResult): RootContent[] {
+function figuresBlock(c: CircuitOutline): RootContent[] {
   const op = c.operatingPoint;
   if (!op && c.gains.length === 0) return [];
   const body: RootContent[] = [];
@@ -382,7 +383,7 @@ function assemble(head: string, sections: readonly Section[], maxChars: number):
   return result.length <= maxChars ? result : result.slice(0, Math.max(0, maxChars - 1)).replace(/\n?[^\n]*$/, "\n");
 }
 
-export function renderMarkdown(doc: ResultsDocument, options: MarkdownOptions = {}): string {
+export function renderMarkdown(doc: ReportDocument, options: MarkdownOptions = {}): string {
   const maxChars = options.maxChars ?? PR_COMMENT_MAX_CHARS;
   const head = serialize(verdictBlock(doc));
   const notPassing = doc.circuits.filter((c) => c.status !== "pass" && c.findings.length > 0).sort((a, b) => STATUS_ORDER[a.status] - STATUS_ORDER[b.status]);

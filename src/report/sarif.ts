@@ -2,7 +2,8 @@
 // finding on the circuit file and line of the offending component. Fingerprints hash the rule,
 // file and subject (not the line), so moving a component does not reopen an alert.
 import { createHash } from "node:crypto";
-import type { Finding, ResultsDocument, RuleEntry, Severity } from "./document.js";
+import type { Finding, RuleEntry, Severity } from "./document.js";
+import type { ReportDocument } from "./outline.js";
 import { measuredVsLimit } from "./format.js";
 import { inertLines, inertText } from "./untrusted.js";
 
@@ -74,7 +75,7 @@ function firstParagraph(text: string): string {
 }
 
 /** The SARIF log as JSON text (2-space indent, trailing newline, stable for the same document). */
-export function renderSarif(doc: ResultsDocument, options: SarifOptions = {}): string {
+export function renderSarif(doc: ReportDocument, options: SarifOptions = {}): string {
   const base = options.rootFromRepository ?? "";
   const informationUri = options.informationUri ?? defaultInformationUri(doc.tool.version);
   const helpUri = (r: RuleEntry): string | undefined =>

@@ -260,6 +260,29 @@ interface RuleState {
   scenarios: number;
   /** The budget ran out: the rule is not run on further scenarios (one error finding says so). */
   exhausted: boolean;
+  /**
+   * A built-in rule in this thread: called directly (see runDirect). Ours, reviewed and linear in
+   * the circuit's size, it has no per-circuit budget, and a synchronous call cannot be cut short
+   * by a timer anyway; only an asynchronous one is held to the per-call limit.
+   */
+  readonly direct: boolean;
+  /** Quantity keys by subject, so that a streamed circuit does not build the same strings per scenario. */
+  readonly keys: Map<string, { readonly unit: string | null; readonly key: string }>;
+}
+
+/** One scenario's readings as its rules report them (returned as its ScenarioReadings). */
+class Tally implements ScenarioReadings {
+  readonly values = new Map<string, Reading>();
+  failRank = -1;
+  lowestMargin = Infinity;
+}
+
+function keyOf(state: RuleState, subject: string, unit: string | null): string {
+  const known = state.keys.get(subject);
+  if (known !== undefined && known.unit === unit) return known.key;
+  const key = quantityKey(state.configured.rule.id, subject, unit);
+  state.keys.set(subject, { unit, key });
+  return key;
 }
 
 /**
@@ -286,7 +309,8 @@ export class RuleSession {
     this.#rules = rules;
     for (const configured of rules) {
       if (configured.severity === "off") continue;
-      this.#states.push({ configured, severity: configured.severity, worst: new Map(), order: 0, budgetMs: this.#budgetMs, spentMs: 0, scenarios: 0, exhausted: false });
+      const direct = configured.source === "builtin" && !isContained(configured.rule);
+      this.#states.push({ configured, severity: configured.severity, worst: new Map(), order: 0, budgetMs: this.#budgetMs, spentMs: 0, scenarios: 0, exhausted: false, direct, keys: new Map() });
     }
   }
 
@@ -300,21 +324,34 @@ export class RuleSession {
     return this.#run(analysis, false);
   }
 
-  async #run(analysis: ScenarioAnalysis, keepOutcomes: boolean): Promise<ScenarioReadings> {
-    const values = new Map<string, Reading>();
-    let failRank = -1;
-    let lowestMargin = Infinity;
-    for (const state of this.#states) {
-      const seen = (o: Outcome): void => {
-        if (o.kind === "fail") failRank = Math.max(failRank, o.broken ? RANK.error : RANK[state.severity]);
-        if (o.margin !== null && o.margin < lowestMargin) lowestMargin = o.margin;
-        if (o.measured === null || !Number.isFinite(o.measured)) return;
-        const key = quantityKey(state.configured.rule.id, o.subject, o.unit);
-        if (!values.has(key)) values.set(key, { rule: state.configured.rule.id, subject: o.subject, unit: o.unit, measured: o.measured, limit: o.limit, bound: o.bound ?? null });
-      };
-      await runOne(state, this.#circuit, analysis, this.#timeLimitMs, keepOutcomes, seen);
+  // Built-in rules return synchronously; the loop awaits only a rule that returns a promise, so a
+  // streamed circuit of thousands of scenarios does not pay a promise round trip per rule.
+  #run(analysis: ScenarioAnalysis, keepOutcomes: boolean): Promise<ScenarioReadings> {
+    const tally = new Tally();
+    const states = this.#states;
+    for (let i = 0; i < states.length; i++) {
+      const pending = this.#one(states[i]!, analysis, keepOutcomes, tally);
+      if (pending !== undefined) return this.#rest(pending, i + 1, analysis, keepOutcomes, tally);
     }
-    return { values, failRank, lowestMargin };
+    return Promise.resolve(tally);
+  }
+
+  async #rest(pending: Promise<void>, from: number, analysis: ScenarioAnalysis, keepOutcomes: boolean, tally: Tally): Promise<ScenarioReadings> {
+    await pending;
+    const states = this.#states;
+    for (let i = from; i < states.length; i++) {
+      const next = this.#one(states[i]!, analysis, keepOutcomes, tally);
+      if (next !== undefined) await next;
+    }
+    return tally;
+  }
+
+  #one(state: RuleState, analysis: ScenarioAnalysis, keepOutcomes: boolean, tally: Tally): Promise<void> | undefined {
+    if (state.exhausted) return undefined;
+    state.scenarios++;
+    const sink = new Sink(state, this.#circuit, keepOutcomes, tally);
+    if (state.direct) return runDirect(state, analysis, this.#timeLimitMs, sink);
+    return runBudgeted(state, this.#circuit, analysis, this.#timeLimitMs, sink);
   }
 
   /** The findings and passed checks over every judged scenario. */
@@ -353,62 +390,69 @@ export class RuleSession {
   }
 }
 
-async function runOne(
-  state: RuleState,
-  circuit: Circuit,
-  analysis: ScenarioAnalysis,
-  timeLimitMs: number,
-  keepOutcomes: boolean,
-  seen: (o: Outcome) => void,
-): Promise<void> {
-  if (state.exhausted) return;
-  state.scenarios++;
-  const started = Date.now();
-  try {
-    await runTimed(state, circuit, analysis, timeLimitMs, keepOutcomes, seen);
-  } finally {
-    state.spentMs += Date.now() - started;
-  }
-}
+/**
+ * Takes one rule's reports on one scenario: each is checked against the results contract, counted
+ * in the scenario's readings, and (when the scenario is judged) kept if it is the worst so far for
+ * its subject.
+ */
+class Sink {
+  readonly #state: RuleState;
+  readonly #circuit: Circuit;
+  readonly #keepOutcomes: boolean;
+  readonly #tally: Tally;
 
-async function runTimed(
-  state: RuleState,
-  circuit: Circuit,
-  analysis: ScenarioAnalysis,
-  timeLimitMs: number,
-  keepOutcomes: boolean,
-  seen: (o: Outcome) => void,
-): Promise<void> {
-  const { configured, worst } = state;
-  const { rule } = configured;
-  const options = configured.options ?? {};
-  const keep = (o: Outcome): void => {
-    seen(o);
+  constructor(state: RuleState, circuit: Circuit, keepOutcomes: boolean, tally: Tally) {
+    this.#state = state;
+    this.#circuit = circuit;
+    this.#keepOutcomes = keepOutcomes;
+    this.#tally = tally;
+  }
+
+  #keep(o: Outcome): void {
+    const state = this.#state;
+    const tally = this.#tally;
+    if (o.kind === "fail") {
+      const rank = o.broken ? RANK.error : RANK[state.severity];
+      if (rank > tally.failRank) tally.failRank = rank;
+    }
+    if (o.margin !== null && o.margin < tally.lowestMargin) tally.lowestMargin = o.margin;
+    if (o.measured !== null && Number.isFinite(o.measured)) {
+      const key = keyOf(state, o.subject, o.unit);
+      if (!tally.values.has(key)) tally.values.set(key, { rule: state.configured.rule.id, subject: o.subject, unit: o.unit, measured: o.measured, limit: o.limit, bound: o.bound ?? null });
+    }
     // A broken rule is kept even from a measuring step: it must surface as an error finding.
-    if (!keepOutcomes && !o.broken) return;
-    const prev = worst.get(o.subject);
-    if (!prev || worseThan(o, prev)) worst.set(o.subject, o);
-  };
-  const broken = (scenario: string, reason: string): void =>
-    keep({
+    if (!this.#keepOutcomes && !o.broken) return;
+    const prev = state.worst.get(o.subject);
+    if (!prev || worseThan(o, prev)) state.worst.set(o.subject, o);
+  }
+
+  broken(scenario: string, reason: string): void {
+    const { configured } = this.#state;
+    const id = configured.rule.id;
+    const circuit = this.#circuit;
+    this.#keep({
       kind: "fail",
       subject: circuit.name,
-      message: `rule \`${rule.id}\` could not check circuit \`${circuit.name}\` in scenario ${scenario}: ${reason}`,
+      message: `rule \`${id}\` could not check circuit \`${circuit.name}\` in scenario ${scenario}: ${reason}`,
       measured: null,
       limit: null,
       unit: null,
       margin: null,
       scenario,
-      order: state.order++,
+      order: this.#state.order++,
       hint: configured.source === "builtin" ? "this is a bug in opgate; please report it with the circuit file" : `fix the rule in ${configured.source}, or turn it off in the config`,
       broken: true,
     });
+  }
+
   // Every report is checked against the results contract before it becomes a finding.
-  const fail = (scenario: string, f: unknown): void => {
+  fail(scenario: string, f: unknown): void {
     const problems = failReportProblems(f);
-    if (problems.length > 0) return broken(scenario, `it reported a finding the results cannot hold: ${problems.join("; ")}`);
+    if (problems.length > 0) return this.broken(scenario, `it reported a finding the results cannot hold: ${problems.join("; ")}`);
     const r = f as FailReport;
-    keep({
+    // Built field by field: an object spread followed by more keys costs microseconds on Node 20,
+    // and a streamed circuit makes this call for every failing subject of every scenario.
+    this.#keep({
       kind: "fail",
       subject: r.subject,
       message: r.message,
@@ -417,17 +461,18 @@ async function runTimed(
       unit: r.unit ?? null,
       margin: marginOf(r.measured, r.limit, r.bound),
       scenario,
-      order: state.order++,
-      ...(r.bound ? { bound: r.bound } : {}),
-      ...(r.hint ? { hint: r.hint } : {}),
-      ...(r.pos ? { pos: { file: r.pos.file, line: r.pos.line, column: r.pos.column } } : {}),
+      order: this.#state.order++,
+      bound: r.bound || undefined,
+      hint: r.hint || undefined,
+      pos: r.pos ? { file: r.pos.file, line: r.pos.line, column: r.pos.column } : undefined,
     });
-  };
-  const pass = (scenario: string, subject: unknown, p: unknown): void => {
+  }
+
+  pass(scenario: string, subject: unknown, p: unknown): void {
     const problems = passReportProblems(subject, p);
-    if (problems.length > 0) return broken(scenario, `it reported a pass the results cannot hold: ${problems.join("; ")}`);
+    if (problems.length > 0) return this.broken(scenario, `it reported a pass the results cannot hold: ${problems.join("; ")}`);
     const r = (p ?? {}) as PassReport;
-    keep({
+    this.#keep({
       kind: "pass",
       subject: subject as string,
       message: "",
@@ -436,18 +481,87 @@ async function runTimed(
       unit: r.unit ?? null,
       margin: marginOf(r.measured, r.limit, r.bound),
       scenario,
-      order: state.order++,
-      ...(r.bound ? { bound: r.bound } : {}),
+      order: this.#state.order++,
+      bound: r.bound,
     });
+  }
+}
+
+function isThenable(v: unknown): v is PromiseLike<void> {
+  return typeof v === "object" && v !== null && typeof (v as { then?: unknown }).then === "function";
+}
+
+/** A rule's check (or failed-solve hook) on one scenario with a reporter that closes when it is done. */
+function checkCall(rule: Rule, options: Readonly<Record<string, unknown>>, analysis: ScenarioAnalysis, sink: Sink): { work: (() => void | Promise<void>) | undefined; close: () => void } {
+  const scenario = analysis.scenario;
+  const id = scenario.id;
+  let open = true;
+  const reporter: Reporter = {
+    fail(f: FailReport) {
+      if (open) sink.fail(id, f);
+    },
+    pass(subject: string, p?: PassReport) {
+      if (open) sink.pass(id, subject, p);
+    },
   };
+  const solve = analysis.solve;
+  const circuit = scenario.circuit;
+  const work = solve.ok
+    ? () => rule.check({ circuit, specs: circuit.specs, options, scenario, op: solve, smallSignal: analysis.smallSignal }, reporter)
+    : rule.checkFailedSolve
+      ? () => rule.checkFailedSolve!({ circuit, specs: circuit.specs, options, scenario, failure: solve }, reporter)
+      : undefined;
+  return {
+    work,
+    close: () => {
+      open = false;
+    },
+  };
+}
+
+/** A built-in rule in this thread: a direct call; only a rule that returns a promise is awaited, under the per-call limit. */
+function runDirect(state: RuleState, analysis: ScenarioAnalysis, timeLimitMs: number, sink: Sink): Promise<void> | undefined {
+  const { work, close } = checkCall(state.configured.rule, state.configured.options ?? {}, analysis, sink);
+  if (!work) return undefined;
+  const id = analysis.scenario.id;
+  let result: void | Promise<void>;
+  try {
+    result = work();
+  } catch (err) {
+    close();
+    sink.broken(id, reasonOf(err));
+    return undefined;
+  }
+  if (!isThenable(result)) {
+    close();
+    return undefined;
+  }
+  const running = result;
+  return withTimeLimit(() => running, timeLimitMs, false)
+    .catch((err: unknown) => sink.broken(id, reasonOf(err)))
+    .finally(close);
+}
+
+/** A team rule (or a built-in one run contained): timed against its per-circuit budget. */
+async function runBudgeted(state: RuleState, circuit: Circuit, analysis: ScenarioAnalysis, timeLimitMs: number, sink: Sink): Promise<void> {
+  const started = Date.now();
+  try {
+    await runTimed(state, circuit, analysis, timeLimitMs, sink);
+  } finally {
+    state.spentMs += Date.now() - started;
+  }
+}
+
+async function runTimed(state: RuleState, circuit: Circuit, analysis: ScenarioAnalysis, timeLimitMs: number, sink: Sink): Promise<void> {
+  const { configured } = state;
+  const { rule } = configured;
+  const options = configured.options ?? {};
   const scenario = analysis.scenario;
   const started = Date.now();
-  // The per-circuit budget is for team rules; a built-in rule (ours, reviewed, linear in the
-  // circuit's size) is not cut off on a large streamed circuit, only held to the per-call limit.
-  const left = configured.source === "builtin" && !isContained(rule) ? Infinity : state.budgetMs - state.spentMs;
+  const left = state.budgetMs - state.spentMs;
   if (left <= 0) {
     state.exhausted = true;
-    broken(scenario.id, `it used up its ${state.budgetMs / 1000} s budget for this circuit before this scenario`);
+    sink.broken(scenario.id, `it used up its ${state.budgetMs / 1000} s budget for this circuit before this scenario`);
     return;
   }
 
@@ -458,40 +572,25 @@ async function runTimed(
       state.exhausted = true;
       const outOfTime = Date.now() - started >= left;
       const n = state.scenarios;
-      broken(scenario.id, outOfTime ? `checking the circuit's ${n} scenario${n === 1 ? "" : "s"} took longer than ${state.budgetMs / 1000} s` : outcome.reason);
+      sink.broken(scenario.id, outOfTime ? `checking the circuit's ${n} scenario${n === 1 ? "" : "s"} took longer than ${state.budgetMs / 1000} s` : outcome.reason);
     } else {
       for (const r of outcome.reports) {
-        if (r.kind === "fail") fail(r.scenario, r.report);
-        else pass(r.scenario, r.subject, r.report);
+        if (r.kind === "fail") sink.fail(r.scenario, r.report);
+        else sink.pass(r.scenario, r.subject, r.report);
       }
-      for (const e of outcome.errors) broken(e.scenario, e.reason);
+      for (const e of outcome.errors) sink.broken(e.scenario, e.reason);
     }
     return;
   }
 
-  const view = { circuit: scenario.circuit, specs: scenario.circuit.specs, options, scenario };
-  let open = true;
-  const reporter: Reporter = {
-    fail(f: FailReport) {
-      if (open) fail(scenario.id, f);
-    },
-    pass(subject: string, p?: PassReport) {
-      if (open) pass(scenario.id, subject, p);
-    },
-  };
-  const solve = analysis.solve;
-  const work = solve.ok
-    ? () => rule.check({ ...view, op: solve, smallSignal: analysis.smallSignal }, reporter)
-    : rule.checkFailedSolve
-      ? () => rule.checkFailedSolve!({ ...view, failure: solve }, reporter)
-      : undefined;
+  const { work, close } = checkCall(rule, options, analysis, sink);
   if (!work) return;
   try {
     await withTimeLimit(work, Math.min(timeLimitMs, left), configured.source !== "builtin");
   } catch (err) {
-    broken(scenario.id, reasonOf(err));
+    sink.broken(scenario.id, reasonOf(err));
   } finally {
-    open = false;
+    close();
   }
 }
 

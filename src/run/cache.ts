@@ -15,15 +15,17 @@
 import { createHash, randomBytes } from "node:crypto";
 import { mkdirSync, readdirSync, readFileSync, renameSync, rmSync, writeFileSync } from "node:fs";
 import { homedir } from "node:os";
-import { dirname, join, relative, resolve, sep } from "node:path";
+import { basename, dirname, join, relative, resolve, sep } from "node:path";
 import { fileURLToPath } from "node:url";
 import type { CheckContext } from "../pipeline/check-file.js";
 import type { CircuitResult } from "../report/document.js";
+import { jsonCircuit } from "../report/json.js";
+import { outlineOf, type CircuitOutline } from "../report/outline.js";
 import type { CircuitFile } from "./discover.js";
 
 /** Written into every entry; a change of layout changes it (and the folder entries live in). */
-export const CACHE_FORMAT = "opgate-result-cache/1";
-const FORMAT_DIR = "v1";
+export const CACHE_FORMAT = "opgate-result-cache/2";
+export const FORMAT_DIR = "v2";
 
 /** A file an entry depends on besides the circuit file: re-read and compared on every hit. */
 export interface CacheDependency {
@@ -74,16 +76,17 @@ export function resultDependencies(result: CircuitResult, root: string): CacheDe
 let codeDigestCache: string | undefined;
 
 /**
- * Digest of the tool's own code (every module of src/ and rules/ it runs from, and the shipped
- * schemas): a built-in rule or a model changed without a version bump must not be answered from
- * results of the old code. ~1 MB read once per run, only when the cache is on.
+ * Digest of the tool's own code (every module it runs from, and the shipped schemas): a built-in
+ * rule or a model changed without a version bump must not be answered from results of the old
+ * code. The bundled CLI runs from dist/bundle/ alone (its few files, ~3 MB, with the generated
+ * validators and the schemas); from source or dist/src, src/ and rules/ are read. Once per run,
+ * only when the cache is on.
  */
 export function codeDigest(): string {
   if (codeDigestCache !== undefined) return codeDigestCache;
-  // This module is <code root>/run/cache.(js|ts); the code root is src/ (or dist/src/), beside rules/ and schemas/.
-  const srcDir = dirname(dirname(fileURLToPath(import.meta.url)));
-  const base = dirname(srcDir);
+  const here = dirname(fileURLToPath(import.meta.url));
   const hash = createHash("sha256");
+  let base: string;
   const walk = (dir: string): void => {
     let names: string[];
     try {
@@ -99,10 +102,22 @@ export function codeDigest(): string {
       } else if (!name.includes(".")) walk(path);
     }
   };
-  walk(srcDir);
-  walk(join(base, "rules"));
-  walk(join(base, "validators"));
-  walk(join(base, base.endsWith(`${sep}dist`) ? join("..", "schemas") : "schemas"));
+  if (basename(here) === "bundle") {
+    // <package>/dist/bundle/cli.js: the bundle holds every module it runs (and its dependencies).
+    const dist = dirname(here);
+    base = dirname(dist);
+    walk(here);
+    walk(join(dist, "validators"));
+    walk(join(base, "schemas"));
+  } else {
+    // This module is <code root>/run/cache.(js|ts); the code root is src/ (or dist/src/), beside rules/ and schemas/.
+    const srcDir = dirname(here);
+    base = dirname(srcDir);
+    walk(srcDir);
+    walk(join(base, "rules"));
+    walk(join(base, "validators"));
+    walk(join(base, base.endsWith(`${sep}dist`) ? join("..", "schemas") : "schemas"));
+  }
   codeDigestCache = hash.digest("hex");
   return codeDigestCache;
 }
@@ -141,8 +156,8 @@ function encode(_key: string, value: unknown): unknown {
   if (typeof value === "number" && !Number.isFinite(value)) return `${NON_FINITE}${String(value)}`;
   return value;
 }
-/** Parses an entry; the tagged numbers are put back by a walk only when the text has any (a reviver on every value costs several times the parse). */
-function parseEntry(text: string): unknown {
+/** Parses a part; the tagged numbers are put back by a walk only when the text has any (a reviver on every value costs several times the parse). */
+function parsePart(text: string): unknown {
   const value: unknown = JSON.parse(text);
   return text.includes("\\u0000opgate-number:") ? restore(value) : value;
 }
@@ -157,18 +172,43 @@ function restore(value: unknown): unknown {
   return value;
 }
 
-interface Entry {
+/**
+ * An entry is one line of JSON (this header), then three parts back to back, their lengths in
+ * bytes in the header: the result's outline (what the whole-run reports read), the whole result,
+ * and the result's text in the JSON report. `sha256` covers the three parts. A warm run reads
+ * the header and outline when it looks an entry up, and the JSON text when it writes the report:
+ * the whole result is parsed only for a report that needs it (JUnit, HTML, charts).
+ */
+interface Header {
   readonly format: string;
   readonly key: string;
   readonly file: string;
   readonly deps: readonly CacheDependency[];
-  readonly result: CircuitResult;
+  readonly outline: number;
+  readonly result: number;
+  readonly json: number;
+  readonly sha256: string;
 }
 
 export interface CacheLookup {
   readonly key: string;
   /** The stored result when the entry is present, whole and still valid. */
   readonly result?: CircuitResult;
+}
+
+/** A valid entry found by probe(): its outline now, the rest read when it is used. */
+export interface CacheHit {
+  readonly key: string;
+  readonly outline: CircuitOutline;
+}
+
+/** An entry's parts as a report uses them (read again, and verified again, when used). */
+export interface CachedParts {
+  readonly outline: CircuitOutline;
+  /** The text of the circuit in the JSON report (jsonCircuit(result, true)), as bytes. */
+  readonly json: Buffer;
+  /** The whole result, parsed on first call. */
+  result(): CircuitResult;
 }
 
 export interface CacheStats {
@@ -178,6 +218,13 @@ export interface CacheStats {
   ignored: number;
   firstIgnored?: string;
   writeFailed?: string;
+}
+
+interface Parsed {
+  readonly header: Header;
+  readonly bytes: Buffer;
+  /** Offset of the first part. */
+  readonly body: number;
 }
 
 export class ResultCache {
@@ -193,7 +240,7 @@ export class ResultCache {
 
   /** Path of the entry for a key (two-level fan-out keeps folders small). */
   entryPath(key: string): string {
-    return join(this.root, key.slice(0, 2), `${key}.json`);
+    return join(this.root, key.slice(0, 2), `${key}.entry`);
   }
 
   /** The key of a file from its bytes (read now); null when it cannot be read (it is checked, and reports that). */
@@ -207,45 +254,100 @@ export class ResultCache {
     return createHash("sha256").update(this.runKeyHex).update("\0").update(file.display).update("\0").update(bytes).digest("hex");
   }
 
-  lookup(file: CircuitFile): CacheLookup | null {
+  /**
+   * Looks a file up: null when the file cannot be read (no key), else its key and, when a valid
+   * entry is present, its outline. Counts a hit or a miss.
+   */
+  probe(file: CircuitFile): { key: string; hit?: CacheHit } | null {
     const key = this.keyOf(file);
     if (key === null) return null;
-    const path = this.entryPath(key);
-    let text: string;
-    try {
-      text = readFileSync(path, "utf8");
-    } catch (err) {
-      if ((err as NodeJS.ErrnoException).code !== "ENOENT") this.ignore(path, `cannot be read (${(err as NodeJS.ErrnoException).code ?? "error"})`);
-      this.stats.misses++;
-      return { key };
-    }
-    const why = this.invalid(text, key, file.display);
-    if (typeof why === "string") {
-      this.ignore(path, why);
+    const parts = this.read(key, file.display);
+    if (!parts) {
       this.stats.misses++;
       return { key };
     }
     this.stats.hits++;
-    return { key, result: why.result };
+    return { key, hit: { key, outline: parts.outline } };
   }
 
-  /** Why an entry's text cannot be trusted, or the entry. */
-  private invalid(text: string, key: string, display: string): string | Entry {
-    let entry: Entry;
-    try {
-      entry = parseEntry(text) as Entry;
-    } catch {
-      return "is not valid JSON";
+  /**
+   * The parts of a hit found by probe(), read and verified again (the entry may have been
+   * removed or replaced since); null when it no longer holds (the caller checks the file).
+   */
+  parts(hit: CacheHit, display: string): CachedParts | null {
+    const parts = this.read(hit.key, display);
+    if (!parts) {
+      this.stats.hits--;
+      this.stats.misses++;
     }
-    if (entry === null || typeof entry !== "object" || entry.format !== CACHE_FORMAT) return "is not an entry of this cache format";
-    if (entry.key !== key || entry.file !== display) return "belongs to another file or policy";
-    const result = entry.result as unknown;
-    if (result === null || typeof result !== "object" || (result as CircuitResult).file !== display || !Array.isArray((result as CircuitResult).findings)) return "holds no result";
-    if (!Array.isArray(entry.deps)) return "has no dependency list";
-    for (const dep of entry.deps) {
+    return parts;
+  }
+
+  /** Looks a file up and parses its whole result (tests; a run uses probe and parts). */
+  lookup(file: CircuitFile): CacheLookup | null {
+    const found = this.probe(file);
+    if (!found?.hit) return found;
+    const parts = this.parts(found.hit, file.display);
+    return parts ? { key: found.key, result: parts.result() } : { key: found.key };
+  }
+
+  private read(key: string, display: string): CachedParts | null {
+    const path = this.entryPath(key);
+    let bytes: Buffer;
+    try {
+      bytes = readFileSync(path);
+    } catch (err) {
+      if ((err as NodeJS.ErrnoException).code !== "ENOENT") this.ignore(path, `cannot be read (${(err as NodeJS.ErrnoException).code ?? "error"})`);
+      return null;
+    }
+    const entry = this.invalid(bytes, key, display);
+    if (typeof entry === "string") {
+      this.ignore(path, entry);
+      return null;
+    }
+    const { header, body } = entry;
+    const outlineEnd = body + header.outline;
+    const resultEnd = outlineEnd + header.result;
+    let outline: CircuitOutline;
+    try {
+      outline = parsePart(bytes.toString("utf8", body, outlineEnd)) as CircuitOutline;
+    } catch {
+      this.ignore(path, "holds an outline that is not valid JSON");
+      return null;
+    }
+    if (outline === null || typeof outline !== "object" || outline.file !== display || !Array.isArray(outline.findings)) {
+      this.ignore(path, "holds no result");
+      return null;
+    }
+    let result: CircuitResult | undefined;
+    return {
+      outline,
+      json: bytes.subarray(resultEnd, resultEnd + header.json),
+      result: () => (result ??= parsePart(bytes.toString("utf8", outlineEnd, resultEnd)) as CircuitResult),
+    };
+  }
+
+  /** Why an entry's bytes cannot be trusted, or its header. */
+  private invalid(bytes: Buffer, key: string, display: string): string | Parsed {
+    const eol = bytes.indexOf(10);
+    if (eol < 0) return "is not an entry of this cache format";
+    let header: Header;
+    try {
+      header = JSON.parse(bytes.toString("utf8", 0, eol)) as Header;
+    } catch {
+      return "is not an entry of this cache format";
+    }
+    if (header === null || typeof header !== "object" || header.format !== CACHE_FORMAT) return "is not an entry of this cache format";
+    if (header.key !== key || header.file !== display) return "belongs to another file or policy";
+    const body = eol + 1;
+    const sizes = [header.outline, header.result, header.json];
+    if (!sizes.every((n) => Number.isSafeInteger(n) && n >= 0) || body + header.outline + header.result + header.json !== bytes.length) return "is cut short or padded";
+    if (sha256(bytes.subarray(body)) !== header.sha256) return "is corrupt (its digest does not match)";
+    if (!Array.isArray(header.deps)) return "has no dependency list";
+    for (const dep of header.deps) {
       if (typeof dep?.path !== "string" || fileDigest(dep.path) !== dep.sha256) return `is stale (${typeof dep?.path === "string" ? dep.path : "a dependency"} changed)`;
     }
-    return entry;
+    return { header, bytes, body };
   }
 
   private ignore(path: string, why: string): void {
@@ -253,21 +355,29 @@ export class ResultCache {
     this.stats.firstIgnored ??= `${path} ${why}`;
   }
 
-  /** Stores a result under its key (whole file, renamed into place); a failure is remembered, not thrown. */
+  /**
+   * Stores a result under its key (whole file, renamed into place); a failure is remembered, not
+   * thrown. `result` is stored as given: a run stores it normalised, as its reports show it.
+   */
   store(key: string, result: CircuitResult, deps: readonly (string | CacheDependency)[] = []): void {
-    const entry: Entry = {
+    const parts = [JSON.stringify(outlineOf(result), encode), JSON.stringify(result, encode), jsonCircuit(result, true)].map((t) => Buffer.from(t, "utf8"));
+    const body = Buffer.concat(parts);
+    const header: Header = {
       format: CACHE_FORMAT,
       key,
       file: result.file,
       // A path alone is digested now; a dependency with its digest keeps the one the result was made with.
       deps: deps.map((d) => (typeof d === "string" ? { path: d, sha256: fileDigest(d) ?? "" } : d)),
-      result,
+      outline: parts[0]!.length,
+      result: parts[1]!.length,
+      json: parts[2]!.length,
+      sha256: sha256(body),
     };
     const path = this.entryPath(key);
     const temp = `${path}.${process.pid}.${randomBytes(6).toString("hex")}.tmp`;
     try {
       mkdirSync(join(this.root, key.slice(0, 2)), { recursive: true });
-      writeFileSync(temp, JSON.stringify(entry, encode));
+      writeFileSync(temp, Buffer.concat([Buffer.from(`${JSON.stringify(header)}\n`, "utf8"), body]));
       renameSync(temp, path);
     } catch (err) {
       rmSync(temp, { force: true });

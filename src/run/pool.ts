@@ -53,6 +53,11 @@ export interface PoolOptions {
   readonly mainThreadLane?: boolean;
   /** What a worker is (lane.ts); default DEFAULT_LANE. */
   readonly lanes?: LaneKind;
+  /**
+   * Each result as it arrives (any order; `index` is the file's position). When given, the pool
+   * keeps no result: the array it returns is empty, and memory stays with the caller's choice.
+   */
+  readonly onResult?: (index: number, result: CircuitResult) => void;
 }
 
 export function internalErrorResult(file: CircuitFile, message: string): CircuitResult {
@@ -85,7 +90,7 @@ export function internalErrorResult(file: CircuitFile, message: string): Circuit
 }
 
 export async function checkFiles(files: readonly CircuitFile[], options: PoolOptions): Promise<CircuitResult[]> {
-  const results: (CircuitResult | undefined)[] = new Array(files.length);
+  const results: (CircuitResult | undefined)[] = options.onResult ? [] : new Array(files.length);
   const total = files.length;
   let next = 0;
   /** Files handed back by a dead worker that it had not started yet. */
@@ -93,7 +98,8 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
   let done = 0;
   const take = (): number | undefined => (requeued.length > 0 ? requeued.shift() : next < total ? next++ : undefined);
   const finish = (i: number, result: CircuitResult): void => {
-    results[i] = result;
+    if (options.onResult) options.onResult(i, result);
+    else results[i] = result;
     done++;
     options.onProgress?.(done, total);
   };
@@ -101,11 +107,13 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
   const inProcess = async (): Promise<void> => {
     for (let i = take(); i !== undefined; i = take()) {
       const file = files[i]!;
+      let result: CircuitResult;
       try {
-        finish(i, await checkFile(file.abs, options.ctx, file.display));
+        result = await checkFile(file.abs, options.ctx, file.display);
       } catch (err) {
-        finish(i, internalErrorResult(file, `the check stopped: ${err instanceof Error ? err.message : String(err)}`));
+        result = internalErrorResult(file, `the check stopped: ${err instanceof Error ? err.message : String(err)}`);
       }
+      finish(i, result);
       // A check never waits on I/O (files are read synchronously), so its awaits only run
       // microtasks: without this turn of the event loop, workers' results and requests for more
       // files would wait until this lane had checked every file itself.

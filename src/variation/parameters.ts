@@ -3,8 +3,8 @@
 // range. Each moves on its own (no grouping by kind or sign). Design values without a band
 // (an exact resistor) are parameters too, with a zero band: they never move in a corner or a
 // sample, but their sensitivities tell a reviewer which part to change.
-import type { Circuit } from "../circuit/types.js";
-import { SPREAD_FIELDS, valueField, variedQuantities, withPicks } from "./quantities.js";
+import type { Circuit, Component, Model, Spread, Toleranced } from "../circuit/types.js";
+import { SPREAD_FIELDS, valueField, variedQuantities } from "./quantities.js";
 import type { VariationSettings } from "./types.js";
 
 export type ParameterKind = "tolerance" | "spread" | "temperature";
@@ -80,15 +80,51 @@ export function nominalValues(params: readonly Parameter[]): Float64Array {
 
 /** The circuit with each parameter at the given value (temperature in kelvin). */
 export function circuitAt(circuit: Circuit, params: readonly Parameter[], values: Float64Array): Circuit {
-  const picks = new Map<string, number>();
-  let temperature = circuit.temperature;
-  for (let i = 0; i < params.length; i++) {
-    const p = params[i]!;
-    const v = values[i]!;
-    if (p.kind === "temperature") temperature = v;
-    else if (v !== p.nominal) picks.set(p.key, v);
-  }
-  return withPicks(circuit, picks, temperature);
+  return circuitMaker(circuit, params)(values);
+}
+
+/**
+ * `circuitAt` for many value sets of one circuit (every corner or sample): where each parameter
+ * goes is worked out once, so a sample copies only the components and models it changes (the
+ * same circuit as withPicks gives, without a key string and map lookup per component).
+ */
+export function circuitMaker(circuit: Circuit, params: readonly Parameter[]): (values: Float64Array) => Circuit {
+  const componentAt = new Map(circuit.components.map((c, i) => [c.id, i]));
+  // Per parameter: a component index with its field, a model id with its field, or temperature.
+  const targets = params.map((p) => {
+    if (p.kind === "temperature") return { kind: "temperature" as const };
+    const dot = p.key.lastIndexOf(".");
+    const field = p.key.slice(dot + 1);
+    if (p.kind === "tolerance") return { kind: "component" as const, index: componentAt.get(p.owner)!, field };
+    return { kind: "model" as const, model: p.owner, field };
+  });
+  return (values) => {
+    let components: Component[] | null = null;
+    let models: Map<string, Model> | null = null;
+    let temperature = circuit.temperature;
+    for (let i = 0; i < params.length; i++) {
+      const v = values[i]!;
+      const t = targets[i]!;
+      if (t.kind === "temperature") {
+        temperature = v;
+        continue;
+      }
+      if (v === params[i]!.nominal) continue;
+      if (t.kind === "component") {
+        components ??= circuit.components.slice();
+        const c = components[t.index]!;
+        const band = (c as unknown as Record<string, Toleranced>)[t.field]!;
+        components[t.index] = { ...c, [t.field]: { ...band, nominal: v } } as Component;
+      } else {
+        models ??= new Map(circuit.models);
+        const m = models.get(t.model)!;
+        const s = (m as unknown as Record<string, Spread>)[t.field]!;
+        models.set(t.model, { ...m, [t.field]: { ...s, typ: v } } as Model);
+      }
+    }
+    if (components === null && models === null && temperature === circuit.temperature) return circuit;
+    return { ...circuit, components: components ?? circuit.components, models: models ?? circuit.models, temperature };
+  };
 }
 
 /** One parameter's place in a set: "min", "max", or its value. */

@@ -18,7 +18,7 @@ import { renderSarif } from "../../src/report/sarif.js";
 import { documentProblems } from "../../src/report/validate.js";
 import { makeCheckContext } from "../../src/run/context.js";
 import { discoverCircuitFiles } from "../../src/run/discover.js";
-import { runCheck } from "../../src/run/run-check.js";
+import { runCheckDocument } from "../../src/run/run-check.js";
 import { expectGolden } from "./golden.js";
 import { descendants, parseXml } from "./xml.js";
 
@@ -42,7 +42,7 @@ let doc: ResultsDocument;
 beforeAll(async () => {
   const ctx = await makeCheckContext({ cwd: ROOT });
   const files = await discoverCircuitFiles(["examples"], { cwd: ROOT, root: ROOT, include: ctx.config.include, exclude: ctx.config.exclude, circuitsOnly: true });
-  doc = await runCheck(files, { ctx, contextOptions: { cwd: ROOT }, jobs: 1 });
+  doc = await runCheckDocument(files, { ctx, contextOptions: { cwd: ROOT }, jobs: 1 });
 });
 
 describe("reports of the examples", () => {

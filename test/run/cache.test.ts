@@ -8,7 +8,7 @@ import { join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { checkFile } from "../../src/pipeline/check-file.js";
-import { CACHE_FORMAT, defaultCacheDir, ResultCache, runKey } from "../../src/run/cache.js";
+import { CACHE_FORMAT, defaultCacheDir, FORMAT_DIR, ResultCache, runKey } from "../../src/run/cache.js";
 import { makeCheckContext } from "../../src/run/context.js";
 import { EXAMPLES, cli, exampleFiles, makeRepo } from "./repo.js";
 
@@ -95,9 +95,9 @@ describe("result cache through check", () => {
     const d = join(repo.dir, ".cache-b");
     const plain = await reports(null);
     await reports(d);
-    const entries = readdirSync(join(d, "v1"), { recursive: true, encoding: "utf8" })
-      .filter((f) => f.endsWith(".json"))
-      .map((f) => join(d, "v1", f));
+    const entries = readdirSync(join(d, FORMAT_DIR), { recursive: true, encoding: "utf8" })
+      .filter((f) => f.endsWith(".entry"))
+      .map((f) => join(d, FORMAT_DIR, f));
     expect(entries.length).toBe(files.length);
     // Corrupt: cut short; foreign: another file's entry under this name; unreadable: a folder.
     writeFileSync(entries[0]!, readFileSync(entries[0]!, "utf8").slice(0, 100));
@@ -200,9 +200,9 @@ describe("result cache, key and entries", () => {
     expect(JSON.stringify(reader.lookup(file)!.result)).toBe(JSON.stringify(result));
     expect(hits + reader.stats.misses).toBeGreaterThan(0);
     // No temporary files left behind.
-    const left = readdirSync(join(d, "v1"), { recursive: true, encoding: "utf8" }).filter((f) => f.endsWith(".tmp"));
+    const left = readdirSync(join(d, FORMAT_DIR), { recursive: true, encoding: "utf8" }).filter((f) => f.endsWith(".tmp"));
     expect(left).toEqual([]);
-    expect(JSON.parse(readFileSync(reader.entryPath(got(reader, file)), "utf8")).format).toBe(CACHE_FORMAT);
+    expect(JSON.parse(readFileSync(reader.entryPath(got(reader, file)), "utf8").split("\n")[0]!).format).toBe(CACHE_FORMAT);
   }, 60_000);
 });
 

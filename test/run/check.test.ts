@@ -48,7 +48,7 @@ describe("opgate check", () => {
     expect(two.stdout).toBe(one.stdout);
     // Seven files are too few for a worker to pay back its start-up: force workers (and keep
     // this process out of it) so that every file really crosses a process or thread boundary.
-    const { runCheck } = await import("../../src/run/run-check.js");
+    const { runCheckDocument } = await import("../../src/run/run-check.js");
     const { makeCheckContext } = await import("../../src/run/context.js");
     const { discoverCircuitFiles } = await import("../../src/run/discover.js");
     const { renderJson } = await import("../../src/report/json.js");
@@ -56,10 +56,10 @@ describe("opgate check", () => {
     const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude, circuitsOnly: true });
     const notices: string[] = [];
     const onNotice = (m: string): void => void notices.push(m);
-    const single = await runCheck(files, { ctx, contextOptions: { cwd: repo.dir }, jobs: 1 });
+    const single = await runCheckDocument(files, { ctx, contextOptions: { cwd: repo.dir }, jobs: 1 });
     expect(renderJson(single)).toBe(read("out/j1.json"));
     for (const lanes of ["process", "thread"] as const) {
-      const workers = await runCheck(files, { ctx, contextOptions: { cwd: repo.dir }, jobs: 2, minFilesPerWorker: 1, mainThreadLane: false, lanes, onNotice });
+      const workers = await runCheckDocument(files, { ctx, contextOptions: { cwd: repo.dir }, jobs: 2, minFilesPerWorker: 1, mainThreadLane: false, lanes, onNotice });
       expect(notices).toEqual([]);
       expect(renderJson(workers)).toBe(renderJson(single));
     }

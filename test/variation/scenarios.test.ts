@@ -1,7 +1,8 @@
 // Scenario generation: corners cover each extreme, Monte Carlo is seeded and stays in band.
 import { describe, expect, it } from "vitest";
 import type { Circuit, Component } from "../../src/circuit/types.js";
-import { buildScenarios, variedQuantities } from "../../src/variation/index.js";
+import { buildScenarios, variedQuantities, withPicks } from "../../src/variation/index.js";
+import { circuitMaker, variationParameters } from "../../src/variation/parameters.js";
 import { seededRandom, triangular } from "../../src/variation/random.js";
 
 const pos = { file: "t.yaml", line: 1, column: 1 };
@@ -92,5 +93,24 @@ describe("variation", () => {
     const n = 20000;
     for (let i = 0; i < n; i++) sum += triangular(random, 100, 200, 400);
     expect(sum / n).toBeCloseTo(700 / 3, -0.5);
+  });
+
+  it("a sample's circuit is the circuit withPicks builds from the same values, and nominal values give the circuit itself", () => {
+    const c = circuit();
+    const params = variationParameters(c, { temperature: { min: 253.15, max: 333.15 } });
+    const make = circuitMaker(c, params);
+    const random = seededRandom(5);
+    for (let k = 0; k < 20; k++) {
+      const values = Float64Array.from(params, (p) => (random() < 0.3 ? p.nominal : p.min + (p.max - p.min) * random()));
+      const picks = new Map<string, number>();
+      let temperature = c.temperature;
+      params.forEach((p, i) => {
+        if (p.kind === "temperature") temperature = values[i]!;
+        else if (values[i] !== p.nominal) picks.set(p.key, values[i]!);
+      });
+      expect(make(values)).toEqual(withPicks(c, picks, temperature));
+    }
+    const atNominal = Float64Array.from(params, (p) => (p.kind === "temperature" ? c.temperature : p.nominal));
+    expect(make(atNominal)).toBe(c);
   });
 });

@@ -1,0 +1,102 @@
+// What the reporters that see the whole run at once (markdown, SARIF, annotations, console, the
+// baseline comparison, the summary) read of each circuit: its outline. A run streams each full
+// result to the JSON and JUnit reports as it arrives and keeps only the outline, so memory grows
+// with the findings of a run, not with its operating points, responses and hand analyses.
+//
+// The outline types are subsets of the results document's, so a whole ResultsDocument is also a
+// ReportDocument: the same reporter gives the same text for a document built in memory and for
+// the outlines of a streamed run (the compiler keeps the reporters to these fields).
+import { EXPLAINED_RULES } from "./explain-md.js";
+import type { CircuitResult, CircuitStatus, DeviceEntry, Finding, GainEntry, MonteCarloEntry, OperatingPointEntry, ResultsDocument, ScenarioEntry, Summary } from "./document.js";
+
+/** A gain as the reports read it; the response and hand analysis only where a finding opens them. */
+export type GainOutline = Pick<GainEntry, "name" | "midband" | "magnitude" | "db" | "target" | "window" | "inputImpedance" | "outputImpedance" | "response" | "explanation">;
+
+export type OperatingPointOutline = Pick<OperatingPointEntry, "nodes" | "sources" | "devices" | "solve">;
+
+export type MonteCarloOutline = Omit<MonteCarloEntry, "quantities">;
+
+export interface CircuitOutline {
+  readonly file: string;
+  readonly name: string | null;
+  readonly status: CircuitStatus;
+  readonly operatingPoint: OperatingPointOutline | null;
+  readonly gains: readonly GainOutline[];
+  readonly scenarios: readonly ScenarioEntry[];
+  readonly findings: readonly Finding[];
+  readonly monteCarlo?: MonteCarloOutline;
+  readonly libraries?: CircuitResult["libraries"];
+}
+
+/** Everything of a results document but its circuits and summary (the part known before any file is checked). */
+export type DocumentHead = Omit<ResultsDocument, "circuits" | "summary">;
+
+/** A results document, or the outlines of a streamed run: what the whole-run reporters take. */
+export interface ReportDocument extends DocumentHead {
+  readonly circuits: readonly CircuitOutline[];
+  readonly summary: Summary;
+}
+
+/** The device fields the reports show (markdown's transistor table, the baseline's headroom). */
+const DEVICE_FIELDS = [
+  "kind",
+  "region",
+  "collectorCurrent",
+  "drainCurrent",
+  "collectorEmitterVoltage",
+  "drainSourceVoltage",
+  "headroom",
+  "transconductance",
+  "power",
+] as const;
+const TRANSISTOR_KINDS: ReadonlySet<string> = new Set(["npn", "pnp", "nmos", "pmos"]);
+
+function deviceOutline(d: DeviceEntry): DeviceEntry {
+  const out: Record<string, number | string | null> = { kind: d.kind };
+  for (const key of DEVICE_FIELDS) if (key in d) out[key] = d[key]!;
+  return out as DeviceEntry;
+}
+
+/** The outline of a (normalised) circuit result. */
+export function outlineOf(c: CircuitOutline): CircuitOutline {
+  const explained = new Set(c.findings.filter((f) => EXPLAINED_RULES.has(f.rule)).map((f) => f.subject));
+  const op = c.operatingPoint;
+  let devices: Record<string, DeviceEntry> | undefined;
+  if (op) {
+    devices = {};
+    for (const id of Object.keys(op.devices)) {
+      const d = op.devices[id]!;
+      if (TRANSISTOR_KINDS.has(d.kind) || typeof d.headroom === "number") devices[id] = deviceOutline(d);
+    }
+  }
+  const gains = c.gains.map((g): GainOutline => {
+    const base = {
+      name: g.name,
+      midband: g.midband,
+      magnitude: g.magnitude,
+      db: g.db,
+      target: g.target,
+      window: g.window,
+      inputImpedance: g.inputImpedance,
+      outputImpedance: g.outputImpedance,
+    };
+    if (!explained.has(g.name)) return base;
+    return { ...base, ...(g.response !== undefined ? { response: g.response } : {}), ...(g.explanation !== undefined ? { explanation: g.explanation } : {}) };
+  });
+  let monteCarlo: MonteCarloOutline | undefined;
+  if (c.monteCarlo) {
+    const { quantities: _dropped, ...rest } = c.monteCarlo as MonteCarloEntry;
+    monteCarlo = rest;
+  }
+  return {
+    file: c.file,
+    name: c.name,
+    status: c.status,
+    operatingPoint: op && devices ? { nodes: op.nodes, sources: op.sources, devices, solve: op.solve } : null,
+    gains,
+    scenarios: c.scenarios,
+    findings: c.findings,
+    ...(monteCarlo ? { monteCarlo } : {}),
+    ...(c.libraries ? { libraries: c.libraries } : {}),
+  };
+}
