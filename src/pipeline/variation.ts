@@ -22,7 +22,7 @@ import {
 import { seededRandom } from "../variation/random.js";
 import { sensitivities, type Readings, type SensitivityTable } from "../variation/sensitivity.js";
 import type { Scenario, VariationSettings } from "../variation/types.js";
-import { worstCaseCorners } from "../variation/worst-case.js";
+import { worstCaseCorners, type Judged, type WorstCaseOptions } from "../variation/worst-case.js";
 import { MAX_SAMPLES } from "../variation/scenarios.js";
 import type { ScenarioAnalysis } from "./types.js";
 
@@ -83,9 +83,21 @@ export interface VariationOutcome {
   readonly parameters: readonly Parameter[];
   /** Where the time went (the nominal analysis included). */
   readonly times: StageTimes;
+  /** Re-linearisations reused from another quantity's, and disagreeing corners left as verified (far from every limit). */
+  readonly search?: { readonly reused: number; readonly farFromLimit: number };
 }
 
-export async function runVariation(circuit: Circuit, settings: VariationSettings, session: RuleSession, failOnRank: number): Promise<VariationOutcome> {
+/**
+ * `search` changes how the worst-case search re-linearises (the bench runs it both ways side by
+ * side); the check always uses the defaults.
+ */
+export async function runVariation(
+  circuit: Circuit,
+  settings: VariationSettings,
+  session: RuleSession,
+  failOnRank: number,
+  search: Omit<WorstCaseOptions, "maxEvaluations"> = {},
+): Promise<VariationOutcome> {
   const warm: WarmStart = { x: null };
   const times: StageTimes = { solve: 0, smallSignal: 0, rules: 0 };
   const nominalScenario: Scenario = { id: "nominal", label: `nominal, ${celsiusLabel(circuit.temperature)}`, circuit };
@@ -139,7 +151,7 @@ export async function runVariation(circuit: Circuit, settings: VariationSettings
   const sensitivityAnalyses = analyses;
   let cornerCount = 0;
   const width = 3;
-  const judge = async (values: Float64Array): Promise<Readings | null> => {
+  const judge = async (values: Float64Array): Promise<Judged | null> => {
     analyses++;
     const id = `corner-${String(++cornerCount).padStart(width, "0")}`;
     const set = settingsOf(params, values);
@@ -148,9 +160,9 @@ export async function runVariation(circuit: Circuit, settings: VariationSettings
     const a = analyse(scenarioAt(values, id, label), warm, times);
     scenarios.push({ id, label, converged: a.solve.ok });
     const r = await judged(session, a, times);
-    return a.solve.ok ? numbers(r) : null;
+    return a.solve.ok ? { values: numbers(r), limits: r.values } : null;
   };
-  const wc = banded === 0 ? null : await worstCaseCorners(table, judge, measure, { maxEvaluations: Math.max(0, maxAnalyses - analyses) });
+  const wc = banded === 0 ? null : await worstCaseCorners(table, judge, measure, { ...search, maxEvaluations: Math.max(0, maxAnalyses - analyses) });
   if (wc?.truncated)
     budget.push({
       message: `the worst-case search stopped after ${analyses} analyses (per-circuit budget of ${VARIATION_BUDGET.toLocaleString("en")} analyses × components); some quantities have no verified corner`,
@@ -167,7 +179,8 @@ export async function runVariation(circuit: Circuit, settings: VariationSettings
     refinementAnalyses: wc?.refinementEvaluations ?? 0,
     refinedQuantities: wc ? wc.worst.filter((w) => w.refinements > 0).length : 0,
   };
-  return { ...base, nominal, scenarios, parameters: params, table, summary, cornerOf: (id) => corners.get(id) };
+  const searched = wc ? { reused: wc.reusedRelinearisations, farFromLimit: wc.farFromLimit } : undefined;
+  return { ...base, nominal, scenarios, parameters: params, table, summary, cornerOf: (id) => corners.get(id), ...(searched ? { search: searched } : {}) };
 }
 
 async function judged(session: RuleSession, a: ScenarioAnalysis, times: StageTimes): Promise<ScenarioReadings> {
