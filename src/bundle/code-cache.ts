@@ -99,7 +99,7 @@ export function loadBundled(file: string, dir: string | undefined, require: Node
   const script = new Script(Module.wrap(source), {
     filename: file,
     ...(cachedData ? { cachedData } : {}),
-    // import() inside the file (tsx, junit-report-builder) goes to Node's own loader.
+    // import() inside the file (junit-report-builder, esbuild, a team rule) goes to Node's own loader.
     importModuleDynamically: vmConstants.USE_MAIN_CONTEXT_DEFAULT_LOADER,
   });
   const outcome: CodeCacheOutcome = entry === undefined ? "off" : damaged || script.cachedDataRejected ? "refused" : !cachedData ? "miss" : "hit";
