@@ -10,6 +10,8 @@ import { BUILTIN_RULES } from "../rules/index.js";
 import { loadCircuitFile } from "../src/circuit/index.js";
 import type { Circuit, Component, Model } from "../src/circuit/types.js";
 import { runVariation, type StageTimes } from "../src/pipeline/variation.js";
+import type { VariationEntry } from "../src/report/document.js";
+import type { WorstCaseOptions } from "../src/variation/worst-case.js";
 import { RuleSession, type ConfiguredRule } from "../src/review/engine.js";
 import { solveOperatingPoint, type WarmStart } from "../src/solve/index.js";
 import { sampleValues } from "../src/variation/monte-carlo.js";
@@ -44,16 +46,33 @@ export function tolerancedChain(nodes: number): Circuit {
 
 const rules = (): ConfiguredRule[] => [...BUILTIN_RULES.values()].filter((r) => r.severity !== "off").map((rule) => ({ rule, severity: rule.severity as "error", options: {}, source: "builtin" }));
 
-async function worstCaseRow(name: string, circuit: Circuit): Promise<string> {
+interface WorstCaseRun {
+  readonly ms: number;
+  readonly summary: VariationEntry | null;
+  readonly search: { readonly reused: number; readonly farFromLimit: number } | undefined;
+  readonly findings: string;
+}
+
+async function worstCase(circuit: Circuit, search: Omit<WorstCaseOptions, "maxEvaluations">): Promise<WorstCaseRun> {
   const settings = { mode: "corners" as const, samples: 1, seed: 1, temperature: AMBIENT };
   const t0 = performance.now();
   const session = new RuleSession({ circuit, rules: rules() });
-  const v = await runVariation(circuit, settings, session, 2);
-  session.finish();
+  const v = await runVariation(circuit, settings, session, 2, search);
+  const results = session.finish();
   const ms = performance.now() - t0;
-  const s = v.summary;
-  if (!s) return `| ${name} | — | — | — | — | — | — | ${ms.toFixed(1)} |`;
-  return `| ${name} | ${s.variedParameters} | ${s.quantities} | ${s.analyses} (${s.sensitivityAnalyses} + ${s.corners} corners + ${s.refinementAnalyses} re-linearisation) | ${(s.analyses / Math.max(1, s.variedParameters)).toFixed(1)} | ${(s.analyses / Math.max(1, s.quantities)).toFixed(2)} | ${s.refinedQuantities} | ${ms.toFixed(1)} |`;
+  const findings = results.findings.map((f) => `${f.rule} ${f.subject} ${f.severity} ${f.measured?.toPrecision(6)}`).join("; ");
+  return { ms, summary: v.summary, search: v.search, findings };
+}
+
+/** Before (every disagreeing corner re-linearised, each on its own) and after (near a limit only, shared), side by side. */
+async function worstCaseRow(name: string, circuit: Circuit): Promise<string> {
+  const before = await worstCase(circuit, { nearLimitOnly: false, reuseGradients: false });
+  const after = await worstCase(circuit, {});
+  const s = after.summary;
+  const b = before.summary;
+  if (!s || !b) return `| ${name} | — | — | — | — | — | — | — | ${before.ms.toFixed(1)} → ${after.ms.toFixed(1)} | — |`;
+  const same = before.findings === after.findings ? "same" : "DIFFER";
+  return `| ${name} | ${s.variedParameters} | ${s.quantities} | ${b.analyses} (${b.sensitivityAnalyses} + ${b.corners} corners + ${b.refinementAnalyses} re-linearisation) | ${s.analyses} (${s.sensitivityAnalyses} + ${s.corners} corners + ${s.refinementAnalyses} re-linearisation) | ${(s.analyses / Math.max(1, s.variedParameters)).toFixed(1)} | ${(s.analyses / Math.max(1, s.quantities)).toFixed(2)} | ${b.refinedQuantities} → ${s.refinedQuantities} (${after.search?.farFromLimit ?? 0} far from a limit, ${after.search?.reused ?? 0} reused) | ${before.ms.toFixed(1)} → ${after.ms.toFixed(1)} | ${same} |`;
 }
 
 function monteCarloSolves(circuit: Circuit, warm: boolean): { ms: number; iterations: number; failed: number } {
@@ -103,8 +122,8 @@ function median(xs: readonly number[]): number {
 export async function benchVariation(): Promise<void> {
   console.log("Shared 2-core machine with other engineers' jobs running: figures are noisy; compare ratios within this run.\n");
   console.log("### Worst-case analysis (sensitivities by central differences, one verified corner per judged quantity and direction)\n");
-  console.log("| circuit | varied parameters | judged quantities | analyses | per varied parameter | per judged quantity | quantities re-linearised | ms |");
-  console.log("|---|---:|---:|---|---:|---:|---:|---:|");
+  console.log("| circuit | varied parameters | judged quantities | analyses before (every disagreeing corner re-linearised) | analyses after (near a limit only, re-linearisations shared) | after, per varied parameter | after, per judged quantity | quantities re-linearised | ms before → after | findings (rule, subject, severity, worst value) |");
+  console.log("|---|---:|---:|---|---|---:|---:|---|---:|---|");
   const chain = tolerancedChain(30);
   await worstCaseRow("generated chain, 30 nodes", chain); // warm-up
   console.log(await worstCaseRow("generated chain, 30 nodes", chain));
@@ -112,7 +131,7 @@ export async function benchVariation(): Promise<void> {
   for (const f of readdirSync(dir).filter((n) => n.endsWith(".yaml") && n !== "opgate.config.yaml").sort()) {
     const loaded = await loadCircuitFile(join(dir, f), { displayPath: `examples/${f}` });
     if (!loaded.ok) {
-      console.log(`| examples/${f} | (does not load) | | | | | | |`);
+      console.log(`| examples/${f} | (does not load) | | | | | | | | |`);
       continue;
     }
     console.log(await worstCaseRow(`examples/${f}`, loaded.circuit));

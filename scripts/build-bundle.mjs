@@ -10,6 +10,8 @@
 // junit-report-builder (--junit).
 import { build } from "esbuild";
 import { mkdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { createRequire } from "node:module";
+import { resolve } from "node:path";
 import { deferTopLevelInit } from "../dist/src/bundle/defer-init.js";
 
 const outdir = "dist/bundle";
@@ -30,8 +32,48 @@ const deferInit = {
   },
 };
 const common = { outdir, bundle: true, platform: "node", target: "node20", external: ["tsx", "tsx/*", "junit-report-builder", "esbuild"], legalComments: "none", logLevel: "warning", plugins: [deferInit] };
+// Libraries a run seldom needs (src/bundle/vendor.ts): one file per group, loaded on first touch.
+const VENDOR_GROUPS = {
+  ajv: ["ajv", "ajv/dist/2020.js", "ajv/dist/standalone/index.js", "ajv-formats"],
+  markdown: ["mdast-util-to-markdown", "mdast-util-gfm"],
+  glob: ["fast-glob"],
+};
+const vendorKeys = {};
+for (const [group, specs] of Object.entries(VENDOR_GROUPS)) {
+  const file = `${outdir}/vendor-${group}.js`;
+  await build({
+    ...common,
+    stdin: { contents: `module.exports = {\n${specs.map((spec) => `  ${JSON.stringify(spec)}: require(${JSON.stringify(spec)}),`).join("\n")}\n};\n`, resolveDir: process.cwd(), sourcefile: `vendor-${group}.js` },
+    outdir: undefined,
+    outfile: file,
+    format: "cjs",
+  });
+  // Each package's own properties and whether they are enumerable: the stand-in lists them without loading.
+  const loaded = createRequire(import.meta.url)(resolve(file));
+  for (const spec of specs) {
+    const exports = loaded[spec];
+    vendorKeys[spec] = { group, keys: Object.fromEntries(Reflect.ownKeys(exports).filter((k) => typeof k === "string").map((k) => [k, Reflect.getOwnPropertyDescriptor(exports, k).enumerable])) };
+  }
+}
+const vendorModule = resolve("dist/src/bundle/vendor.js");
+const lazyVendors = {
+  name: "lazy-vendors",
+  setup(b) {
+    const specs = Object.keys(vendorKeys);
+    b.onResolve({ filter: new RegExp(`^(${specs.map((s) => s.replace(/[.*+?^${}()|[\]\\/]/g, "\\$&")).join("|")})$`) }, (args) => ({ path: args.path, namespace: "lazy-vendor" }));
+    b.onLoad({ filter: /.*/, namespace: "lazy-vendor" }, (args) => {
+      const { group, keys } = vendorKeys[args.path];
+      return {
+        contents: `const { lazyModule, vendorModule } = require(${JSON.stringify(vendorModule)});\nmodule.exports = lazyModule(() => vendorModule(${JSON.stringify(group)}, ${JSON.stringify(args.path)}), ${JSON.stringify(keys)});\n`,
+        loader: "js",
+        resolveDir: process.cwd(),
+      };
+    });
+  },
+};
 await build({
   ...common,
+  plugins: [deferInit, lazyVendors],
   entryPoints: { bin: "dist/src/bundle/bin.js", cli: "dist/src/bundle/cli.js", "plugin-host": "dist/src/bundle/plugin-host.js" },
   format: "cjs",
   // The sources are ES modules: import.meta.url is the bundle file's URL, as it was.

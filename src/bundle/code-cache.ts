@@ -3,7 +3,7 @@
 // JavaScript again: the bytecode V8 made the last time is kept in opgate's cache folder (the
 // result cache's, src/run/cache.ts), folder `code`, one entry per file. An entry is keyed by the
 // file's path, length and CRC-32 (0.4 ms for 2 MB; a SHA-256 of the text costs ~8 ms of every
-// start) and the Node and V8 versions and machine: V8 itself tells sources apart only by their
+// start), the Node and V8 versions, Node's options and the machine: V8 itself tells sources apart only by their
 // length, and runs its stale bytecode for an edited file of the same length. V8 checks an entry
 // too (its own version and flags, the source's length) and refuses a foreign one; V8 checks its
 // payload's checksum only in debug builds, so each entry also carries a CRC-32 of its bytes (as
@@ -70,7 +70,10 @@ function entryPrefix(file: string): string {
 }
 
 function entryName(file: string, bytes: Buffer): string {
-  const key = createHash("sha256").update(`${file}\0${bytes.length}\0${crc32(bytes)}\0${process.version}\0${process.versions.v8}\0${process.arch}`).digest("hex");
+  // Node's options too: V8 refuses an entry made under other engine flags, and two ways of
+  // starting opgate (with and without NODE_OPTIONS) would otherwise replace each other's entry.
+  const flags = `${process.execArgv.join(" ")}\0${process.env.NODE_OPTIONS ?? ""}`;
+  const key = createHash("sha256").update(`${file}\0${bytes.length}\0${crc32(bytes)}\0${process.version}\0${process.versions.v8}\0${process.arch}\0${flags}`).digest("hex");
   return `${entryPrefix(file)}${key.slice(0, 32)}.v8`;
 }
 
@@ -96,7 +99,7 @@ export function loadBundled(file: string, dir: string | undefined, require: Node
   const script = new Script(Module.wrap(source), {
     filename: file,
     ...(cachedData ? { cachedData } : {}),
-    // import() inside the file (tsx, junit-report-builder) goes to Node's own loader.
+    // import() inside the file (junit-report-builder, esbuild, a team rule) goes to Node's own loader.
     importModuleDynamically: vmConstants.USE_MAIN_CONTEXT_DEFAULT_LOADER,
   });
   const outcome: CodeCacheOutcome = entry === undefined ? "off" : damaged || script.cachedDataRejected ? "refused" : !cachedData ? "miss" : "hit";

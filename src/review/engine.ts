@@ -228,6 +228,13 @@ export interface Reading {
   readonly measured: number;
   readonly limit: number | null;
   readonly bound: Bound | null;
+  /**
+   * The tightest limits any report of this quantity gave in the scenario, per side (a rule may
+   * report its minimum and its maximum separately): the largest `min` bound and the smallest
+   * `max` bound; null where no report gave one.
+   */
+  readonly lower: number | null;
+  readonly upper: number | null;
 }
 
 /** What one scenario gave: every numeric reading by quantity key, and how bad it was. */
@@ -418,7 +425,16 @@ class Sink {
     if (o.margin !== null && o.margin < tally.lowestMargin) tally.lowestMargin = o.margin;
     if (o.measured !== null && Number.isFinite(o.measured)) {
       const key = keyOf(state, o.subject, o.unit);
-      if (!tally.values.has(key)) tally.values.set(key, { rule: state.configured.rule.id, subject: o.subject, unit: o.unit, measured: o.measured, limit: o.limit, bound: o.bound ?? null });
+      const limit = o.limit !== null && !Number.isNaN(o.limit) && o.bound !== undefined ? o.limit : null;
+      const known = tally.values.get(key) as { lower: number | null; upper: number | null } | undefined;
+      if (known === undefined) {
+        const lower = limit !== null && o.bound === "min" ? limit : null;
+        const upper = limit !== null && o.bound === "max" ? limit : null;
+        tally.values.set(key, { rule: state.configured.rule.id, subject: o.subject, unit: o.unit, measured: o.measured, limit: o.limit, bound: o.bound ?? null, lower, upper });
+      } else if (limit !== null) {
+        if (o.bound === "min" && (known.lower === null || limit > known.lower)) known.lower = limit;
+        if (o.bound === "max" && (known.upper === null || limit < known.upper)) known.upper = limit;
+      }
     }
     // A broken rule is kept even from a measuring step: it must surface as an error finding.
     if (!this.#keepOutcomes && !o.broken) return;

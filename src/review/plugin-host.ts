@@ -97,7 +97,7 @@ async function load(paths: readonly string[]): Promise<WireExport[]> {
       out.push({ error: err instanceof Error ? err.message : String(err) });
       continue;
     }
-    // tsx may wrap a CommonJS-style module as { default: { default: … } }.
+    // A CommonJS-style module (`exports.default = …`) arrives wrapped as { default: { default: … } }.
     let exported = mod.default;
     if (exported && typeof exported === "object" && !Array.isArray(exported) && "default" in exported && !("id" in exported))
       exported = (exported as { default: unknown }).default;

@@ -1,5 +1,5 @@
-// Team rule plugins: modules in the user's repository (JavaScript, or TypeScript loaded through
-// tsx without a build step) whose default export is a rule or a list of rules — made with
+// Team rule plugins: modules in the user's repository (JavaScript, or TypeScript compiled once and
+// kept in the plugin cache, plugin-compile.ts: no build step) whose default export is a rule or a list of rules — made with
 // `defineRule` from the `opgate` package, or plain objects of the same shape. Also assembles the
 // rules in play (built-in + plugins) with the config's severities and options. Plugins are
 // imported, and their rules run, in a thread of their own (contain.ts, plugin-host.ts).

@@ -5,7 +5,7 @@ import { bjt } from "../devices/bjt.js";
 import { capacitor } from "../devices/capacitor.js";
 import { currentControlled, voltageControlled } from "../devices/controlled.js";
 import { currentSource } from "../devices/current-source.js";
-import { DeviceSetupError, EntryList, TouchedList, type DeviceInstance, type SetupContext, type StampTarget } from "../devices/device.js";
+import { DeviceSetupError, EntryList, TouchedList, type BindContext, type DeviceInstance, type SetupContext, type StampTarget } from "../devices/device.js";
 import { diode } from "../devices/diode.js";
 import { inductor } from "../devices/inductor.js";
 import { mosfet } from "../devices/mosfet.js";
@@ -100,15 +100,36 @@ function instantiate(c: Component, ctx: SetupContext): DeviceInstance {
 }
 
 /**
- * From this many unknowns on, a plan stores its matrices sparse (sparse-lu.ts); below it dense,
- * where scanning n² entries is cheaper than following index lists. Measured side by side on the
- * bench chains (bench/solve.ts).
+ * From this many unknowns on, a plan stores its matrices sparse (sparse-lu.ts); below it dense.
+ * Measured side by side on the bench chains (CPU per solve, dense/sparse, 2026-12-02): 0.97× at
+ * 11 unknowns, 1.00–1.02× at 20–50, 1.06× at 65, 1.12× at 101, 1.49× at 302 — sparse wins by
+ * more than the noise from here on. (It was 250 while the sparse path rebuilt its layout on every
+ * solve and took 17 Newton iterations at 300 nodes: sparse was then 0.84× dense at 302.)
  */
-export const SPARSE_MIN_UNKNOWNS = 250;
+export const SPARSE_MIN_UNKNOWNS = 64;
 
 export type MatrixStorage = "dense" | "sparse" | "auto";
 
-export function compilePlan(circuit: Circuit, storage: MatrixStorage = "auto"): CompileResult {
+/** The node unknowns of a circuit's node list: what every plan of that list starts from. */
+interface NodeTable {
+  readonly ground: string;
+  readonly nodeIndex: ReadonlyMap<string, number>;
+  readonly nodeNames: readonly string[];
+  readonly nodeSlots: readonly number[];
+  readonly unknowns: readonly Unknown[];
+}
+
+/**
+ * Node tables by node list. A circuit's node list is immutable and every scenario of it (a
+ * corner, a Monte Carlo sample: other values, same topology) shares it, so the name → unknown
+ * map is built once per list (at 3,000 nodes it was ~5 % of a solve). A plan that meets a pin on
+ * a node the list lacks copies the table before adding to it.
+ */
+const nodeTables = new WeakMap<readonly string[], NodeTable>();
+
+function nodeTableOf(circuit: Circuit): NodeTable {
+  const known = nodeTables.get(circuit.nodes);
+  if (known && known.ground === circuit.ground) return known;
   const unknowns: Unknown[] = [];
   const nodeIndex = new Map<string, number>();
   const nodeNames: string[] = [];
@@ -120,6 +141,18 @@ export function compilePlan(circuit: Circuit, storage: MatrixStorage = "auto"): 
     nodeSlots.push(unknowns.length);
     unknowns.push({ kind: "node", name });
   }
+  const table: NodeTable = { ground: circuit.ground, nodeIndex, nodeNames, nodeSlots, unknowns };
+  nodeTables.set(circuit.nodes, table);
+  return table;
+}
+
+export function compilePlan(circuit: Circuit, storage: MatrixStorage = "auto"): CompileResult {
+  const table = nodeTableOf(circuit);
+  const unknowns: Unknown[] = table.unknowns.slice();
+  let nodeIndex = table.nodeIndex as Map<string, number>;
+  let nodeNames = table.nodeNames as string[];
+  let nodeSlots = table.nodeSlots as number[];
+  let shared = true;
   const ctx: SetupContext = {
     circuit,
     temperature: circuit.temperature,
@@ -127,7 +160,14 @@ export function compilePlan(circuit: Circuit, storage: MatrixStorage = "auto"): 
       if (name === circuit.ground) return -1;
       let i = nodeIndex.get(name);
       if (i === undefined) {
-        // A pin on a node the loader did not list: still solvable, so give it an unknown.
+        // A pin on a node the loader did not list: still solvable, so give it an unknown (in a
+        // copy of the shared node table).
+        if (shared) {
+          nodeIndex = new Map(nodeIndex);
+          nodeNames = nodeNames.slice();
+          nodeSlots = nodeSlots.slice();
+          shared = false;
+        }
         i = unknowns.length;
         nodeIndex.set(name, i);
         nodeNames.push(name);
@@ -147,19 +187,25 @@ export function compilePlan(circuit: Circuit, storage: MatrixStorage = "auto"): 
     model: (id) => circuit.models.get(id),
   };
   const devices: DeviceInstance[] = [];
-  const byId = new Map<string, DeviceInstance>();
   try {
-    for (const c of circuit.components) {
-      const d = instantiate(c, ctx);
-      devices.push(d);
-      byId.set(c.id, d);
-    }
+    for (const c of circuit.components) devices.push(instantiate(c, ctx));
   } catch (err) {
     if (err instanceof DeviceSetupError) return { ok: false, reason: err.message, parts: err.parts };
     throw err;
   }
+  // Devices by id, built only when a current-controlled source asks (most circuits have none).
+  let byId: Map<string, DeviceInstance> | undefined;
+  const bind: BindContext = {
+    sensedCurrent(id) {
+      if (!byId) {
+        byId = new Map();
+        for (let k = 0; k < devices.length; k++) byId.set(circuit.components[k]!.id, devices[k]!);
+      }
+      return byId.get(id)?.sensed;
+    },
+  };
   for (const d of devices) {
-    const msg = d.bind?.({ sensedCurrent: (id) => byId.get(id)?.sensed });
+    const msg = d.bind?.(bind);
     if (msg !== undefined) return { ok: false, reason: msg, parts: [d.id] };
   }
   const n = unknowns.length;
@@ -204,22 +250,28 @@ export function compilePlan(circuit: Circuit, storage: MatrixStorage = "auto"): 
     }
     target = { a, b, n };
   } else {
-    const entries = new EntryList(4 * devices.length + 16);
+    const entries = SPARSE_ENTRIES;
+    entries.count = 0;
     const staticTarget: StampTarget = { a: EMPTY, b: bSource, n, entries };
     for (const d of devices) {
       d.stampStatic?.(staticTarget);
       d.stampSource?.(bSource);
     }
-    patternCols = sparsePattern(n, entries, isNodeRow, nonlinear, patternRowStart);
-    const nnz = patternCols.length;
+    const layout = sparseLayout(n, entries, isNodeRow, nonlinear);
+    patternRowStart.set(layout.rowStart);
+    const nnz = layout.cols.length;
+    patternCols = scratchInt32("plan-pattern-cols", nnz);
+    patternCols.set(layout.cols);
     pattern = scratchInt32("plan-pattern", nnz);
     for (let t = 0; t < nnz; t++) pattern[t] = t;
     const entryOf = (row: number, col: number): number => findEntry(patternRowStart, patternCols, row, col);
     aStatic = scratchFloat64("plan-a-static", nnz);
     a = scratchFloat64("plan-a", nnz);
     aStatic.fill(0);
-    for (let t = 0; t < entries.count; t++) aStatic[entryOf(entries.rows[t]!, entries.cols[t]!)]! += entries.vals[t]!;
-    for (let i = 0; i < n; i++) diagonal[i] = isNodeRow[i] ? entryOf(i, i) : -1;
+    const slots = layout.staticSlots;
+    const vals = entries.vals;
+    for (let t = 0; t < entries.count; t++) aStatic[slots[t]!]! += vals[t]!;
+    diagonal.set(layout.diagonal);
     target = { a, b, n, entryOf };
   }
   return {
@@ -268,12 +320,38 @@ function findEntry(rowStart: Int32Array, cols: Int32Array, row: number, col: num
 }
 
 /**
- * The sparse pattern's columns in compressed rows (rowStart receives where each row begins):
- * node rows' diagonals (gmin), every pair of a nonlinear device's stamp indices, and every entry
- * a static stamp wrote (kept even where the static values cancel: a zero entry is harmless).
- * Work and memory follow the entries, never n².
+ * Where a sparse plan's entries go: the pattern in compressed rows, the slot of each static
+ * entry (in the order the static stamps wrote them) and of each node row's diagonal.
  */
-function sparsePattern(n: number, entries: EntryList, isNodeRow: Uint8Array, nonlinear: readonly DeviceInstance[], rowStart: Int32Array): Int32Array {
+interface SparseLayout {
+  readonly n: number;
+  /** The candidate entries it was built from (rows, then columns), to recognise the same layout. */
+  readonly candRow: Int32Array;
+  readonly candCol: Int32Array;
+  readonly rowStart: Int32Array;
+  readonly cols: Int32Array;
+  readonly staticSlots: Int32Array;
+  readonly diagonal: Int32Array;
+}
+
+/** The static entries of a sparse plan, reused from plan to plan (compiling is synchronous). */
+const SPARSE_ENTRIES = new EntryList(256);
+
+/**
+ * Layouts built recently (most recent last). Every scenario of a circuit has its topology, so its
+ * static stamps write the same entries in the same order: the layout is then looked up by
+ * comparing the candidate lists (a linear scan) instead of sorting them and searching each
+ * entry's slot (at 3,000 nodes that was ~0.5 ms of a ~10 ms solve).
+ */
+const RECENT_LAYOUTS = 4;
+const recentLayouts: SparseLayout[] = [];
+
+/**
+ * The layout of a sparse plan. Its pattern holds node rows' diagonals (gmin), every pair of a
+ * nonlinear device's stamp indices, and every entry a static stamp wrote (kept even where the
+ * static values cancel: a zero entry is harmless). Work and memory follow the entries, never n².
+ */
+function sparseLayout(n: number, entries: EntryList, isNodeRow: Uint8Array, nonlinear: readonly DeviceInstance[]): SparseLayout {
   let bound = n + entries.count;
   for (let d = 0; d < nonlinear.length; d++) {
     const k = nonlinear[d]!.stampIndices?.length ?? 0;
@@ -301,9 +379,23 @@ function sparsePattern(n: number, entries: EntryList, isNodeRow: Uint8Array, non
       }
     }
   }
+  const firstStatic = count;
+  const { rows, cols: entryCols } = entries;
   for (let t = 0; t < entries.count; t++) {
-    candRow[count] = entries.rows[t]!;
-    candCol[count++] = entries.cols[t]!;
+    candRow[count] = rows[t]!;
+    candCol[count++] = entryCols[t]!;
+  }
+  for (let k = recentLayouts.length - 1; k >= 0; k--) {
+    const l = recentLayouts[k]!;
+    if (l.n !== n || l.candRow.length !== count || l.staticSlots.length !== entries.count) continue;
+    let same = true;
+    for (let t = 0; t < count && same; t++) same = l.candRow[t] === candRow[t] && l.candCol[t] === candCol[t];
+    if (!same) continue;
+    if (k !== recentLayouts.length - 1) {
+      recentLayouts.splice(k, 1);
+      recentLayouts.push(l);
+    }
+    return l;
   }
   // Bucket by row, sort each row's columns, drop repeats.
   const start = scratchInt32("sparse-row-fill", n + 1);
@@ -314,6 +406,7 @@ function sparsePattern(n: number, entries: EntryList, isNodeRow: Uint8Array, non
   const next = scratchInt32("sparse-next", n);
   for (let i = 0; i < n; i++) next[i] = start[i]!;
   for (let t = 0; t < count; t++) bucket[next[candRow[t]!]!++] = candCol[t]!;
+  const rowStart = new Int32Array(n + 1);
   let out = 0;
   for (let i = 0; i < n; i++) {
     const s = start[i]!;
@@ -339,9 +432,15 @@ function sparsePattern(n: number, entries: EntryList, isNodeRow: Uint8Array, non
     }
   }
   rowStart[n] = out;
-  const cols = scratchInt32("plan-pattern-cols", out);
-  cols.set(bucket.subarray(0, out));
-  return cols;
+  const cols = Int32Array.from(bucket.subarray(0, out));
+  const staticSlots = new Int32Array(entries.count);
+  for (let t = 0; t < entries.count; t++) staticSlots[t] = findEntry(rowStart, cols, candRow[firstStatic + t]!, candCol[firstStatic + t]!);
+  const diagonal = new Int32Array(n);
+  for (let i = 0; i < n; i++) diagonal[i] = isNodeRow[i] ? findEntry(rowStart, cols, i, i) : -1;
+  const layout: SparseLayout = { n, candRow: Int32Array.from(candRow.subarray(0, count)), candCol: Int32Array.from(candCol.subarray(0, count)), rowStart, cols, staticSlots, diagonal };
+  recentLayouts.push(layout);
+  if (recentLayouts.length > RECENT_LAYOUTS) recentLayouts.shift();
+  return layout;
 }
 
 /**

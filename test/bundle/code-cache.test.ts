@@ -32,11 +32,14 @@ const BODY = `const helper = require("./helper.cjs");\nmodule.exports = { sum: (
  * process; within one process V8 keeps a compiled script in memory and never reads the entry
  * again). The entry is written when that process ends. Uses the built module (npm run build).
  */
-function load(file: string, cache: string | undefined, call = "m.sum(2, 3)"): { outcome: string; value: unknown } {
+function load(file: string, cache: string | undefined, call = "m.sum(2, 3)", execArgv: readonly string[] = []): { outcome: string; value: unknown } {
+  // One script text for every load: Node's options (the script of -e among them) are part of the key.
   const script = `import { loadBundled, outcomes } from ${JSON.stringify(pathToFileURL(BUILT).href)};
-const m = loadBundled(${JSON.stringify(file)}, ${cache === undefined ? "undefined" : JSON.stringify(cache)});
-console.log(JSON.stringify({ outcome: outcomes.get(${JSON.stringify(file)}), value: ${call} }));`;
-  const r = spawnSync(process.execPath, ["--input-type=module", "-e", script], { encoding: "utf8" });
+const { TEST_FILE: file, TEST_CACHE: cache, TEST_CALL: call } = process.env;
+const m = loadBundled(file, cache || undefined);
+console.log(JSON.stringify({ outcome: outcomes.get(file), value: new Function("m", "return " + call)(m) }));`;
+  const env = { ...process.env, TEST_FILE: file, TEST_CACHE: cache ?? "", TEST_CALL: call };
+  const r = spawnSync(process.execPath, [...execArgv, "--input-type=module", "-e", script], { encoding: "utf8", env });
   if (r.status !== 0) throw new Error(r.stderr);
   return JSON.parse(r.stdout) as { outcome: string; value: unknown };
 }
@@ -54,6 +57,17 @@ describe("code cache", () => {
     expect(load(file, cache, "m.sum(4, 1)")).toEqual({ outcome: "hit", value: 5 });
     // Nothing to write after a hit: the entry is not touched.
     expect(statSync(join(cache, entries[0]!)).mtimeMs).toBe(before);
+  });
+
+  it("keeps one entry per set of Node options (V8 refuses an entry made under other flags)", () => {
+    module("helper.cjs", "exports.twice = (x) => 2 * x;\n");
+    const file = module("lib.js", BODY);
+    const cache = join(dir, "cache");
+    expect(load(file, cache).outcome).toBe("miss");
+    expect(load(file, cache, "m.sum(2, 3)", ["--stack-size=900"]).outcome).toBe("miss");
+    expect(load(file, cache).outcome).toBe("hit");
+    expect(load(file, cache, "m.sum(2, 3)", ["--stack-size=900"]).outcome).toBe("hit");
+    expect(readdirSync(cache)).toHaveLength(2);
   });
 
   it("misses when the file changes", () => {

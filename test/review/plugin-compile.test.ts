@@ -124,6 +124,23 @@ describe("TypeScript team rule compile cache", () => {
     await expect(compiledRule(rule, cache)).rejects.toThrow(/Cannot find package 'house-limits' imported from .*ceiling\.ts/);
   });
 
+  it("a rule that imports only the rule API from opgate imports that module, not every stage", async () => {
+    mkdirSync(join(repo, "node_modules"));
+    symlinkSync(fileURLToPath(new URL("../../", import.meta.url)), join(repo, "node_modules", "opgate"), "dir");
+    const narrow = write("team-rules/narrow.ts", 'import { defineRule } from "opgate";\nexport default defineRule({ id: "team/narrow", description: "Checks nothing", severity: "note", docs: "d", check() {} });\n');
+    const wide = write("team-rules/wide.ts", 'import { defineRule, loadCircuitText } from "opgate";\nexport const load = typeof loadCircuitText;\nexport default defineRule({ id: "team/wide", description: "Checks nothing", severity: "note", docs: "d", check() {} });\n');
+    const a = await compiledRule(narrow, cache);
+    const narrowCode = readFileSync(fileURLToPath(a.url), "utf8");
+    expect(narrowCode).toMatch(/from "file:\/\/[^"]*\/node_modules\/opgate\/dist\/src\/review\/rule\.js"/);
+    expect(narrowCode).not.toContain("dist/src/index.js");
+    expect(((await import(a.url)) as { default: { id: string } }).default.id).toBe("team/narrow");
+    // More than the rule API: the package's entry, as Node would load it.
+    const b = await compiledRule(wide, cache);
+    expect(readFileSync(fileURLToPath(b.url), "utf8")).toMatch(/from "file:\/\/[^"]*\/node_modules\/opgate\/dist\/src\/index\.js"/);
+    const mod = (await import(b.url)) as { default: { id: string }; load: string };
+    expect([mod.default.id, mod.load]).toEqual(["team/wide", "function"]);
+  });
+
   it("names file:line:column of a compile error, and keeps nothing", async () => {
     const rule = write("team-rules/broken.ts", "export default {\n  id: 'x',\n  check( {\n");
     await expect(compiledRule(rule, cache)).rejects.toThrow(/broken\.ts:4:1: /);

@@ -37,17 +37,19 @@ function solved(r: SolveResult, what: string): OperatingPoint {
 }
 
 describe(`circuits of ${PATTERN_RESTORE_MIN_UNKNOWNS} unknowns and more`, () => {
-  it("satisfy KCL to 1e-9 A and re-solve bit-identically after another circuit of the same size", () => {
+  // Dense storage is forced as well: from SPARSE_MIN_UNKNOWNS the default is sparse, and the
+  // dense path's pattern restore must stay exercised.
+  it.each(["auto", "dense"] as const)("satisfy KCL to 1e-9 A and re-solve bit-identically after another circuit of the same size (%s storage)", (storage) => {
     // 3 unknowns per stage plus the rail and the source branch.
     const stages = Math.ceil(PATTERN_RESTORE_MIN_UNKNOWNS / 3) + 3;
     for (let seed = 1; seed <= 12; seed++) {
       const c = longChain(stages, seed);
-      const op = solved(solveOperatingPoint(c), `seed ${seed}`);
+      const op = solved(solveOperatingPoint(c, { storage }), `seed ${seed}`);
       expect(Object.keys(op.nodes).length + 1).toBeGreaterThanOrEqual(PATTERN_RESTORE_MIN_UNKNOWNS);
       const k = kclError(c, op);
       expect(k.worst, `seed ${seed} node ${k.node}`).toBeLessThan(1e-9);
-      solved(solveOperatingPoint(longChain(stages, seed + 100)), `seed ${seed + 100}`);
-      expect(JSON.stringify(solveOperatingPoint(c))).toBe(JSON.stringify(op));
+      solved(solveOperatingPoint(longChain(stages, seed + 100), { storage }), `seed ${seed + 100}`);
+      expect(JSON.stringify(solveOperatingPoint(c, { storage }))).toBe(JSON.stringify(op));
     }
   });
 

@@ -4,6 +4,8 @@ import deviceCurrent from "../../rules/device-current.js";
 import headroom from "../../rules/headroom.js";
 import { defineRule } from "../../src/review/rule.js";
 import type { BjtPoint, MosPoint } from "../../src/solve/types.js";
+import { judgeWindow } from "../../src/review/window.js";
+import { roomToLimit } from "../../src/variation/worst-case.js";
 import { builtin, CELSIUS, factorial, load, run } from "./helpers.js";
 
 // A rule that reads one node voltage and bounds it on both sides (limits far away: it never fails),
@@ -116,5 +118,91 @@ specs:
     expect(label).toContain("Vth(n) max");
     expect(label).toContain("Vth(p) min");
     expect(label).toContain("−40 °C");
+  });
+});
+
+// Re-linearisation runs only where it can change the verdict. A quantity with a cross term,
+//   f = x − 2·x·y + 3·y,   x = (R1 − 1 kΩ)/50 Ω, y = (R2 − 1 kΩ)/50 Ω (each ±5 %: x, y ∈ [−1, 1]),
+// has ∂f/∂x = 1 − 2y and ∂f/∂y = 3 − 2x (algebra). At nominal both are positive, so the linear
+// corner for its maximum is (1, 1), where f = 2 against a prediction of 4; there ∂f/∂x = −1 has
+// flipped sign, and the corner it points to, (−1, 1), gives f = 4: the maximum of the four corners
+// (2, 4, 0, −6), the 2² factorial the test also computes.
+const bilinear = (limit: number) =>
+  defineRule({
+    id: "cross-term",
+    description: "Reads a quantity with a cross term of R1 and R2",
+    severity: "error",
+    docs: "test rule",
+    check({ circuit }, report) {
+      const value = (id: string) => (circuit.components.find((c) => c.id === id) as { value: { nominal: number } }).value.nominal;
+      const x = (value("R1") - 1000) / 50;
+      const y = (value("R2") - 1000) / 50;
+      const f = x - 2 * x * y + 3 * y;
+      const check = { measured: f, limit, unit: "V", bound: "max" as const };
+      if (f <= limit) report.pass("f", check);
+      else report.fail({ subject: "f", message: `f is ${f}`, ...check });
+    },
+  });
+
+const crossTerm = `components:
+  - { id: VIN, kind: voltage-source, pins: { plus: in, minus: gnd }, voltage: 1 V }
+  - { id: R1, kind: resistor, pins: [in, out], value: 1k, tolerance: 5% }
+  - { id: R2, kind: resistor, pins: [out, gnd], value: 1k, tolerance: 5% }
+`;
+
+describe("re-linearisation only near a limit", () => {
+  const settings = { mode: "corners" as const, samples: 1, seed: 1 };
+  const f = (r1: number, r2: number): number => {
+    const x = (r1 - 1000) / 50;
+    const y = (r2 - 1000) / 50;
+    return x - 2 * x * y + 3 * y;
+  };
+  const full = Math.max(f(950, 950), f(950, 1050), f(1050, 950), f(1050, 1050));
+
+  it("re-linearises a corner within reach of its limit and follows the sign flip to the factorial's maximum", async () => {
+    const r = await run(load(crossTerm), [builtin(bilinear(3.5))], settings);
+    expect(full).toBe(4);
+    const finding = r.findings.find((x) => x.rule === "cross-term")!;
+    expect(finding).toBeDefined();
+    expect(Math.abs(finding.measured! - full)).toBeLessThan(1e-9);
+    expect(r.v.cornerOf(finding.scenario)!.label).toBe("R1 −5 %, R2 +5 %");
+    expect(r.v.summary!.refinementAnalyses).toBeGreaterThan(0);
+    expect(r.v.summary!.refinedQuantities).toBe(1);
+  });
+
+  it("leaves a disagreeing corner far from the limit as verified: no re-linearisation, same verdict", async () => {
+    const far = await run(load(crossTerm), [builtin(bilinear(100))], settings);
+    expect(far.findings).toEqual([]);
+    expect(far.v.summary!.refinementAnalyses).toBe(0);
+    expect(far.v.search!.farFromLimit).toBeGreaterThan(0);
+    // The verified corner (1, 1) is what the worst case reports: 2, short of the maximum 4 but
+    // 96 away from the limit, so the verdict is the factorial's.
+    expect(far.passed.find((p) => p.rule === "cross-term")!.measured).toBeCloseTo(2, 9);
+  });
+
+  it("a bound on the room to an unreported window edge never exceeds the true distance (window.ts reports the nearer edge)", () => {
+    // Property check over random windows and passing values, against src/review/window.ts itself.
+    let seed = 12345;
+    const random = (): number => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648);
+    let checked = 0;
+    for (let k = 0; k < 20000; k++) {
+      const a = (random() - 0.5) * 200;
+      const b = a + random() * 100;
+      const v = a + (b - a) * random();
+      const verdict = judgeWindow(v, { min: a, max: b });
+      if (!verdict.ok) continue;
+      const sign = verdict.bound === "min" ? 1 : -1; // push toward the edge that was not reported
+      const reported = verdict.bound === "min" ? { lower: verdict.limit, upper: null } : { lower: null, upper: verdict.limit };
+      const room = roomToLimit(v, sign, reported);
+      if (room === null) continue;
+      const truth = sign > 0 ? b - v : v - a;
+      expect(room).toBeLessThanOrEqual(truth * (1 + 1e-12) + 1e-12);
+      checked++;
+    }
+    expect(checked).toBeGreaterThan(5000);
+    // One-sided: a limit reported on the side pushed to is the distance itself.
+    expect(roomToLimit(2, 1, { lower: null, upper: 3.5 })).toBe(1.5);
+    expect(roomToLimit(4, 1, { lower: null, upper: 3.5 })).toBe(-0.5);
+    expect(roomToLimit(2, 1, undefined)).toBeNull();
   });
 });
