@@ -4,7 +4,6 @@
 import { spawnSync } from "node:child_process";
 import { appendFileSync, existsSync, readFileSync, realpathSync, statSync } from "node:fs";
 import { availableParallelism } from "node:os";
-import { setFlagsFromString } from "node:v8";
 import { isAbsolute, relative, resolve, sep } from "node:path";
 import type { InputError } from "../circuit/types.js";
 import type { CheckContext, CheckContextOptions } from "../pipeline/check-file.js";
@@ -31,9 +30,6 @@ import { CliExit, EXIT_INPUT, type CliIo } from "./io.js";
 import { checkOutputTargets, writeAtomically, type Input } from "./outputs.js";
 import { openReportWriters, REPORT_FORMATS, type ReportOptions } from "./stream-reports.js";
 import type { CommandSpec } from "./main.js";
-
-/** How far V8 lets the old space grow over the last collection's survivors before the next one, %. */
-const HEAP_GROWING_PERCENT = 50;
 
 /** Below this many files a progress bar only flickers. */
 const PROGRESS_MIN_FILES = 20;
@@ -359,11 +355,6 @@ export const checkCommand: CommandSpec = {
     const cache = openCache(args, ctx, io);
     // The bar is drawn on stderr: whether stderr is a terminal decides, not stdout.
     const showProgress = io.stderrIsTTY === true && io.env.CI !== "true" && !io.env.GITHUB_ACTIONS && files.length >= PROGRESS_MIN_FILES;
-    // Old-space garbage is collected once the heap has grown by half over what the last collection
-    // kept, not by V8's default of up to four times: a long run keeps only outlines, so most of
-    // its heap is garbage (8,000 files, two lanes: 317 MiB peak by default, 268 MiB with this;
-    // DEVELOPERS.md, Performance). Set before any lane starts, so workers get it too.
-    setFlagsFromString(`--heap-growing-percent=${HEAP_GROWING_PERCENT}`);
     // Reports are written while results arrive (src/cli/stream-reports.ts) and moved into place at the end.
     const writers = openReportWriters(targets, io, {
       failOn: ctx.config.failOn,
