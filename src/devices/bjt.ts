@@ -12,7 +12,7 @@
 // βF is the value that reproduces it there (forwardBetaFor), then drifts with temperature.
 import type { Bjt, BjtModel } from "../circuit/types.js";
 import type { BjtPoint, BjtRegion } from "../solve/types.js";
-import { criticalVoltage, limitJunction, warmJunctionVoltage } from "../solve/limiting.js";
+import { criticalVoltage, JUNCTION_REFERENCE_FLOOR, limitJunction, warmJunctionVoltage } from "../solve/limiting.js";
 import {
   DeviceSetupError,
   NO_LINKS,
@@ -165,7 +165,11 @@ class BjtInstance implements DeviceInstance {
     const vbe = this.p * (vb - (this.emi.index >= 0 ? x[this.emi.index]! : 0));
     const vbc = this.p * (vb - (this.col.index >= 0 ? x[this.col.index]! : 0));
     this.lastVbe = saved ? warmJunctionVoltage(vbe, saved[at]!, this.is, this.vt, this.vcrit) : vbe;
-    this.lastVbc = saved ? warmJunctionVoltage(vbc, saved[at + 1]!, this.is, this.vt, this.vcrit) : vbc;
+    // A conducting base–collector junction (saturation) keeps VCE rather than its current: both
+    // junctions move alike with temperature, while the reverse current IR, set by the excess base
+    // drive, can change by a large factor (first steps moved collectors by 0.5 V below 0 °C).
+    const saturated = vbc > this.vcrit - JUNCTION_REFERENCE_FLOOR * this.vt;
+    this.lastVbc = !saved ? vbc : saturated ? this.lastVbe - (vbe - vbc) : warmJunctionVoltage(vbc, saved[at + 1]!, this.is, this.vt, this.vcrit);
     this.primed = this.lastVbe !== vbe || this.lastVbc !== vbc;
   }
 
