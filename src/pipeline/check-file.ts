@@ -114,8 +114,9 @@ export async function checkCircuit(circuit: Circuit, ctx: CheckContext, displayP
   const v = await runVariation(circuit, ctx.config.variation, session, SEVERITY_RANK[failOn]);
   const { findings, passed } = session.finish();
   const bands = new Map(v.parameters.map((p) => [p.key, p]));
-  const decorated = findings.map((f): Finding => {
-    const corner = v.cornerOf(f.scenario);
+  const corners = v.cornersOf(findings.map((f) => ({ scenario: f.scenario, quantity: f.measured === null ? null : quantityKey(f.rule, f.subject, f.unit) })));
+  const decorated = findings.map((f, n): Finding => {
+    const corner = corners[n];
     const key = quantityKey(f.rule, f.subject, f.unit);
     // Sensitivities at nominal name parts only where they explain the finding's worst scenario
     // (src/variation/first-order.ts); an MC sample without a parameter set is taken as explained.

@@ -22,6 +22,7 @@ import {
 import { seededRandom } from "../variation/random.js";
 import { sensitivities, type Readings, type SensitivityTable } from "../variation/sensitivity.js";
 import type { Scenario, VariationSettings } from "../variation/types.js";
+import { sampleCorners } from "../variation/sample-corners.js";
 import { worstCaseCorners, type Judged, type WorstCaseOptions } from "../variation/worst-case.js";
 import { MAX_SAMPLES } from "../variation/scenarios.js";
 import type { ScenarioAnalysis } from "./types.js";
@@ -74,6 +75,12 @@ export interface VariationOutcome {
   readonly scenarios: ScenarioEntry[];
   /** Parameter set of every judged scenario that has one (corners, and MC samples on request). */
   readonly cornerOf: (scenarioId: string) => CornerEntry | undefined;
+  /**
+   * The parameter set of each finding's worst scenario, for many findings at once: a corner's
+   * own set, or for a Monte Carlo sample the few parameters that moved the finding's quantity
+   * (its key, null when it has none) most in that sample (sample-corners.ts).
+   */
+  readonly cornersOf: (requests: readonly { readonly scenario: string; readonly quantity: string | null }[]) => (CornerEntry | undefined)[];
   readonly table: SensitivityTable | null;
   readonly summary: VariationEntry | null;
   readonly monteCarlo: MonteCarloEntry | null;
@@ -106,7 +113,7 @@ export async function runVariation(
   const scenarios: ScenarioEntry[] = [{ id: "nominal", label: nominalScenario.label, converged: nominal.solve.ok }];
   const corners = new Map<string, CornerEntry>();
   const budget: { message: string; hint: string }[] = [];
-  const base: Omit<VariationOutcome, "nominal" | "scenarios"> = { cornerOf: (id) => corners.get(id), table: null, summary: null, monteCarlo: null, budget, parameters: [], times };
+  const base: Omit<VariationOutcome, "nominal" | "scenarios"> = { cornerOf: (id) => corners.get(id), cornersOf: (requests) => requests.map((r) => corners.get(r.scenario)), table: null, summary: null, monteCarlo: null, budget, parameters: [], times };
   if (settings.mode === "nominal" || !nominal.solve.ok) return { ...base, nominal, scenarios };
 
   const params = variationParameters(circuit, settings);
@@ -126,7 +133,7 @@ export async function runVariation(
         hint: "the yield below is from fewer samples (its interval is wider); check this circuit in its own job with fewer samples, or split it",
       });
     const mc = await monteCarlo(params, settings.seed, count, session, scenarios, warm, failOnRank, scenarioAt, times);
-    return { ...base, nominal, scenarios, parameters: params, monteCarlo: mc.entry, cornerOf: (id) => mc.corners.get(id) };
+    return { ...base, nominal, scenarios, parameters: params, monteCarlo: mc.entry, cornerOf: (id) => mc.corners.get(id), cornersOf: mc.cornersOf };
   }
 
   // Worst case: sensitivities of every reading at nominal, then per quantity and direction its corner.
@@ -207,7 +214,7 @@ async function monteCarlo(
   failOnRank: number,
   scenarioAt: (values: Float64Array, id: string, label: string) => Scenario,
   times: StageTimes,
-): Promise<{ entry: MonteCarloEntry; corners: Map<string, CornerEntry> }> {
+): Promise<{ entry: MonteCarloEntry; corners: Map<string, CornerEntry>; cornersOf: VariationOutcome["cornersOf"] }> {
   const random = seededRandom(seed);
   const width = Math.max(4, String(count).length);
   const values = new Float64Array(params.length);
@@ -232,7 +239,7 @@ async function monteCarlo(
     for (const [key, reading] of r.values) {
       let slot = collectors.get(key);
       if (!slot) collectors.set(key, (slot = { rule: reading.rule, subject: reading.subject, unit: reading.unit, c: new Collector(count) }));
-      slot.c.add(reading.measured);
+      slot.c.add(reading.measured, k);
     }
   }
   const corners = new Map<string, CornerEntry>();
@@ -243,6 +250,22 @@ async function monteCarlo(
     corners.set(worst.id, corner);
     worstSample = { scenario: worst.id, lowestMargin: Number.isFinite(worst.margin) ? worst.margin : null, ...corner };
   }
+  // A finding's worst sample, named by the parameters that moved its quantity most there.
+  const index = new Map<string, number>();
+  for (let k = 0; k < count; k++) index.set(`mc-${String(k + 1).padStart(width, "0")}`, k);
+  const cornersOf: VariationOutcome["cornersOf"] = (requests) => {
+    const asked = requests.map((r) => ({ r, k: index.get(r.scenario) }));
+    const layouts = new Map<string, Float64Array | null>();
+    const quantityOf = (key: string | null): Float64Array | null => {
+      if (key === null) return null;
+      if (!layouts.has(key)) layouts.set(key, collectors.get(key)?.c.bySample(count) ?? null);
+      return layouts.get(key)!;
+    };
+    const samples = asked.filter((a) => a.k !== undefined).map((a) => ({ sample: a.k!, quantity: quantityOf(a.r.quantity) }));
+    const described = samples.length ? sampleCorners(params, seed, count, samples) : [];
+    let next = 0;
+    return asked.map((a) => (a.k === undefined ? corners.get(a.r.scenario) : described[next++]));
+  };
   const passed = count - failed;
   const quantities = [...collectors.entries()]
     .sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0))
@@ -260,6 +283,7 @@ async function monteCarlo(
       quantities,
     },
     corners,
+    cornersOf,
   };
 }
 

@@ -58,7 +58,12 @@ function findingLines(c: CircuitOutline, f: Finding, paint: (t: string, c: Colou
   const detail: string[] = [];
   if (f.hint) detail.push(`fix: ${t(f.hint.trim().replace(/[.;]$/, ""))}`);
   // A worst scenario says something only when scenarios were compared.
-  if (f.scenario && (c.scenarios.length > 1 || f.scenario !== "nominal")) detail.push(`worst: ${scenarioText(c, f.scenario)}`);
+  if (f.scenario && (c.scenarios.length > 1 || f.scenario !== "nominal")) {
+    const where = scenarioText(c, f.scenario);
+    // A Monte Carlo sample's label says only its number: its parameter set follows.
+    const set = f.corner ? t(f.corner.label) : "";
+    detail.push(`worst: ${where}${set && !where.includes(set) ? `: ${set}` : ""}`);
+  }
   return detail.length > 0 ? [head, `      ${detail.join("; ")}`] : [head];
 }
 

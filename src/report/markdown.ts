@@ -161,7 +161,7 @@ function circuitFindings(c: CircuitOutline): RootContent[] {
   const items = c.findings.map((f) => {
     const lines: PhrasingContent[] = [strong(text(f.severity)), text(" "), code(f.rule), text(" "), code(f.subject), text(` (line ${f.line}): `), utext(f.message)];
     if (c.scenarios.length > 1 || f.scenario !== "nominal") lines.push(br(), text("Worst scenario: "), utext(scenarioLabel(c, f.scenario)));
-    if (f.corner && !(c.scenarios.find((x) => x.id === f.scenario)?.label === f.corner.label)) lines.push(br(), text("Worst corner: "), utext(f.corner.label));
+    if (f.corner && !(c.scenarios.find((x) => x.id === f.scenario)?.label === f.corner.label)) lines.push(br(), text(c.monteCarlo ? "Its parameters: " : "Worst corner: "), utext(f.corner.label));
     const moves = topSensitivities(f);
     if (moves) lines.push(br(), text("Moves it most: "), utext(moves));
     if (f.hint) lines.push(br(), text("Fix: "), utext(f.hint));

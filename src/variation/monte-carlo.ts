@@ -69,20 +69,33 @@ function percentile(sorted: Float64Array, q: number): number {
 /** The values one quantity took over the samples (those where the rule reported it). */
 export class Collector {
   #values: Float64Array;
+  /** The sample each value came from (0-based). */
+  #samples: Int32Array;
   #count = 0;
   constructor(capacity: number) {
     this.#values = new Float64Array(Math.max(1, capacity));
+    this.#samples = new Int32Array(Math.max(1, capacity));
   }
-  add(v: number): void {
+  add(v: number, sample: number = this.#count): void {
     if (this.#count === this.#values.length) {
       const bigger = new Float64Array(this.#values.length * 2);
       bigger.set(this.#values);
       this.#values = bigger;
+      const more = new Int32Array(this.#samples.length * 2);
+      more.set(this.#samples);
+      this.#samples = more;
     }
+    this.#samples[this.#count] = sample;
     this.#values[this.#count++] = v;
   }
   get count(): number {
     return this.#count;
+  }
+  /** The values laid out by sample, NaN where the quantity was not read. */
+  bySample(samples: number): Float64Array {
+    const out = new Float64Array(samples).fill(NaN);
+    for (let k = 0; k < this.#count; k++) out[this.#samples[k]!] = this.#values[k]!;
+    return out;
   }
   summary(): Distribution | null {
     const n = this.#count;
