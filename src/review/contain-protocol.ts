@@ -38,11 +38,10 @@ export interface WireReport {
 
 export type ToHost =
   | { readonly t: "load"; readonly id: number; readonly paths: readonly string[] }
-  | { readonly t: "circuit"; readonly id: number; readonly analyses: readonly WireAnalysis[] }
-  | { readonly t: "run"; readonly id: number; readonly plugin: number; readonly rule: number; readonly options: unknown };
+  /** `analyses` when they are not the ones of the previous run (sent once, with the first rule's run). */
+  | { readonly t: "run"; readonly id: number; readonly plugin: number; readonly rule: number; readonly options: unknown; readonly analyses?: readonly WireAnalysis[] };
 
 export type FromHost =
   | { readonly t: "loaded"; readonly id: number; readonly plugins: readonly WireExport[]; readonly notes?: readonly string[] }
-  | { readonly t: "ready"; readonly id: number }
   | { readonly t: "ran"; readonly id: number; readonly reports: readonly WireReport[]; readonly errors: readonly { readonly scenario: string; readonly reason: string }[] }
   | { readonly t: "failed"; readonly id: number; readonly reason: string };

@@ -169,11 +169,16 @@ export class PluginHost {
       const deadline = Date.now() + budgetMs;
       const left = (): number => Math.max(1, deadline - Date.now());
       const what = `checking the circuit's ${analyses.length} scenario${analyses.length === 1 ? "" : "s"}`;
-      if (this.circuit !== analyses) {
-        await this.request({ t: "circuit", analyses: analyses as unknown as readonly WireAnalysis[] }, left(), what, budgetMs);
-        this.circuit = analyses;
-      }
-      return this.request<Extract<FromHost, { t: "ran" }>>({ t: "run", plugin, rule, options }, left(), what, budgetMs);
+      // New analyses travel with the run (one round trip per rule and scenario, not two).
+      const fresh = this.circuit !== analyses;
+      const ran = await this.request<Extract<FromHost, { t: "ran" }>>(
+        { t: "run", plugin, rule, options, ...(fresh ? { analyses: analyses as unknown as readonly WireAnalysis[] } : {}) },
+        left(),
+        what,
+        budgetMs,
+      );
+      if (fresh) this.circuit = analyses;
+      return ran;
     });
   }
 }

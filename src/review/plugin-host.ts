@@ -165,11 +165,8 @@ port.on("message", (message: ToHost) => {
         case "load":
           send({ t: "loaded", id: message.id, plugins: await load(message.paths), notes: importNotes.splice(0) });
           return;
-        case "circuit":
-          analyses = deepFreeze(message.analyses);
-          send({ t: "ready", id: message.id });
-          return;
         case "run": {
+          if (message.analyses) analyses = deepFreeze(message.analyses);
           const { reports, errors } = await runRule(message.plugin, message.rule, message.options);
           send({ t: "ran", id: message.id, reports, errors });
           return;
