@@ -122,6 +122,16 @@ function worseThan(a: Outcome, b: Outcome): boolean {
   return a.order < b.order;
 }
 
+/** worseThan(a, b) for a pass a given by its fields (see worseThan). */
+function passWorseThan(margin: number | null, scenario: string, order: number, b: Outcome): boolean {
+  if (b.kind !== "pass") return false;
+  const ma = margin ?? Infinity;
+  const mb = b.margin ?? Infinity;
+  if (ma !== mb) return ma < mb;
+  if (scenario !== b.scenario) return scenarioRank(scenario) < scenarioRank(b.scenario);
+  return order < b.order;
+}
+
 function num(v: number | undefined): number | null {
   return v === undefined || Number.isNaN(v) ? null : v;
 }
@@ -406,38 +416,44 @@ class Sink {
   readonly #state: RuleState;
   readonly #circuit: Circuit;
   readonly #keepOutcomes: boolean;
-  readonly #tally: Tally;
+  readonly #tally_: Tally;
 
   constructor(state: RuleState, circuit: Circuit, keepOutcomes: boolean, tally: Tally) {
     this.#state = state;
     this.#circuit = circuit;
     this.#keepOutcomes = keepOutcomes;
-    this.#tally = tally;
+    this.#tally_ = tally;
+  }
+
+  /** Counts one report in the scenario's readings (positional, so that a pass need not allocate). */
+  #tally(failing: boolean, broken: boolean, subject: string, measured: number | null, limit: number | null, unit: string | null, margin: number | null, bound: Bound | undefined): void {
+    const state = this.#state;
+    const tally = this.#tally_;
+    if (failing) {
+      const rank = broken ? RANK.error : RANK[state.severity];
+      if (rank > tally.failRank) tally.failRank = rank;
+    }
+    if (margin !== null && margin < tally.lowestMargin) tally.lowestMargin = margin;
+    if (measured !== null && Number.isFinite(measured)) {
+      const key = keyOf(state, subject, unit);
+      const bounded = limit !== null && !Number.isNaN(limit) && bound !== undefined ? limit : null;
+      const known = tally.values.get(key) as { lower: number | null; upper: number | null } | undefined;
+      if (known === undefined) {
+        const lower = bounded !== null && bound === "min" ? bounded : null;
+        const upper = bounded !== null && bound === "max" ? bounded : null;
+        tally.values.set(key, { rule: state.configured.rule.id, subject, unit, measured, limit, bound: bound ?? null, lower, upper });
+      } else if (bounded !== null) {
+        if (bound === "min" && (known.lower === null || bounded > known.lower)) known.lower = bounded;
+        if (bound === "max" && (known.upper === null || bounded < known.upper)) known.upper = bounded;
+      }
+    }
   }
 
   #keep(o: Outcome): void {
-    const state = this.#state;
-    const tally = this.#tally;
-    if (o.kind === "fail") {
-      const rank = o.broken ? RANK.error : RANK[state.severity];
-      if (rank > tally.failRank) tally.failRank = rank;
-    }
-    if (o.margin !== null && o.margin < tally.lowestMargin) tally.lowestMargin = o.margin;
-    if (o.measured !== null && Number.isFinite(o.measured)) {
-      const key = keyOf(state, o.subject, o.unit);
-      const limit = o.limit !== null && !Number.isNaN(o.limit) && o.bound !== undefined ? o.limit : null;
-      const known = tally.values.get(key) as { lower: number | null; upper: number | null } | undefined;
-      if (known === undefined) {
-        const lower = limit !== null && o.bound === "min" ? limit : null;
-        const upper = limit !== null && o.bound === "max" ? limit : null;
-        tally.values.set(key, { rule: state.configured.rule.id, subject: o.subject, unit: o.unit, measured: o.measured, limit: o.limit, bound: o.bound ?? null, lower, upper });
-      } else if (limit !== null) {
-        if (o.bound === "min" && (known.lower === null || limit > known.lower)) known.lower = limit;
-        if (o.bound === "max" && (known.upper === null || limit < known.upper)) known.upper = limit;
-      }
-    }
+    this.#tally(o.kind === "fail", o.broken === true, o.subject, o.measured, o.limit, o.unit, o.margin, o.bound);
     // A broken rule is kept even from a measuring step: it must surface as an error finding.
     if (!this.#keepOutcomes && !o.broken) return;
+    const state = this.#state;
     const prev = state.worst.get(o.subject);
     if (!prev || worseThan(o, prev)) state.worst.set(o.subject, o);
   }
@@ -488,18 +504,19 @@ class Sink {
     const problems = passReportProblems(subject, p);
     if (problems.length > 0) return this.broken(scenario, `it reported a pass the results cannot hold: ${problems.join("; ")}`);
     const r = (p ?? {}) as PassReport;
-    this.#keep({
-      kind: "pass",
-      subject: subject as string,
-      message: "",
-      measured: num(r.measured),
-      limit: num(r.limit),
-      unit: r.unit ?? null,
-      margin: marginOf(r.measured, r.limit, r.bound),
-      scenario,
-      order: this.#state.order++,
-      bound: r.bound,
-    });
+    const state = this.#state;
+    const name = subject as string;
+    const measured = num(r.measured);
+    const limit = num(r.limit);
+    const unit = r.unit ?? null;
+    const margin = marginOf(r.measured, r.limit, r.bound);
+    const order = state.order++;
+    this.#tally(false, false, name, measured, limit, unit, margin, r.bound);
+    if (!this.#keepOutcomes) return;
+    // Most passes of a streamed circuit are no worse than the one kept: compared before any object is made.
+    const prev = state.worst.get(name);
+    if (prev && !passWorseThan(margin, scenario, order, prev)) return;
+    state.worst.set(name, { kind: "pass", subject: name, message: "", measured, limit, unit, margin, scenario, order, bound: r.bound });
   }
 }
 

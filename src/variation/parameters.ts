@@ -112,14 +112,20 @@ export function circuitMaker(circuit: Circuit, params: readonly Parameter[]): (v
       if (v === params[i]!.nominal) continue;
       if (t.kind === "component") {
         components ??= circuit.components.slice();
+        // Copied with Object.assign: on Node 20 a spread followed by a computed key costs
+        // microseconds per part once the component shapes vary (every corner and sample pays it).
         const c = components[t.index]!;
-        const band = (c as unknown as Record<string, Toleranced>)[t.field]!;
-        components[t.index] = { ...c, [t.field]: { ...band, nominal: v } } as Component;
+        const band = Object.assign({}, (c as unknown as Record<string, Toleranced>)[t.field]!, { nominal: v });
+        const copy = Object.assign({}, c) as unknown as Record<string, unknown>;
+        copy[t.field] = band;
+        components[t.index] = copy as unknown as Component;
       } else {
         models ??= new Map(circuit.models);
         const m = models.get(t.model)!;
-        const s = (m as unknown as Record<string, Spread>)[t.field]!;
-        models.set(t.model, { ...m, [t.field]: { ...s, typ: v } } as Model);
+        const spread = Object.assign({}, (m as unknown as Record<string, Spread>)[t.field]!, { typ: v });
+        const copy = Object.assign({}, m) as unknown as Record<string, unknown>;
+        copy[t.field] = spread;
+        models.set(t.model, copy as unknown as Model);
       }
     }
     if (components === null && models === null && temperature === circuit.temperature) return circuit;
