@@ -4,8 +4,8 @@
 //
 // - 2,000 files: --jobs 1 and --jobs 2 interleaved over several rounds, each beside the machine's
 //   own 2-thread reference loops measured in the same round (this shared machine's spare capacity
-//   changes from minute to minute); the check phase alone on worker threads and on child
-//   processes; the result cache: uncached, the run that fills it, and warm re-runs (target 1 s).
+//   changes from minute to minute); the check phase alone, in this process, on one and two lanes;
+//   the result cache: uncached, the run that fills it, and warm re-runs (target 1 s).
 // - 8,000 files (OPGATE_BENCH_LARGE=1, a few minutes): --jobs 1 and --jobs 2 with all four reports
 //   (JSON, JUnit, markdown, SARIF), their peak resident memory (target 300 MiB) and the lanes'
 //   speed-up against the reference loop (target 0.85 of it).
@@ -147,40 +147,35 @@ interface Phase {
   /** --jobs 1: wall seconds, and CPU seconds of this process over the same span (all its threads). */
   readonly one: number;
   readonly oneCpu: number;
-  /** --jobs 2 with worker threads, and with child processes (lane.ts); interleaved, medians. */
-  readonly twoThreads: number;
-  readonly twoProcesses: number;
+  /** --jobs 2 (a worker thread beside this one); median of the rounds. */
+  readonly two: number;
   readonly load: number;
 }
 
-/** Rounds of the in-process phase comparison (threads and processes alternate). */
+/** Rounds of the in-process phase with two lanes. */
 const PHASE_ROUNDS = 3;
 
 /**
  * The check phase alone, in this process (warm, as a long CLI run is for most of its files):
- * the pool over every file with 1 job and with 2 jobs on either kind of worker (their start-up
- * included; process start-up and report writing not). The two kinds alternate over rounds.
+ * the pool over every file with 1 job and with 2 jobs (the worker's start-up included; process
+ * start-up and report writing not).
  */
 async function timePhase(dir: string): Promise<Phase> {
   const m = await phaseModules();
   const ctx = await m.makeCheckContext({ cwd: dir });
   const files = await m.discoverCircuitFiles(["boards"], { cwd: dir, root: dir, include: ctx.config.include, exclude: ctx.config.exclude });
-  const time = async (jobs: number, lanes: "thread" | "process" = "thread"): Promise<{ wall: number; cpu: number }> => {
+  const time = async (jobs: number): Promise<{ wall: number; cpu: number }> => {
     const cpu = process.cpuUsage();
     const start = process.hrtime.bigint();
-    await m.checkFiles(files, { jobs, context: { cwd: dir }, ctx, lanes, onResult: () => undefined });
+    await m.checkFiles(files, { jobs, context: { cwd: dir }, ctx, onResult: () => undefined });
     const used = process.cpuUsage(cpu);
     return { wall: Number(process.hrtime.bigint() - start) / 1e9, cpu: (used.user + used.system) / 1e6 };
   };
   await time(1); // warm-up
   const one = await time(1);
-  const threads: number[] = [];
-  const processes: number[] = [];
-  for (let r = 0; r < PHASE_ROUNDS; r++) {
-    threads.push((await time(2, "thread")).wall);
-    processes.push((await time(2, "process")).wall);
-  }
-  return { one: one.wall, oneCpu: one.cpu, twoThreads: median(threads), twoProcesses: median(processes), load: loadavg()[0]! };
+  const two: number[] = [];
+  for (let r = 0; r < PHASE_ROUNDS; r++) two.push((await time(2)).wall);
+  return { one: one.wall, oneCpu: one.cpu, two: median(two), load: loadavg()[0]! };
 }
 
 /**
@@ -351,8 +346,7 @@ export async function benchRepo(): Promise<RepoBenchResult> {
     printLanes(lanes, false);
     const phase = await timePhase(dir);
     console.log(
-      `  check phase alone (in-process, warm, ${REPO_FILES} files): --jobs 1 ${phase.one.toFixed(2)} s (${(phase.oneCpu / phase.one).toFixed(2)} cores busy); --jobs 2 on worker threads ${phase.twoThreads.toFixed(2)} s (${(phase.one / phase.twoThreads).toFixed(2)}x), ` +
-        `on child processes ${phase.twoProcesses.toFixed(2)} s (${(phase.one / phase.twoProcesses).toFixed(2)}x); medians of ${PHASE_ROUNDS} alternating rounds; load ${phase.load.toFixed(1)}`,
+      `  check phase alone (in-process, warm, ${REPO_FILES} files): --jobs 1 ${phase.one.toFixed(2)} s (${(phase.oneCpu / phase.one).toFixed(2)} cores busy); --jobs 2 ${phase.two.toFixed(2)} s (${(phase.one / phase.two).toFixed(2)}x, median of ${PHASE_ROUNDS}); load ${phase.load.toFixed(1)}`,
     );
     const uncachedSeconds = median(rounds.map((r) => r.one.seconds));
     const cached = timeCached(bin, dir, rounds[0]!.one.json);

@@ -1,4 +1,4 @@
-// Checks files on workers (`--jobs N`: worker threads by default, see lane.ts), or in this
+// Checks files on workers (`--jobs N`: worker threads, see lane.ts), or in this
 // process alone for one job. Results are placed by file position, so their order never depends on
 // scheduling. A worker that dies takes only the file it was checking with it: that file gets an
 // `internal` error result, the worker is replaced, and the run goes on. If workers cannot start
@@ -6,7 +6,7 @@
 import { checkFile, type CheckContext, type CheckContextOptions } from "../pipeline/check-file.js";
 import type { CircuitResult } from "../report/document.js";
 import type { CircuitFile } from "./discover.js";
-import { startLane, type Lane, type LaneKind } from "./lane.js";
+import { startLane, type Lane } from "./lane.js";
 import type { FromWorker, ToWorker, WorkerStart } from "./protocol.js";
 
 /**
@@ -26,9 +26,6 @@ export const MIN_FILES_PER_WORKER = 2000;
  * shares stay even at the end of a run.
  */
 export const PREFETCH = 4;
-
-/** Workers are threads unless asked otherwise (see lane.ts for why). */
-export const DEFAULT_LANE: LaneKind = "thread";
 
 /** Replacements allowed per job slot before giving up on threads (a crash loop would never end). */
 export const RESPAWNS_PER_JOB = 3;
@@ -51,8 +48,6 @@ export interface PoolOptions {
   readonly minFilesPerWorker?: number;
   /** Default true. Tests set false so that every file goes through a worker. */
   readonly mainThreadLane?: boolean;
-  /** What a worker is (lane.ts); default DEFAULT_LANE. */
-  readonly lanes?: LaneKind;
   /**
    * Each result as it arrives (any order; `index` is the file's position). When given, the pool
    * keeps no result: the array it returns is empty, and memory stays with the caller's choice.
@@ -132,7 +127,6 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
   // This thread is one of the lanes: it is warm already, while a worker first has to load the
   // whole pipeline. So `--jobs N` runs N − 1 workers beside it.
   await new Promise<void>((resolveAll) => {
-    const kind = options.lanes ?? DEFAULT_LANE;
     const start: WorkerStart = { context: options.context, ...(options.crashOn !== undefined ? { crashOn: options.crashOn } : {}) };
     const live = new Set<Lane>();
     const mainLane = options.mainThreadLane ?? true;
@@ -211,7 +205,7 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
         if (workLeft && mainLane && requeued.length > 0 && live.size === 0) void inProcess().then(checkDone);
         checkDone();
       };
-      lane = startLane(kind, start, { message: onMessage, error: (message) => void (lastError = message), exit: onExit });
+      lane = startLane(start, { message: onMessage, error: (message) => void (lastError = message), exit: onExit });
       live.add(lane);
     };
     for (let k = 0; k < (mainLane ? jobs - 1 : jobs); k++) spawn();

@@ -11,7 +11,6 @@ import { outlineFrom, outlineParts, type CircuitOutline, type DocumentHead, type
 import { shardProvenance } from "../report/merge.js";
 import { resultDependencies, type CacheHit, type ResultCache } from "./cache.js";
 import type { CircuitFile } from "./discover.js";
-import type { LaneKind } from "./lane.js";
 import { checkFiles, internalErrorResult } from "./pool.js";
 import { selectShard, type Shard } from "./shard.js";
 import { toolVersion } from "./version.js";
@@ -31,8 +30,6 @@ export interface RunOptions {
   readonly crashOn?: string;
   readonly minFilesPerWorker?: number;
   readonly mainThreadLane?: boolean;
-  /** What a worker is; default the pool's DEFAULT_LANE. */
-  readonly lanes?: LaneKind;
   /** Result cache (check --cache): unchanged files are taken from it, the rest checked and stored. */
   readonly cache?: ResultCache;
 }
@@ -153,7 +150,6 @@ export async function runCheck(allFiles: readonly CircuitFile[], options: RunOpt
       ...(options.crashOn !== undefined ? { crashOn: options.crashOn } : {}),
       ...(options.minFilesPerWorker !== undefined ? { minFilesPerWorker: options.minFilesPerWorker } : {}),
       ...(options.mainThreadLane !== undefined ? { mainThreadLane: options.mainThreadLane } : {}),
-      ...(options.lanes !== undefined ? { lanes: options.lanes } : {}),
       onResult: (k, result) => {
         waiting.set(toCheck[k]!, result);
         schedule();

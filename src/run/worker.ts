@@ -1,10 +1,9 @@
-// A lane of the pool (lane.ts), as a worker thread or as a child process: builds its own
+// A lane of the pool (lane.ts), a worker thread: builds its own
 // CheckContext from the plain options it was started with, then checks the files it is sent, one
 // at a time, and sends back plain CircuitResults.
 import { parentPort, workerData } from "node:worker_threads";
 import { checkFile } from "../pipeline/check-file.js";
 import { makeCheckContext } from "./context.js";
-import { START_ENV } from "./lane.js";
 import type { FromWorker, ToWorker, WorkerStart } from "./protocol.js";
 
 interface Transport {
@@ -15,15 +14,8 @@ interface Transport {
 
 function transport(): Transport {
   const port = parentPort;
-  if (port) {
-    return { start: workerData as WorkerStart, send: (m) => port.postMessage(m), onMessage: (h) => void port.on("message", h) };
-  }
-  const toParent = process.send?.bind(process);
-  const raw = process.env[START_ENV];
-  if (!toParent || raw === undefined) throw new Error("opgate: src/run/worker is started by the pool, not run directly");
-  // The pool going away (it finished, or it crashed) ends this lane too.
-  process.on("disconnect", () => process.exit(0));
-  return { start: JSON.parse(raw) as WorkerStart, send: (m) => void toParent(m), onMessage: (h) => void process.on("message", h) };
+  if (!port) throw new Error("opgate: src/run/worker is started by the pool, not run directly");
+  return { start: workerData as WorkerStart, send: (m) => port.postMessage(m), onMessage: (h) => void port.on("message", h) };
 }
 
 const lane = transport();

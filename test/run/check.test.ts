@@ -58,11 +58,9 @@ describe("opgate check", () => {
     const onNotice = (m: string): void => void notices.push(m);
     const single = await runCheckDocument(files, { ctx, contextOptions: { cwd: repo.dir }, jobs: 1 });
     expect(renderJson(single)).toBe(read("out/j1.json"));
-    for (const lanes of ["process", "thread"] as const) {
-      const workers = await runCheckDocument(files, { ctx, contextOptions: { cwd: repo.dir }, jobs: 2, minFilesPerWorker: 1, mainThreadLane: false, lanes, onNotice });
-      expect(notices).toEqual([]);
-      expect(renderJson(workers)).toBe(renderJson(single));
-    }
+    const workers = await runCheckDocument(files, { ctx, contextOptions: { cwd: repo.dir }, jobs: 2, minFilesPerWorker: 1, mainThreadLane: false, onNotice });
+    expect(notices).toEqual([]);
+    expect(renderJson(workers)).toBe(renderJson(single));
   }, 120_000);
 
   it("adds workers on its own only where they pay, and always when --jobs asks for them", async () => {
@@ -79,7 +77,7 @@ describe("opgate check", () => {
     expect(asked[1]!.findings[0]!.rule).toBe("internal");
   }, 120_000);
 
-  it.each(["process", "thread"] as const)("reports a dead worker (%s) as an error for its file and finishes the rest", async (lanes) => {
+  it("reports a dead worker as an error for its file and finishes the rest", async () => {
     const { checkFiles } = await import("../../src/run/pool.js");
     const { makeCheckContext } = await import("../../src/run/context.js");
     const { discoverCircuitFiles } = await import("../../src/run/discover.js");
@@ -87,7 +85,7 @@ describe("opgate check", () => {
     const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude, circuitsOnly: true });
     const victim = files[1]!.display;
     const notices: string[] = [];
-    const results = await checkFiles(files, { jobs: 2, minFilesPerWorker: 1, mainThreadLane: false, context: { cwd: repo.dir }, ctx, crashOn: victim, lanes, onNotice: (m) => notices.push(m) });
+    const results = await checkFiles(files, { jobs: 2, minFilesPerWorker: 1, mainThreadLane: false, context: { cwd: repo.dir }, ctx, crashOn: victim, onNotice: (m) => notices.push(m) });
     expect(results.map((r) => r.file)).toEqual(files.map((f) => f.display));
     const dead = results[1]!;
     expect(dead.status).toBe("error");
