@@ -19,7 +19,7 @@ import { jsonEnd, jsonStart } from "../report/json.js";
 import { addSuite, JUNIT_END, JUNIT_SEPARATOR, junitEmptySuite, junitStart, junitSuite, type JunitTotals } from "../report/junit.js";
 import { renderMarkdown } from "../report/markdown.js";
 import type { DocumentHead, ReportDocument } from "../report/outline.js";
-import { renderSarif, type SarifOptions } from "../report/sarif.js";
+import { sarifWriter, type SarifOptions } from "../report/sarif.js";
 import { chartFileName, renderCircuitSvg } from "../report/svg-chart.js";
 import type { RunItem, RunSink } from "../run/run-check.js";
 import { CliExit, EXIT_INPUT, type CliIo } from "./io.js";
@@ -226,7 +226,22 @@ export function openReportWriters(targets: Partial<Record<ReportFormat, string>>
         done.push([format, spool]);
       };
       text("markdown", () => renderMarkdown(doc, reportOptions.baseline ? { baseline: reportOptions.baseline } : {}));
-      text("sarif", () => renderSarif(doc, reportOptions.sarif ?? {}));
+      if (targets.sarif) {
+        // A result at a time from the outlines: the log of a large run is never one string.
+        const sarif = open("sarif")!;
+        const w = sarifWriter(doc, reportOptions.sarif ?? {});
+        sarif.write(w.start);
+        let written = false;
+        for (const c of doc.circuits) {
+          const part = w.results(c, !written);
+          if (part) {
+            written = true;
+            sarif.write(part);
+          }
+        }
+        sarif.write(`${written ? "\n      " : ""}${w.end}\n`);
+        done.push(["sarif", sarif]);
+      }
       if (whole) text("html", () => renderHtml({ ...doc, circuits: whole }));
       let toStdout = false;
       for (const [format, spool] of done) toStdout = finishOne(format, spool) || toStdout;

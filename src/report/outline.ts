@@ -7,6 +7,7 @@
 // ReportDocument: the same reporter gives the same text for a document built in memory and for
 // the outlines of a streamed run (the compiler keeps the reporters to these fields).
 import { EXPLAINED_RULES } from "./explain-md.js";
+import { parseTagged, stringifyTagged } from "./tagged-json.js";
 import type { CircuitResult, CircuitStatus, DeviceEntry, Finding, GainEntry, MonteCarloEntry, OperatingPointEntry, ResultsDocument, ScenarioEntry, Summary } from "./document.js";
 
 /** A gain as the reports read it; the response and hand analysis only where a finding opens them. */
@@ -57,8 +58,15 @@ function deviceOutline(d: DeviceEntry): DeviceEntry {
   return out as DeviceEntry;
 }
 
-/** The outline of a (normalised) circuit result. */
-export function outlineOf(c: CircuitOutline): CircuitOutline {
+/** An outline's parts: its light fields as a value, its operating point and gains as (tagged) JSON text. */
+export interface OutlineParts {
+  readonly light: Omit<CircuitOutline, "operatingPoint" | "gains">;
+  readonly operatingPoint: string;
+  readonly gains: string;
+}
+
+/** The parts of the outline of a (normalised) circuit result, or of an outline. */
+export function outlineParts(c: CircuitOutline): OutlineParts {
   const explained = new Set(c.findings.filter((f) => EXPLAINED_RULES.has(f.rule)).map((f) => f.subject));
   const op = c.operatingPoint;
   let devices: Record<string, DeviceEntry> | undefined;
@@ -89,14 +97,39 @@ export function outlineOf(c: CircuitOutline): CircuitOutline {
     monteCarlo = rest;
   }
   return {
-    file: c.file,
-    name: c.name,
-    status: c.status,
-    operatingPoint: op && devices ? { nodes: op.nodes, sources: op.sources, devices, solve: op.solve } : null,
-    gains,
-    scenarios: c.scenarios,
-    findings: c.findings,
-    ...(monteCarlo ? { monteCarlo } : {}),
-    ...(c.libraries ? { libraries: c.libraries } : {}),
+    light: {
+      file: c.file,
+      name: c.name,
+      status: c.status,
+      scenarios: c.scenarios,
+      findings: c.findings,
+      ...(monteCarlo ? { monteCarlo } : {}),
+      ...(c.libraries ? { libraries: c.libraries } : {}),
+    },
+    operatingPoint: stringifyTagged(op && devices ? { nodes: op.nodes, sources: op.sources, devices, solve: op.solve } : null),
+    gains: stringifyTagged(gains),
   };
+}
+
+/**
+ * An outline from its parts. The operating point and gains are kept as UTF-8 bytes and parsed
+ * afresh on every read: only the markdown sections that fit in a comment and the baseline
+ * comparison read them, while a run keeps one outline per file.
+ */
+export function outlineFrom(light: OutlineParts["light"], operatingPoint: Buffer, gains: Buffer): CircuitOutline {
+  return {
+    ...light,
+    get operatingPoint(): OperatingPointOutline | null {
+      return parseTagged(operatingPoint.toString("utf8")) as OperatingPointOutline | null;
+    },
+    get gains(): readonly GainOutline[] {
+      return parseTagged(gains.toString("utf8")) as GainOutline[];
+    },
+  };
+}
+
+/** The outline of a (normalised) circuit result. */
+export function outlineOf(c: CircuitOutline): CircuitOutline {
+  const parts = outlineParts(c);
+  return outlineFrom(parts.light, Buffer.from(parts.operatingPoint, "utf8"), Buffer.from(parts.gains, "utf8"));
 }

@@ -3,7 +3,7 @@
 // file and subject (not the line), so moving a component does not reopen an alert.
 import { createHash } from "node:crypto";
 import type { Finding, RuleEntry, Severity } from "./document.js";
-import type { ReportDocument } from "./outline.js";
+import type { CircuitOutline, ReportDocument } from "./outline.js";
 import { measuredVsLimit } from "./format.js";
 import { inertLines, inertText } from "./untrusted.js";
 
@@ -74,8 +74,29 @@ function firstParagraph(text: string): string {
   return text.trim().split(/\n\s*\n/)[0]?.replace(/\s+/g, " ") ?? "";
 }
 
-/** The SARIF log as JSON text (2-space indent, trailing newline, stable for the same document). */
-export function renderSarif(doc: ReportDocument, options: SarifOptions = {}): string {
+/** Numbers JSON cannot hold (an unbounded margin) are written as null. */
+function finiteOrNull(_k: string, v: unknown): unknown {
+  return typeof v === "number" && !Number.isFinite(v) ? null : v;
+}
+
+/** Where the results go in the log's text: runs[0].results, as JSON.stringify indents it. */
+const RESULTS_MARK = '\n      "results": []';
+/** Indentation of one result inside runs[0].results. */
+const RESULT_INDENT = "\n        ";
+
+/**
+ * The SARIF log as a stream of text: `start` (the tool and its rules, up to the results),
+ * `results` per circuit in document order, `end`. Joined, they are renderSarif's text, so a run
+ * can write the log from its outlines without holding every result object and the whole text.
+ */
+export interface SarifWriter {
+  readonly start: string;
+  /** The results of one circuit (empty when it has no findings); `first` when nothing was written before. */
+  results(c: CircuitOutline, first: boolean): string;
+  readonly end: string;
+}
+
+export function sarifWriter(doc: ReportDocument, options: SarifOptions = {}): SarifWriter {
   const base = options.rootFromRepository ?? "";
   const informationUri = options.informationUri ?? defaultInformationUri(doc.tool.version);
   const helpUri = (r: RuleEntry): string | undefined =>
@@ -83,47 +104,46 @@ export function renderSarif(doc: ReportDocument, options: SarifOptions = {}): st
   const rules = [...doc.rules];
   for (const extra of ENGINE_RULES) if (!rules.some((r) => r.id === extra.id)) rules.push(extra);
   // Rules referenced by findings but unknown to the document (a plugin that went missing) still need an entry.
+  const known = new Set(rules.map((r) => r.id));
   for (const c of doc.circuits) {
     for (const f of c.findings) {
-      if (!rules.some((r) => r.id === f.rule)) {
+      if (!known.has(f.rule)) {
+        known.add(f.rule);
         rules.push({ id: f.rule, description: `Rule ${f.rule}.`, severity: f.severity, docs: "", source: "unknown" });
       }
     }
   }
   const index = new Map(rules.map((r, i) => [r.id, i]));
-  const seen = new Map<string, number>();
-  const results = doc.circuits.flatMap((c) =>
-    c.findings.map((f) => {
-      const key = `${f.rule}\u0000${f.file}\u0000${f.subject}`;
-      const occurrence = (seen.get(key) ?? 0) + 1;
-      seen.set(key, occurrence);
-      const numbers = measuredVsLimit(f);
-      return {
-        ruleId: inertText(f.rule),
-        ruleIndex: index.get(f.rule)!,
-        level: level(f.severity),
-        message: { text: inertText(`${f.subject}: ${f.message}${numbers ? ` (${numbers}; worst scenario ${f.scenario}${f.corner ? `: ${f.corner.label}` : ""})` : ""}${f.hint ? ` ${f.hint}` : ""}`) },
-        locations: [
-          {
-            physicalLocation: {
-              artifactLocation: { uri: fileUri(f.file, base) },
-              region: { startLine: f.line, startColumn: f.column },
-            },
+  const result = (c: CircuitOutline, f: Finding, seen: Map<string, number>) => {
+    const key = `${f.rule}\u0000${f.file}\u0000${f.subject}`;
+    const occurrence = (seen.get(key) ?? 0) + 1;
+    seen.set(key, occurrence);
+    const numbers = measuredVsLimit(f);
+    return {
+      ruleId: inertText(f.rule),
+      ruleIndex: index.get(f.rule)!,
+      level: level(f.severity),
+      message: { text: inertText(`${f.subject}: ${f.message}${numbers ? ` (${numbers}; worst scenario ${f.scenario}${f.corner ? `: ${f.corner.label}` : ""})` : ""}${f.hint ? ` ${f.hint}` : ""}`) },
+      locations: [
+        {
+          physicalLocation: {
+            artifactLocation: { uri: fileUri(f.file, base) },
+            region: { startLine: f.line, startColumn: f.column },
           },
-        ],
-        partialFingerprints: { [FINGERPRINT_KEY]: fingerprint(f, occurrence) },
-        properties: {
-          circuit: inertText(c.name ?? c.file),
-          subject: inertText(f.subject),
-          measured: f.measured,
-          limit: f.limit,
-          unit: f.unit === null ? null : inertText(f.unit),
-          margin: f.margin,
-          scenario: inertText(f.scenario),
         },
-      };
-    }),
-  );
+      ],
+      partialFingerprints: { [FINGERPRINT_KEY]: fingerprint(f, occurrence) },
+      properties: {
+        circuit: inertText(c.name ?? c.file),
+        subject: inertText(f.subject),
+        measured: f.measured,
+        limit: f.limit,
+        unit: f.unit === null ? null : inertText(f.unit),
+        margin: f.margin,
+        scenario: inertText(f.scenario),
+      },
+    };
+  };
   const log = {
     $schema: SARIF_SCHEMA,
     version: "2.1.0",
@@ -149,9 +169,34 @@ export function renderSarif(doc: ReportDocument, options: SarifOptions = {}): st
             }),
           },
         },
-        results,
+        results: [],
       },
     ],
   };
-  return `${JSON.stringify(log, (_k, v: unknown) => (typeof v === "number" && !Number.isFinite(v) ? null : v), 2)}\n`;
+  const text = JSON.stringify(log, finiteOrNull, 2);
+  const cut = text.indexOf(RESULTS_MARK) + RESULTS_MARK.length - 1;
+  const tail = text.slice(cut);
+  // Findings of one rule, file and subject are numbered for their fingerprints, across circuits
+  // (a model library's mistake is reported at the library's file for every circuit that uses it).
+  const seen = new Map<string, number>();
+  return {
+    start: text.slice(0, cut),
+    results: (c, first) => {
+      return c.findings.map((f, i) => `${first && i === 0 ? "" : ","}${RESULT_INDENT}${JSON.stringify(result(c, f, seen), finiteOrNull, 2).replace(/\n/g, RESULT_INDENT)}`).join("");
+    },
+    end: tail,
+  };
+}
+
+/** The SARIF log as JSON text (2-space indent, trailing newline, stable for the same document). */
+export function renderSarif(doc: ReportDocument, options: SarifOptions = {}): string {
+  const w = sarifWriter(doc, options);
+  let body = "";
+  let written = false;
+  for (const c of doc.circuits) {
+    const part = w.results(c, !written);
+    if (part) written = true;
+    body += part;
+  }
+  return `${w.start}${body}${written ? "\n      " : ""}${w.end}\n`;
 }

@@ -13,19 +13,21 @@
 // another CI job sharing the folder) sees a whole entry or none; two writers of the same entry
 // write the same bytes, and the last rename wins.
 import { createHash, randomBytes } from "node:crypto";
-import { mkdirSync, readdirSync, readFileSync, renameSync, rmSync, writeFileSync } from "node:fs";
+import { closeSync, fstatSync, mkdirSync, openSync, readdirSync, readFileSync, readSync, renameSync, rmSync, writeFileSync } from "node:fs";
+import { crc32 } from "node:zlib";
 import { homedir } from "node:os";
 import { basename, dirname, join, relative, resolve, sep } from "node:path";
 import { fileURLToPath } from "node:url";
 import type { CheckContext } from "../pipeline/check-file.js";
 import type { CircuitResult } from "../report/document.js";
 import { jsonCircuit } from "../report/json.js";
-import { outlineOf, type CircuitOutline } from "../report/outline.js";
+import { outlineFrom, outlineParts, type CircuitOutline, type OutlineParts } from "../report/outline.js";
+import { parseTagged, stringifyTagged } from "../report/tagged-json.js";
 import type { CircuitFile } from "./discover.js";
 
 /** Written into every entry; a change of layout changes it (and the folder entries live in). */
-export const CACHE_FORMAT = "opgate-result-cache/2";
-export const FORMAT_DIR = "v2";
+export const CACHE_FORMAT = "opgate-result-cache/3";
+export const FORMAT_DIR = "v3";
 
 /** A file an entry depends on besides the circuit file: re-read and compared on every hit. */
 export interface CacheDependency {
@@ -149,46 +151,33 @@ export function runKey(ctx: CheckContext, version: string, models: readonly stri
   return sha256(JSON.stringify(policy));
 }
 
-// Non-finite numbers do not survive JSON; results can hold them (an infinite margin), so they
-// are written as tagged strings and read back.
-const NON_FINITE = "\u0000opgate-number:";
-function encode(_key: string, value: unknown): unknown {
-  if (typeof value === "number" && !Number.isFinite(value)) return `${NON_FINITE}${String(value)}`;
-  return value;
-}
-/** Parses a part; the tagged numbers are put back by a walk only when the text has any (a reviver on every value costs several times the parse). */
-function parsePart(text: string): unknown {
-  const value: unknown = JSON.parse(text);
-  return text.includes("\\u0000opgate-number:") ? restore(value) : value;
-}
-function restore(value: unknown): unknown {
-  if (typeof value === "string") return value.startsWith(NON_FINITE) ? Number(value.slice(NON_FINITE.length)) : value;
-  if (Array.isArray(value)) {
-    for (let i = 0; i < value.length; i++) value[i] = restore(value[i]);
-  } else if (value !== null && typeof value === "object") {
-    const obj = value as Record<string, unknown>;
-    for (const k of Object.keys(obj)) obj[k] = restore(obj[k]);
-  }
-  return value;
-}
-
 /**
- * An entry is one line of JSON (this header), then three parts back to back, their lengths in
- * bytes in the header: the result's outline (what the whole-run reports read), the whole result,
- * and the result's text in the JSON report. `sha256` covers the three parts. A warm run reads
- * the header and outline when it looks an entry up, and the JSON text when it writes the report:
- * the whole result is parsed only for a report that needs it (JUnit, HTML, charts).
+ * An entry is one line of JSON (this header), then five parts back to back, their lengths in
+ * bytes in the header (`parts`) with a CRC-32 of each (`crc`): the result's outline (light
+ * fields, operating point, gains; see src/report/outline.ts), the whole result, and the result's
+ * text in the JSON report. A warm run reads the header and the outline when it looks an entry
+ * up, and only the JSON text when it writes the report: the whole result is read and parsed only
+ * for a report that needs it (JUnit, HTML, charts). Numbers are tagged JSON
+ * (src/report/tagged-json.ts). The checksums catch a damaged entry; the folder itself is trusted
+ * like the repository (a checksum, not a signature).
  */
 interface Header {
   readonly format: string;
   readonly key: string;
   readonly file: string;
   readonly deps: readonly CacheDependency[];
-  readonly outline: number;
-  readonly result: number;
-  readonly json: number;
-  readonly sha256: string;
+  /** Byte lengths: outline (light, operating point, gains), result, JSON text. */
+  readonly parts: readonly number[];
+  /** CRC-32 of each part. */
+  readonly crc: readonly number[];
 }
+
+const PARTS = 5;
+const [LIGHT, OPERATING_POINT, GAINS, RESULT, JSON_TEXT] = [0, 1, 2, 3, 4] as const;
+/** First read of an entry: its header and, for most entries, its outline. */
+const FIRST_READ = 16 * 1024;
+/** A header longer than this (a dependency list gone wild) is not read. */
+const HEADER_MAX = 1024 * 1024;
 
 export interface CacheLookup {
   readonly key: string;
@@ -200,6 +189,11 @@ export interface CacheLookup {
 export interface CacheHit {
   readonly key: string;
   readonly outline: CircuitOutline;
+  /** The header line as read (a replaced entry has another). */
+  readonly header: Buffer;
+  /** Offsets of the parts in the entry (PARTS + 1 values). */
+  readonly at: readonly number[];
+  readonly crc: readonly number[];
 }
 
 /** An entry's parts as a report uses them (read again, and verified again, when used). */
@@ -220,12 +214,6 @@ export interface CacheStats {
   writeFailed?: string;
 }
 
-interface Parsed {
-  readonly header: Header;
-  readonly bytes: Buffer;
-  /** Offset of the first part. */
-  readonly body: number;
-}
 
 export class ResultCache {
   readonly stats: CacheStats = { hits: 0, misses: 0, ignored: 0 };
@@ -261,26 +249,45 @@ export class ResultCache {
   probe(file: CircuitFile): { key: string; hit?: CacheHit } | null {
     const key = this.keyOf(file);
     if (key === null) return null;
-    const parts = this.read(key, file.display);
-    if (!parts) {
+    const hit = this.readHead(key, file.display);
+    if (!hit) {
       this.stats.misses++;
       return { key };
     }
     this.stats.hits++;
-    return { key, hit: { key, outline: parts.outline } };
+    return { key, hit };
   }
 
   /**
-   * The parts of a hit found by probe(), read and verified again (the entry may have been
-   * removed or replaced since); null when it no longer holds (the caller checks the file).
+   * The parts of a hit found by probe(), read again (only the header and the JSON text; the
+   * entry may have been removed or replaced since); null when it no longer holds (the caller
+   * checks the file).
    */
   parts(hit: CacheHit, display: string): CachedParts | null {
-    const parts = this.read(hit.key, display);
-    if (!parts) {
+    const path = this.entryPath(hit.key);
+    const why = withFile(path, (fd) => {
+      const header = readAt(fd, 0, hit.header.length);
+      if (!header.equals(hit.header)) return "was replaced during the run";
+      return readPart(fd, hit, JSON_TEXT);
+    });
+    if (!(why instanceof Buffer)) {
+      this.ignore(path, why as string);
       this.stats.hits--;
       this.stats.misses++;
+      return null;
     }
-    return parts;
+    let result: CircuitResult | undefined;
+    return {
+      outline: hit.outline,
+      json: why,
+      result: () => {
+        if (result) return result;
+        const bytes = withFile(path, (fd) => readPart(fd, hit, RESULT));
+        if (!(bytes instanceof Buffer)) throw new Error(`the result cache entry ${path} ${bytes} while in use: run again (or without --cache)`);
+        result = parseTagged(bytes.toString("utf8")) as CircuitResult;
+        return result;
+      },
+    };
   }
 
   /** Looks a file up and parses its whole result (tests; a run uses probe and parts). */
@@ -291,63 +298,57 @@ export class ResultCache {
     return parts ? { key: found.key, result: parts.result() } : { key: found.key };
   }
 
-  private read(key: string, display: string): CachedParts | null {
+  /** The header and outline of an entry, checked; null (with the reason noted) when it cannot be trusted. */
+  private readHead(key: string, display: string): CacheHit | null {
     const path = this.entryPath(key);
-    let bytes: Buffer;
-    try {
-      bytes = readFileSync(path);
-    } catch (err) {
-      if ((err as NodeJS.ErrnoException).code !== "ENOENT") this.ignore(path, `cannot be read (${(err as NodeJS.ErrnoException).code ?? "error"})`);
+    const got = withFile(path, (fd): CacheHit | string => {
+      const size = fstatSync(fd).size;
+      let head = readAt(fd, 0, Math.min(size, FIRST_READ));
+      let eol = head.indexOf(10);
+      if (eol < 0 && head.length < size && size > FIRST_READ) {
+        head = readAt(fd, 0, Math.min(size, HEADER_MAX));
+        eol = head.indexOf(10);
+      }
+      if (eol < 0) return "is not an entry of this cache format";
+      let header: Header;
+      try {
+        header = JSON.parse(head.toString("utf8", 0, eol)) as Header;
+      } catch {
+        return "is not an entry of this cache format";
+      }
+      if (header === null || typeof header !== "object" || header.format !== CACHE_FORMAT) return "is not an entry of this cache format";
+      if (header.key !== key || header.file !== display) return "belongs to another file or policy";
+      const sizes = header.parts;
+      const crc = header.crc;
+      const whole = (xs: unknown): xs is number[] => Array.isArray(xs) && xs.length === PARTS && xs.every((n) => Number.isSafeInteger(n) && n >= 0);
+      if (!whole(sizes) || !whole(crc)) return "is not an entry of this cache format";
+      const at = [eol + 1];
+      for (const n of sizes) at.push(at[at.length - 1]! + n);
+      if (at[PARTS] !== size) return "is cut short or padded";
+      if (!Array.isArray(header.deps)) return "has no dependency list";
+      for (const dep of header.deps) {
+        if (typeof dep?.path !== "string" || fileDigest(dep.path) !== dep.sha256) return `is stale (${typeof dep?.path === "string" ? dep.path : "a dependency"} changed)`;
+      }
+      const outlineEnd = at[RESULT]!;
+      const bytes = outlineEnd <= head.length ? head : readAt(fd, 0, outlineEnd);
+      const part = (i: number): Buffer => bytes.subarray(at[i], at[i + 1]);
+      for (const i of [LIGHT, OPERATING_POINT, GAINS]) if (crc32(part(i)) !== crc[i]) return "is damaged (a checksum does not match)";
+      let light: OutlineParts["light"];
+      try {
+        light = parseTagged(part(LIGHT).toString("utf8")) as OutlineParts["light"];
+      } catch {
+        return "holds an outline that is not valid JSON";
+      }
+      if (light === null || typeof light !== "object" || light.file !== display || !Array.isArray(light.findings)) return "holds no result";
+      // Copies: a slice would keep the whole read in memory for as long as the run keeps the outline.
+      const outline = outlineFrom(light, Buffer.from(part(OPERATING_POINT)), Buffer.from(part(GAINS)));
+      return { key, outline, header: Buffer.from(head.subarray(0, eol + 1)), at, crc };
+    });
+    if (typeof got === "string") {
+      if (got !== MISSING) this.ignore(path, got);
       return null;
     }
-    const entry = this.invalid(bytes, key, display);
-    if (typeof entry === "string") {
-      this.ignore(path, entry);
-      return null;
-    }
-    const { header, body } = entry;
-    const outlineEnd = body + header.outline;
-    const resultEnd = outlineEnd + header.result;
-    let outline: CircuitOutline;
-    try {
-      outline = parsePart(bytes.toString("utf8", body, outlineEnd)) as CircuitOutline;
-    } catch {
-      this.ignore(path, "holds an outline that is not valid JSON");
-      return null;
-    }
-    if (outline === null || typeof outline !== "object" || outline.file !== display || !Array.isArray(outline.findings)) {
-      this.ignore(path, "holds no result");
-      return null;
-    }
-    let result: CircuitResult | undefined;
-    return {
-      outline,
-      json: bytes.subarray(resultEnd, resultEnd + header.json),
-      result: () => (result ??= parsePart(bytes.toString("utf8", outlineEnd, resultEnd)) as CircuitResult),
-    };
-  }
-
-  /** Why an entry's bytes cannot be trusted, or its header. */
-  private invalid(bytes: Buffer, key: string, display: string): string | Parsed {
-    const eol = bytes.indexOf(10);
-    if (eol < 0) return "is not an entry of this cache format";
-    let header: Header;
-    try {
-      header = JSON.parse(bytes.toString("utf8", 0, eol)) as Header;
-    } catch {
-      return "is not an entry of this cache format";
-    }
-    if (header === null || typeof header !== "object" || header.format !== CACHE_FORMAT) return "is not an entry of this cache format";
-    if (header.key !== key || header.file !== display) return "belongs to another file or policy";
-    const body = eol + 1;
-    const sizes = [header.outline, header.result, header.json];
-    if (!sizes.every((n) => Number.isSafeInteger(n) && n >= 0) || body + header.outline + header.result + header.json !== bytes.length) return "is cut short or padded";
-    if (sha256(bytes.subarray(body)) !== header.sha256) return "is corrupt (its digest does not match)";
-    if (!Array.isArray(header.deps)) return "has no dependency list";
-    for (const dep of header.deps) {
-      if (typeof dep?.path !== "string" || fileDigest(dep.path) !== dep.sha256) return `is stale (${typeof dep?.path === "string" ? dep.path : "a dependency"} changed)`;
-    }
-    return { header, bytes, body };
+    return got;
   }
 
   private ignore(path: string, why: string): void {
@@ -359,8 +360,8 @@ export class ResultCache {
    * Stores a result under its key (whole file, renamed into place); a failure is remembered, not
    * thrown. `result` is stored as given: a run stores it normalised, as its reports show it.
    */
-  store(key: string, result: CircuitResult, deps: readonly (string | CacheDependency)[] = []): void {
-    const parts = [JSON.stringify(outlineOf(result), encode), JSON.stringify(result, encode), jsonCircuit(result, true)].map((t) => Buffer.from(t, "utf8"));
+  store(key: string, result: CircuitResult, deps: readonly (string | CacheDependency)[] = [], outline: OutlineParts = outlineParts(result)): void {
+    const parts = [stringifyTagged(outline.light), outline.operatingPoint, outline.gains, stringifyTagged(result), jsonCircuit(result, true)].map((t) => Buffer.from(t, "utf8"));
     const body = Buffer.concat(parts);
     const header: Header = {
       format: CACHE_FORMAT,
@@ -368,10 +369,8 @@ export class ResultCache {
       file: result.file,
       // A path alone is digested now; a dependency with its digest keeps the one the result was made with.
       deps: deps.map((d) => (typeof d === "string" ? { path: d, sha256: fileDigest(d) ?? "" } : d)),
-      outline: parts[0]!.length,
-      result: parts[1]!.length,
-      json: parts[2]!.length,
-      sha256: sha256(body),
+      parts: parts.map((p) => p.length),
+      crc: parts.map((p) => crc32(p)),
     };
     const path = this.entryPath(key);
     const temp = `${path}.${process.pid}.${randomBytes(6).toString("hex")}.tmp`;
@@ -394,4 +393,44 @@ export class ResultCache {
     if (s.writeFailed) line += `; could not write to the cache (${s.writeFailed}), results of this run are not cached`;
     return line;
   }
+}
+
+/** An entry that is not there: a miss, nothing to say. */
+const MISSING = "is missing";
+
+/** Runs `use` on the open entry; its result, or why the entry cannot be used. */
+function withFile<T>(path: string, use: (fd: number) => T | string): T | string {
+  let fd: number;
+  try {
+    fd = openSync(path, "r");
+  } catch (err) {
+    const code = (err as NodeJS.ErrnoException).code;
+    return code === "ENOENT" ? MISSING : `cannot be read (${code ?? "error"})`;
+  }
+  try {
+    return use(fd);
+  } catch (err) {
+    return `cannot be read (${(err as NodeJS.ErrnoException).code ?? "error"})`;
+  } finally {
+    closeSync(fd);
+  }
+}
+
+/** `length` bytes at `position` (fewer at the end of the file). */
+function readAt(fd: number, position: number, length: number): Buffer {
+  const buf = Buffer.allocUnsafe(length);
+  let got = 0;
+  while (got < length) {
+    const n = readSync(fd, buf, got, length - got, position + got);
+    if (n === 0) break;
+    got += n;
+  }
+  return got === length ? buf : buf.subarray(0, got);
+}
+
+/** One part of an entry found by probe(), checked against its checksum. */
+function readPart(fd: number, hit: CacheHit, i: number): Buffer | string {
+  const bytes = readAt(fd, hit.at[i]!, hit.at[i + 1]! - hit.at[i]!);
+  if (bytes.length !== hit.at[i + 1]! - hit.at[i]!) return "is cut short";
+  return crc32(bytes) === hit.crc[i] ? bytes : "is damaged (a checksum does not match)";
 }

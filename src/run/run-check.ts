@@ -7,7 +7,7 @@ import { checkFile, type CheckContext, type CheckContextOptions } from "../pipel
 import { compareText, documentHead, normaliseCircuit, summarise } from "../report/build.js";
 import type { CircuitResult } from "../report/document.js";
 import { jsonCircuit } from "../report/json.js";
-import { outlineOf, type CircuitOutline, type DocumentHead, type ReportDocument } from "../report/outline.js";
+import { outlineFrom, outlineParts, type CircuitOutline, type DocumentHead, type ReportDocument } from "../report/outline.js";
 import { shardProvenance } from "../report/merge.js";
 import { resultDependencies, type CacheHit, type ResultCache } from "./cache.js";
 import type { CircuitFile } from "./discover.js";
@@ -100,8 +100,9 @@ export async function runCheck(allFiles: readonly CircuitFile[], options: RunOpt
     const result = normaliseCircuit(raw, failOn);
     const key = keys[i];
     // A file that could not be read has no key: nothing to store.
-    if (cache && key) cache.store(key, result, resultDependencies(result, options.ctx.root));
-    const outline = outlineOf(result);
+    const parts = outlineParts(result);
+    if (cache && key) cache.store(key, result, resultDependencies(result, options.ctx.root), parts);
+    const outline = outlineFrom(parts.light, Buffer.from(parts.operatingPoint, "utf8"), Buffer.from(parts.gains, "utf8"));
     outlines.push(outline);
     let json: string | undefined;
     sink?.circuit({ index: i, outline, result: () => result, json: () => (json ??= jsonCircuit(result, true)) });

@@ -85,6 +85,7 @@ describe("streamed reports", () => {
     expect(Number(root.attributes.errors)).toBe(errors);
     expect(Number(root.attributes.tests)).toBe(cases(xml).length);
     expect(read("out/s.md")).toBe(renderMarkdown(whole));
+    expect(read("out/s.sarif")).toBe(renderSarif(whole));
   }, 120_000);
 
   it("reports a file whose worker dies mid-run in every streamed report, and the files after it", async () => {
