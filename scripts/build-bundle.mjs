@@ -71,8 +71,9 @@ const lazyVendors = {
     });
   },
 };
-await build({
+const main = await build({
   ...common,
+  metafile: true,
   plugins: [deferInit, lazyVendors],
   entryPoints: { bin: "dist/src/bundle/bin.js", cli: "dist/src/bundle/cli.js", "plugin-host": "dist/src/bundle/plugin-host.js" },
   format: "cjs",
@@ -88,6 +89,13 @@ await build({
   // CommonJS dependencies call require(); an ES module has none of its own.
   banner: { js: 'import { createRequire as __opgateRequire } from "node:module"; const require = __opgateRequire(import.meta.url);' },
 });
+// cli.js runs through the code cache (src/bundle/code-cache.ts). On Node 20 a script compiled from
+// cached data loses its import() callback ("A dynamic import callback was not specified"): what
+// it loads on demand must be require()d. The plugin host imports team rules, so it is not cached.
+for (const [file, output] of Object.entries(main.metafile.outputs)) {
+  const dynamic = output.imports.filter((i) => i.kind === "dynamic-import" && i.external);
+  if (file.endsWith("/cli.js") && dynamic.length > 0) throw new Error(`build-bundle: ${file} imports ${dynamic.map((i) => i.path).join(", ")} with import(); it is loaded through the code cache, where import() fails on Node 20: require() it instead`);
+}
 // Where src/run/lane.ts starts a bundled lane.
 writeFileSync(`${outdir}/worker.js`, `// Starts the bundled lane (an ES module: it waits at its top level).\nimport(require("node:url").pathToFileURL(require("node:path").join(__dirname, "lane.mjs")).href);\n`);
 // A dependency update that changes string-width's shape must not lose this without a word.

@@ -99,7 +99,11 @@ export function loadBundled(file: string, dir: string | undefined, require: Node
   const script = new Script(Module.wrap(source), {
     filename: file,
     ...(cachedData ? { cachedData } : {}),
-    // import() inside the file (junit-report-builder, esbuild, a team rule) goes to Node's own loader.
+    // import() inside the file goes to Node's own loader — but on Node 20 only when the script is
+    // compiled from source: from cached data the callback is lost ("A dynamic import callback was
+    // not specified"). So a file loaded here require()s what it loads on demand (the build refuses
+    // a literal import() of a package in cli.js; the plugin host, which imports team rules, is not
+    // loaded through this cache).
     importModuleDynamically: vmConstants.USE_MAIN_CONTEXT_DEFAULT_LOADER,
   });
   const outcome: CodeCacheOutcome = entry === undefined ? "off" : damaged || script.cachedDataRejected ? "refused" : !cachedData ? "miss" : "hit";
