@@ -166,6 +166,35 @@ describe("result cache, key and entries", () => {
     expect(new ResultCache(d, runKey(ctx, "other")).lookup(file)!.result).toBeUndefined();
   });
 
+  it("reads a hit's JSON text again when it is used, and refuses it when the entry changed or went away since", async () => {
+    const ctx = await makeCheckContext({ cwd: repo.dir });
+    const d = join(repo.dir, ".cache-e");
+    const file = { abs: join(repo.dir, "boards", files[3]!), display: `boards/${files[3]}` };
+    const cache = new ResultCache(d, runKey(ctx, "test"));
+    const key = cache.keyOf(file)!;
+    const result = await checkFile(file.abs, ctx, file.display);
+    cache.store(key, result);
+    const path = cache.entryPath(key);
+    const whole = readFileSync(path);
+    // Used as found: the JSON text is the one the report would render.
+    const hit = cache.probe(file)!.hit!;
+    const { jsonCircuit } = await import("../../src/report/json.js");
+    expect(cache.parts(hit, file.display)!.json.toString("utf8")).toBe(jsonCircuit(result, true));
+    // A byte of the JSON text damaged after the probe: its checksum refuses it.
+    const damaged = Buffer.from(whole);
+    damaged[damaged.length - 10] = damaged[damaged.length - 10] === 0x20 ? 0x21 : 0x20;
+    writeFileSync(path, damaged);
+    expect(cache.parts(hit, file.display)).toBeNull();
+    expect(cache.summary()).toMatch(/is damaged \(a checksum does not match\)/);
+    // Gone after the probe: the caller checks the file (counted as a miss).
+    writeFileSync(path, whole);
+    const again = cache.probe(file)!.hit!;
+    rmSync(path);
+    const before = cache.stats.misses;
+    expect(cache.parts(again, file.display)).toBeNull();
+    expect(cache.stats.misses).toBe(before + 1);
+  });
+
   it("keeps an entry whole while several processes write it at once", async () => {
     const ctx = await makeCheckContext({ cwd: repo.dir });
     const d = join(repo.dir, ".cache-d");
