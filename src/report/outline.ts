@@ -112,24 +112,48 @@ export function outlineParts(c: CircuitOutline): OutlineParts {
 }
 
 /**
- * An outline from its parts. The operating point and gains are kept as UTF-8 bytes and parsed
- * afresh on every read: only the markdown sections that fit in a comment and the baseline
- * comparison read them, while a run keeps one outline per file.
+ * An outline from its parts as one run of UTF-8 bytes: the light fields' JSON, then the operating
+ * point's, then the gains' (`lightEnd` and `operatingPointEnd` are byte offsets). The file, name
+ * and status are kept as values; everything else is parsed afresh on every read. A run keeps one
+ * outline per file, and the reports read most of it once or twice (the findings) or only for the
+ * markdown sections that fit in a comment and the baseline (operating point, gains).
  */
-export function outlineFrom(light: OutlineParts["light"], operatingPoint: Buffer, gains: Buffer): CircuitOutline {
+export function outlineFromBytes(light: Pick<CircuitOutline, "file" | "name" | "status">, bytes: Buffer, lightEnd: number, operatingPointEnd: number): CircuitOutline {
+  const rest = (): OutlineParts["light"] => parseTagged(bytes.toString("utf8", 0, lightEnd)) as OutlineParts["light"];
   return {
-    ...light,
+    file: light.file,
+    name: light.name,
+    status: light.status,
+    get scenarios() {
+      return rest().scenarios;
+    },
+    get findings() {
+      return rest().findings;
+    },
+    get monteCarlo() {
+      return rest().monteCarlo;
+    },
+    get libraries() {
+      return rest().libraries;
+    },
     get operatingPoint(): OperatingPointOutline | null {
-      return parseTagged(operatingPoint.toString("utf8")) as OperatingPointOutline | null;
+      return parseTagged(bytes.toString("utf8", lightEnd, operatingPointEnd)) as OperatingPointOutline | null;
     },
     get gains(): readonly GainOutline[] {
-      return parseTagged(gains.toString("utf8")) as GainOutline[];
+      return parseTagged(bytes.toString("utf8", operatingPointEnd)) as GainOutline[];
     },
   };
 }
 
+/** An outline from its parts as text (a run's own results; the cache reads entries as bytes). */
+export function outlineFrom(parts: OutlineParts): CircuitOutline {
+  const light = stringifyTagged(parts.light);
+  const lightEnd = Buffer.byteLength(light, "utf8");
+  const operatingPointEnd = lightEnd + Buffer.byteLength(parts.operatingPoint, "utf8");
+  return outlineFromBytes(parts.light, Buffer.from(light + parts.operatingPoint + parts.gains, "utf8"), lightEnd, operatingPointEnd);
+}
+
 /** The outline of a (normalised) circuit result. */
 export function outlineOf(c: CircuitOutline): CircuitOutline {
-  const parts = outlineParts(c);
-  return outlineFrom(parts.light, Buffer.from(parts.operatingPoint, "utf8"), Buffer.from(parts.gains, "utf8"));
+  return outlineFrom(outlineParts(c));
 }

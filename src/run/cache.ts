@@ -21,7 +21,7 @@ import { fileURLToPath } from "node:url";
 import type { CheckContext } from "../pipeline/check-file.js";
 import type { CircuitResult } from "../report/document.js";
 import { jsonCircuit } from "../report/json.js";
-import { outlineFrom, outlineParts, type CircuitOutline, type OutlineParts } from "../report/outline.js";
+import { outlineFromBytes, outlineParts, type CircuitOutline, type OutlineParts } from "../report/outline.js";
 import { parseTagged, stringifyTagged } from "../report/tagged-json.js";
 import type { CircuitFile } from "./discover.js";
 
@@ -341,7 +341,7 @@ export class ResultCache {
       }
       if (light === null || typeof light !== "object" || light.file !== display || !Array.isArray(light.findings)) return "holds no result";
       // Copies: a slice would keep the whole read in memory for as long as the run keeps the outline.
-      const outline = outlineFrom(light, Buffer.from(part(OPERATING_POINT)), Buffer.from(part(GAINS)));
+      const outline = outlineFromBytes(light, Buffer.from(bytes.subarray(at[LIGHT], at[RESULT])), at[OPERATING_POINT]! - at[LIGHT]!, at[GAINS]! - at[LIGHT]!);
       return { key, outline, header: Buffer.from(head.subarray(0, eol + 1)), at, crc };
     });
     if (typeof got === "string") {

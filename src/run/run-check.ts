@@ -99,7 +99,7 @@ export async function runCheck(allFiles: readonly CircuitFile[], options: RunOpt
     // A file that could not be read has no key: nothing to store.
     const parts = outlineParts(result);
     if (cache && key) cache.store(key, result, resultDependencies(result, options.ctx.root), parts);
-    const outline = outlineFrom(parts.light, Buffer.from(parts.operatingPoint, "utf8"), Buffer.from(parts.gains, "utf8"));
+    const outline = outlineFrom(parts);
     outlines.push(outline);
     let json: string | undefined;
     sink?.circuit({ index: i, outline, result: () => result, json: () => (json ??= jsonCircuit(result, true)) });
