@@ -88,5 +88,15 @@ describe("the published package", () => {
     expect(again.stderr).toContain("opgate: config opgate.config.yaml");
     expect(again.stdout).toContain("team/divider-current");
     expect(again.status, `${again.stdout}\n${again.stderr}`).toBe(1);
+
+    // A TypeScript team rule in the installed package: compiled by the package's own esbuild (a
+    // runtime dependency); nothing from the development tree (tsx, typescript) is installed.
+    expect(existsSync(join(repo, "node_modules", "tsx"))).toBe(false);
+    mkdirSync(join(repo, "ts-rules"));
+    copyFileSync(join(PACKAGE_ROOT, "examples", "team-rules", "divider-current.ts"), join(repo, "ts-rules", "divider-current.ts"));
+    writeFileSync(join(repo, "ts.config.yaml"), "plugins:\n  - ts-rules/divider-current.ts\n");
+    const ts = spawnSync(bin, ["check", "boards", "--config", "ts.config.yaml"], { cwd: repo, encoding: "utf8", timeout: 120_000, env: { ...process.env, OPGATE_CACHE_DIR: join(work, "cache") } });
+    expect(ts.stdout).toContain("tidewater/divider-current");
+    expect(ts.status, `${ts.stdout}\n${ts.stderr}`).toBe(1);
   }, 400_000);
 });
