@@ -267,7 +267,7 @@ export const checkCommand: CommandSpec = {
       .option("html", { type: "string", describe: "Write one self-contained HTML report (verdict, findings, charts, hand analysis) to PATH" })
       .option("charts", { type: "string", describe: "Write each circuit's frequency-response chart as DIR/<file path>.svg" })
       .option("baseline", { type: "string", describe: "Compare with an earlier results document (e.g. from the target branch)" })
-      .option("jobs", { type: "number", describe: "Files are checked by this process and N − 1 worker threads (default: up to one per core, one per 4,000 files)" })
+      .option("jobs", { type: "number", describe: "Files are checked by this process and N − 1 worker threads (default: up to one per core, one per 2,000 files)" })
       .option("shard", { type: "string", describe: "Check only slice k of n of the sorted files (k/n, e.g. 2/4)" })
       .option("quiet", { type: "boolean", alias: "q", default: false, describe: "Print only failures and the verdict line" })
       .option("config", { type: "string", describe: "Config file (default: opgate.config.yaml found walking up)" })

@@ -15,12 +15,13 @@ import type { FromWorker, ToWorker, WorkerStart } from "./protocol.js";
  * expression), then runs its first few hundred files slowly while V8 optimises — and on 2 cores
  * it takes that time from the main lane, whose compiler and collector were using the second
  * core. Measured with bench/repo.ts on 2 cores (2026-12-01): 2,000 files ran 0.89–1.21× as fast
- * on two lanes as on one, 8,000 files 1.41–1.62×; again on 2026-12-02 (shared machine, load
- * average 4–11): 2,000 files 0.64–1.31× (median of six rounds under 1×), 8,000 files 1.09–1.47×.
- * So the automatic choice adds a lane only from 4,000 files, above break-even; an explicit
- * `--jobs N` is always honoured.
+ * on two lanes as on one, 8,000 files 1.41–1.62×; again on 2026-12-02: at a load average of
+ * 2–3, 2,000 files 1.18–1.21× and 8,000 files 1.30×; at a load average of 4–11 (other jobs on
+ * the same two cores), 2,000 files 0.64–1.31× and 8,000 files 1.09–1.47×. A CI runner's cores are
+ * its own, so the automatic choice adds a lane per 2,000 files, where two lanes start to pay on
+ * an otherwise idle machine; an explicit `--jobs N` is always honoured.
  */
-export const MIN_FILES_PER_WORKER = 4000;
+export const MIN_FILES_PER_WORKER = 2000;
 
 /**
  * Files sent ahead to each worker, so that it never waits for this thread (which may itself be
