@@ -52,20 +52,24 @@ export function mermaidCharts(g: ExplainedGain): Code[] {
   if (corners.length > 0) marks.push(`−3 dB at ${corners.join(", ")}`);
   const lo = Math.min(Math.abs(g.window.min), Math.abs(g.window.max));
   const hi = Math.max(Math.abs(g.window.min), Math.abs(g.window.max));
-  const windowLines: string[] = [];
-  if (hi > 0) windowLines.push(`line [${pts.map(() => fixed(20 * Math.log10(hi))).join(", ")}]`);
-  if (lo > 0 && !(g.window.min <= 0 && g.window.max >= 0)) windowLines.push(`line [${pts.map(() => fixed(20 * Math.log10(lo))).join(", ")}]`);
-  if (windowLines.length > 0) marks.push("flat lines: the gain window");
+  // The window's edges in dB (a window that spans zero has no lower edge on a dB scale).
+  const edges: number[] = [];
+  if (hi > 0) edges.push(20 * Math.log10(hi));
+  if (lo > 0 && !(g.window.min <= 0 && g.window.max >= 0)) edges.push(20 * Math.log10(lo));
+  if (edges.length > 0) marks.push("flat lines: the gain window");
   const dbs = pts.map((p) => p.db as number);
-  const top = Math.ceil((Math.max(...dbs, hi > 0 ? 20 * Math.log10(hi) : -Infinity) + 3) / 10) * 10;
-  const bottom = Math.max(Math.floor((Math.min(...dbs) - 3) / 10) * 10, top - 120);
+  // The axis holds the response and both window edges (a window below the response was drawn
+  // off the chart), at most 120 dB tall; whatever is below that sits on the bottom edge.
+  const top = Math.ceil((Math.max(...dbs, ...edges) + 3) / 10) * 10;
+  const bottom = Math.max(Math.floor((Math.min(...dbs, ...edges) - 3) / 10) * 10, top - 120);
+  const clamp = (v: number): string => fixed(Math.max(bottom, v));
   const magnitude = [
     "xychart-beta",
     `  title "Magnitude, dB (${marks.join("; ")})"`,
     `  ${x}`,
     `  y-axis "dB" ${bottom} --> ${top}`,
-    `  line [${pts.map((p) => fixed(Math.max(bottom, p.db as number))).join(", ")}]`,
-    ...windowLines.map((l) => `  ${l}`),
+    `  line [${pts.map((p) => clamp(p.db as number)).join(", ")}]`,
+    ...edges.map((e) => `  line [${pts.map(() => clamp(e)).join(", ")}]`),
   ].join("\n");
   const phase = ["xychart-beta", '  title "Phase, degrees"', `  ${x}`, '  y-axis "degrees" -180 --> 180', `  line [${pts.map((p) => fixed(p.phaseDeg as number)).join(", ")}]`].join("\n");
   return [
