@@ -5,6 +5,7 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
 import { cli } from "../run/repo.js";
+import { DEGENERATED_CE } from "../variation/helpers.js";
 
 const dir = mkdtempSync(join(tmpdir(), "opgate-sensitivity-"));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
@@ -27,21 +28,7 @@ writeFileSync(
   join(dir, "ce-stage.yaml"),
   `format: opgate-circuit/1
 name: tide-gauge-ce-stage
-models:
-  q: { kind: npn, beta: 300, saturationCurrent: 1e-14 A }
-components:
-  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, voltage: 15 V }
-  - { id: VIN, kind: voltage-source, pins: { plus: in, minus: gnd }, voltage: 0 V, signal: 1 mV }
-  - { id: CIN, kind: capacitor, pins: [in, b], value: 100u }
-  - { id: R1, kind: resistor, pins: [vcc, b], value: 68k, tolerance: 1% }
-  - { id: R2, kind: resistor, pins: [b, gnd], value: 15k, tolerance: 1% }
-  - { id: RC, kind: resistor, pins: [vcc, c], value: 6k8, tolerance: 1% }
-  - { id: RE, kind: resistor, pins: [e, gnd], value: 1k5, tolerance: 1% }
-  - { id: Q1, kind: npn, model: q, pins: { collector: c, base: b, emitter: e } }
-specs:
-  gains:
-    - { name: av, input: VIN, output: c, target: -4.4, tolerance: 20% }
-`,
+${DEGENERATED_CE}`,
 );
 
 /** The table's rows as [quantity, parameter, %/%]: a row without a quantity continues the one above. */

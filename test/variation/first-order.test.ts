@@ -5,11 +5,11 @@
 import { describe, expect, it } from "vitest";
 import region from "../../rules/region.js";
 import headroom from "../../rules/headroom.js";
-import { checkCircuit, type CheckContext } from "../../src/pipeline/check-file.js";
+import { checkCircuit } from "../../src/pipeline/check-file.js";
 import type { Parameter } from "../../src/variation/parameters.js";
 import { firstOrderExplains } from "../../src/variation/first-order.js";
 import type { SensitivityTable } from "../../src/variation/sensitivity.js";
-import { builtin, CELSIUS, load } from "./helpers.js";
+import { builtin, CELSIUS, checkContext, load } from "./helpers.js";
 
 const param = (key: string, nominal: number): Parameter => ({ key, name: key, kind: "tolerance", nominal, min: nominal * 0.9, max: nominal * 1.1 }) as unknown as Parameter;
 
@@ -73,12 +73,7 @@ components:
   - { id: RL, kind: resistor, pins: [out, gnd], value: 100k, tolerance: 1% }
 specs:
   supplies: []`);
-    const ctx: CheckContext = {
-      config: { file: null, root: ".", include: [], exclude: [], rules: {}, plugins: [], failOn: "error", variation: { mode: "corners", samples: 1, seed: 1, temperature: { min: CELSIUS, max: CELSIUS + 50 } }, outputs: {} } as unknown as CheckContext["config"],
-      rules: [],
-      configured: [builtin(region), builtin(headroom)],
-      root: ".",
-    };
+    const ctx = checkContext([builtin(region), builtin(headroom)], { mode: "corners", samples: 1, seed: 1, temperature: { min: CELSIUS, max: CELSIUS + 50 } });
     const r = await checkCircuit(c, ctx, "pair.yaml");
     const regionQ4 = r.findings.find((f) => f.rule === "region" && f.subject === "Q4");
     const headroomQ4 = r.findings.find((f) => f.rule === "headroom" && f.subject === "Q4");

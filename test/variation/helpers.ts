@@ -3,6 +3,7 @@
 import { loadCircuitText } from "../../src/circuit/index.js";
 import type { Circuit } from "../../src/circuit/types.js";
 import { runVariation, type VariationOutcome } from "../../src/pipeline/variation.js";
+import type { CheckContext } from "../../src/pipeline/check-file.js";
 import { RuleSession, type ConfiguredRule } from "../../src/review/engine.js";
 import type { RuleResults } from "../../src/review/engine.js";
 import type { Rule } from "../../src/review/rule.js";
@@ -45,3 +46,34 @@ export function factorial(circuit: Circuit, settings: Pick<VariationSettings, "t
 }
 
 export const CELSIUS = 273.15;
+
+/** A check context with no config file: these rules and this variation, failing on errors. */
+export function checkContext(configured: CheckContext["configured"], variation: VariationSettings): CheckContext {
+  return {
+    config: { file: null, root: ".", include: [], exclude: [], rules: {}, plugins: [], libraries: [], failOn: "error", variation, outputs: {} },
+    rules: [],
+    configured,
+    root: ".",
+  };
+}
+
+/**
+ * A degenerated common-emitter stage (RC 6k8, RE 1k5, no bypass): gain ≈ −RC/RE ≈ −4.5, the
+ * textbook approximation (from memory). Shared by the sensitivity tests of the analysis and of
+ * `inspect --sensitivity`.
+ */
+export const DEGENERATED_CE = `models:
+  q: { kind: npn, beta: 300, saturationCurrent: 1e-14 A }
+components:
+  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, voltage: 15 V }
+  - { id: VIN, kind: voltage-source, pins: { plus: in, minus: gnd }, voltage: 0 V, signal: 1 mV }
+  - { id: CIN, kind: capacitor, pins: [in, b], value: 100u }
+  - { id: R1, kind: resistor, pins: [vcc, b], value: 68k, tolerance: 1% }
+  - { id: R2, kind: resistor, pins: [b, gnd], value: 15k, tolerance: 1% }
+  - { id: RC, kind: resistor, pins: [vcc, c], value: 6k8, tolerance: 1% }
+  - { id: RE, kind: resistor, pins: [e, gnd], value: 1k5, tolerance: 1% }
+  - { id: Q1, kind: npn, model: q, pins: { collector: c, base: b, emitter: e } }
+specs:
+  gains:
+    - { name: av, input: VIN, output: c, target: -4.4, tolerance: 20% }
+`;

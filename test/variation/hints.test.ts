@@ -1,27 +1,10 @@
 // Hints that name the part: from the sensitivities, not from a fixed sentence per rule.
 import { describe, expect, it } from "vitest";
-import { checkCircuit, type CheckContext } from "../../src/pipeline/check-file.js";
+import { checkCircuit } from "../../src/pipeline/check-file.js";
 import headroom from "../../rules/headroom.js";
-import { builtin, CELSIUS, load } from "./helpers.js";
+import { builtin, CELSIUS, checkContext, load } from "./helpers.js";
 
-function context(rules: CheckContext["configured"]): CheckContext {
-  return {
-    config: {
-      file: null,
-      root: ".",
-      include: [],
-      exclude: [],
-      rules: {},
-      plugins: [],
-      failOn: "error",
-      variation: { mode: "corners", samples: 1, seed: 1, temperature: { min: CELSIUS - 20, max: CELSIUS + 60 } },
-      outputs: {},
-    } as unknown as CheckContext["config"],
-    rules: [],
-    configured: rules,
-    root: ".",
-  };
-}
+const CORNERS = { mode: "corners" as const, samples: 1, seed: 1, temperature: { min: CELSIUS - 20, max: CELSIUS + 60 } };
 
 describe("hints from sensitivities", () => {
   it("the lower device of a cascode short of headroom is pointed at the cascode's base divider, not the collector resistor", async () => {
@@ -40,7 +23,7 @@ components:
   - { id: Q1, kind: npn, model: q, pins: { collector: c1, base: b1, emitter: e1 } }
   - { id: Q2, kind: npn, model: q, pins: { collector: c2, base: b2, emitter: c1 } }
 `);
-    const result = await checkCircuit(c, context([builtin(headroom)]), "cascode.yaml");
+    const result = await checkCircuit(c, checkContext([builtin(headroom)], CORNERS), "cascode.yaml");
     const f = result.findings.find((x) => x.rule === "headroom" && x.subject === "Q1")!;
     expect(f, JSON.stringify(result.findings.map((x) => [x.subject, x.measured]))).toBeDefined();
     // The two parts named first are the cascode's base divider.
@@ -64,7 +47,7 @@ components:
   - { id: Q1, kind: npn, model: q, pins: { collector: c1, base: gnd, emitter: t } }
   - { id: Q2, kind: npn, model: q, pins: { collector: c2, base: gnd, emitter: t } }
 `);
-    const result = await checkCircuit(c, context([builtin(headroom)]), "pair.yaml");
+    const result = await checkCircuit(c, checkContext([builtin(headroom)], CORNERS), "pair.yaml");
     const f = result.findings.find((x) => x.rule === "headroom" && x.subject === "Q1")!;
     expect(f, JSON.stringify(result.findings.map((x) => [x.subject, x.measured]))).toBeDefined();
     const named = [...f.hint!.matchAll(/(?:raise|lower) (\w+):/g)].map((m) => m[1]);

@@ -1,7 +1,7 @@
 // A Monte Carlo finding's worst sample as a parameter set: the few parameters that moved its
 // quantity most in that sample, checked against Ohm's law, and shown by every report.
 import { describe, expect, it } from "vitest";
-import { checkCircuit, type CheckContext } from "../../src/pipeline/check-file.js";
+import { checkCircuit } from "../../src/pipeline/check-file.js";
 import { buildDocument } from "../../src/report/build.js";
 import { renderConsole } from "../../src/report/console.js";
 import { renderJunit } from "../../src/report/junit.js";
@@ -10,7 +10,7 @@ import { renderSarif } from "../../src/report/sarif.js";
 import { defineRule } from "../../src/review/rule.js";
 import { sampleCorners } from "../../src/variation/sample-corners.js";
 import { variationParameters } from "../../src/variation/parameters.js";
-import { builtin, CELSIUS, load } from "./helpers.js";
+import { builtin, CELSIUS, checkContext, load } from "./helpers.js";
 
 // Bounds V(out) above: fails in the samples where the divider's ratio runs high.
 const outAtMost = (limit: number) =>
@@ -37,29 +37,10 @@ const circuitText = `components:
   - { id: R4, kind: resistor, pins: [x, gnd], value: 1k, tolerance: 20% }
 `;
 
-function context(): CheckContext {
-  return {
-    config: {
-      file: null,
-      root: ".",
-      include: [],
-      exclude: [],
-      rules: {},
-      plugins: [],
-      failOn: "error",
-      variation: { mode: "monte-carlo", samples: 400, seed: 11, temperature: { min: CELSIUS - 20, max: CELSIUS + 60 } },
-      outputs: {},
-    } as unknown as CheckContext["config"],
-    rules: [],
-    configured: [builtin(outAtMost(5.05))],
-    root: ".",
-  };
-}
-
 describe("a Monte Carlo finding's worst sample as its parameter set", () => {
   it("names the parts that move the quantity, with the signs Ohm's law gives, and says it is a sample", async () => {
     const circuit = load(circuitText);
-    const result = await checkCircuit(circuit, context(), "divider.yaml");
+    const result = await checkCircuit(circuit, checkContext([builtin(outAtMost(5.05))], { mode: "monte-carlo", samples: 400, seed: 11, temperature: { min: CELSIUS - 20, max: CELSIUS + 60 } }), "divider.yaml");
     const f = result.findings.find((x) => x.rule === "out-level")!;
     expect(f).toBeDefined();
     expect(f.scenario).toMatch(/^mc-\d+$/);

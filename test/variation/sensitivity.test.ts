@@ -10,7 +10,7 @@ import type { BjtPoint, MosPoint, OperatingPoint } from "../../src/solve/types.j
 import type { Circuit } from "../../src/circuit/types.js";
 import { circuitAt, nominalValues, variationParameters } from "../../src/variation/parameters.js";
 import { sensitivityEntries } from "../../src/variation/sensitivity.js";
-import { builtin, CELSIUS, load, run } from "./helpers.js";
+import { builtin, CELSIUS, load, run, DEGENERATED_CE } from "./helpers.js";
 
 const corners = { mode: "corners" as const, samples: 1, seed: 1 };
 
@@ -58,21 +58,7 @@ describe("sensitivities", () => {
   });
 
   it("degenerated CE gain: about +1 %/% to RC and −1 %/% to RE (−RC/RE, textbook formula from memory)", async () => {
-    const c = load(`models:
-  q: { kind: npn, beta: 300, saturationCurrent: 1e-14 A }
-components:
-  - { id: VCC, kind: voltage-source, pins: { plus: vcc, minus: gnd }, voltage: 15 V }
-  - { id: VIN, kind: voltage-source, pins: { plus: in, minus: gnd }, voltage: 0 V, signal: 1 mV }
-  - { id: CIN, kind: capacitor, pins: [in, b], value: 100u }
-  - { id: R1, kind: resistor, pins: [vcc, b], value: 68k, tolerance: 1% }
-  - { id: R2, kind: resistor, pins: [b, gnd], value: 15k, tolerance: 1% }
-  - { id: RC, kind: resistor, pins: [vcc, c], value: 6k8, tolerance: 1% }
-  - { id: RE, kind: resistor, pins: [e, gnd], value: 1k5, tolerance: 1% }
-  - { id: Q1, kind: npn, model: q, pins: { collector: c, base: b, emitter: e } }
-specs:
-  gains:
-    - { name: av, input: VIN, output: c, target: -4.4, tolerance: 20% }
-`);
+    const c = load(DEGENERATED_CE);
     const r = await run(c, [builtin(gainWindow)], corners);
     const e = sensitivityEntries(r.v.table!, quantityKey("gain-window", "av", "V/V"));
     const n = (k: string) => e.find((x) => x.parameter === k)!.normalised!;
