@@ -121,6 +121,7 @@ export interface DistributionEntry {
   readonly p99: number;
   readonly max: number;
   readonly mean: number;
+  /** Sample standard deviation (n − 1). */
   readonly sigma: number;
 }
 

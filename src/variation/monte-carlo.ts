@@ -3,6 +3,7 @@
 // confidence interval and per-quantity distributions.
 import type { Parameter } from "./parameters.js";
 import { normal, triangular, type Random } from "./random.js";
+import type { DistributionEntry } from "../report/document.js";
 
 /** Tolerance bands are read as ±3σ of a normal distribution (common practice for Monte Carlo). */
 export const SIGMAS_PER_BAND = 3;
@@ -46,17 +47,8 @@ export function wilsonInterval(passed: number, n: number, z = Z95): { low: numbe
   return { low: Math.max(0, centre - half), high: Math.min(1, centre + half) };
 }
 
-export interface Distribution {
-  readonly samples: number;
-  readonly min: number;
-  readonly p1: number;
-  readonly median: number;
-  readonly p99: number;
-  readonly max: number;
-  readonly mean: number;
-  /** Sample standard deviation (n − 1). */
-  readonly sigma: number;
-}
+/** One quantity's statistics over the samples (σ is the sample standard deviation, n − 1). */
+export type Distribution = Omit<DistributionEntry, "rule" | "subject" | "unit">;
 
 /** Percentile by linear interpolation between order statistics (the common "type 7" definition). */
 function percentile(sorted: Float64Array, q: number): number {

@@ -8,6 +8,7 @@
 // Both are far below the 1 % the reports print (the tests check closed forms to 1e-6).
 // A side whose solve fails (or whose rule did not report the quantity) falls back to the
 // one-sided difference; both failing leaves the derivative at 0 and is counted.
+import type { SensitivityEntry } from "../report/document.js";
 import type { Parameter } from "./parameters.js";
 
 /** Quantity key → measured value, from one analysis; null when its bias solve failed. */
@@ -76,20 +77,8 @@ export async function sensitivities(
   return { parameters: params, at, base, derivatives, evaluations, failedSides };
 }
 
-/** One parameter's effect on one quantity, as reports show it. */
-export interface SensitivityEntry {
-  readonly parameter: string;
-  readonly name: string;
-  /** ∂m/∂p in SI units (per kelvin for temperature). */
-  readonly derivative: number;
-  /** (∂m/∂p)·(p/m): percent change of the quantity per percent of the parameter; null for temperature or m = 0. */
-  readonly normalised: number | null;
-  /** Change of the quantity per °C (temperature only). */
-  readonly perDegree: number | null;
-  /** Linear change of the quantity with the parameter at its band's low and high ends. */
-  readonly low: number;
-  readonly high: number;
-}
+/** One parameter's effect on one quantity, as reports show it (the results document's type). */
+export type { SensitivityEntry };
 
 /** The entries of one quantity, largest effect across its band first; parameters without effect left out. */
 export function sensitivityEntries(table: SensitivityTable, key: string): SensitivityEntry[] {
