@@ -357,7 +357,6 @@ export const checkCommand: CommandSpec = {
     const showProgress = io.stderrIsTTY === true && io.env.CI !== "true" && !io.env.GITHUB_ACTIONS && files.length >= PROGRESS_MIN_FILES;
     // Reports are written while results arrive (src/cli/stream-reports.ts) and moved into place at the end.
     const writers = openReportWriters(targets, io, {
-      failOn: ctx.config.failOn,
       ...(typeof args.charts === "string" ? { charts: { dir: resolve(io.cwd, args.charts), shown: args.charts } } : {}),
     });
     let doc: ReportDocument;

@@ -17,7 +17,7 @@ export interface Input {
 /** The real path of a file that may not exist yet (its folder's real path + its name). */
 export function realTarget(abs: string): string {
   try {
-    return realpathSync(abs);
+    return realpathSync.native(abs);
   } catch {
     const dir = dirname(abs);
     if (dir === abs) return abs;

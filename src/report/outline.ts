@@ -118,8 +118,14 @@ export function outlineParts(c: CircuitOutline): OutlineParts {
  * outline per file, and the reports read most of it once or twice (the findings) or only for the
  * markdown sections that fit in a comment and the baseline (operating point, gains).
  */
-export function outlineFromBytes(light: Pick<CircuitOutline, "file" | "name" | "status">, bytes: Buffer, lightEnd: number, operatingPointEnd: number): CircuitOutline {
-  const rest = (): OutlineParts["light"] => parseTagged(bytes.toString("utf8", 0, lightEnd)) as OutlineParts["light"];
+export function outlineFromBytes(
+  light: Pick<CircuitOutline, "file" | "name" | "status">,
+  source: Buffer | (() => Buffer),
+  lightEnd: number,
+  operatingPointEnd: number,
+): CircuitOutline {
+  const read = typeof source === "function" ? source : () => source;
+  const rest = (): OutlineParts["light"] => parseTagged(read().toString("utf8", 0, lightEnd)) as OutlineParts["light"];
   return {
     file: light.file,
     name: light.name,
@@ -137,20 +143,49 @@ export function outlineFromBytes(light: Pick<CircuitOutline, "file" | "name" | "
       return rest().libraries;
     },
     get operatingPoint(): OperatingPointOutline | null {
-      return parseTagged(bytes.toString("utf8", lightEnd, operatingPointEnd)) as OperatingPointOutline | null;
+      return parseTagged(read().toString("utf8", lightEnd, operatingPointEnd)) as OperatingPointOutline | null;
     },
     get gains(): readonly GainOutline[] {
-      return parseTagged(bytes.toString("utf8", operatingPointEnd)) as GainOutline[];
+      return parseTagged(read().toString("utf8", operatingPointEnd)) as GainOutline[];
     },
   };
 }
 
-/** An outline from its parts as text (a run's own results; the cache reads entries as bytes). */
-export function outlineFrom(parts: OutlineParts): CircuitOutline {
+/**
+ * An outline as text (tagged JSON: light fields, operating point, gains back to back) with the
+ * fields read without parsing: the form in which a lane hands an outline to the thread writing
+ * the reports (src/run/prepare.ts), and a cache entry's outline (as bytes).
+ */
+export interface OutlineText {
+  readonly file: string;
+  readonly name: string | null;
+  readonly status: CircuitOutline["status"];
+  readonly text: string | Buffer;
+  /** Byte offsets in the text's UTF-8 form. */
+  readonly lightEnd: number;
+  readonly operatingPointEnd: number;
+}
+
+export function outlineText(parts: OutlineParts): OutlineText {
   const light = stringifyTagged(parts.light);
   const lightEnd = Buffer.byteLength(light, "utf8");
-  const operatingPointEnd = lightEnd + Buffer.byteLength(parts.operatingPoint, "utf8");
-  return outlineFromBytes(parts.light, Buffer.from(light + parts.operatingPoint + parts.gains, "utf8"), lightEnd, operatingPointEnd);
+  return {
+    file: parts.light.file,
+    name: parts.light.name,
+    status: parts.light.status,
+    text: light + parts.operatingPoint + parts.gains,
+    lightEnd,
+    operatingPointEnd: lightEnd + Buffer.byteLength(parts.operatingPoint, "utf8"),
+  };
+}
+
+export function outlineFromText(o: OutlineText): CircuitOutline {
+  return outlineFromBytes(o, typeof o.text === "string" ? Buffer.from(o.text, "utf8") : o.text, o.lightEnd, o.operatingPointEnd);
+}
+
+/** An outline from its parts (a run's own results; the cache reads entries as bytes). */
+export function outlineFrom(parts: OutlineParts): CircuitOutline {
+  return outlineFromText(outlineText(parts));
 }
 
 /** The outline of a (normalised) circuit result. */

@@ -21,7 +21,7 @@ import { fileURLToPath } from "node:url";
 import type { CheckContext } from "../pipeline/check-file.js";
 import type { CircuitResult } from "../report/document.js";
 import { jsonCircuit } from "../report/json.js";
-import { outlineFromBytes, outlineParts, type CircuitOutline, type OutlineParts } from "../report/outline.js";
+import { outlineParts, type OutlineParts, type OutlineText } from "../report/outline.js";
 import { parseTagged, stringifyTagged } from "../report/tagged-json.js";
 import type { CircuitFile } from "./discover.js";
 
@@ -185,10 +185,14 @@ export interface CacheLookup {
   readonly result?: CircuitResult;
 }
 
+/** Where a valid entry's parts are: what parts() needs to read them again. */
+export type CacheEntryPlace = Omit<CacheHit, "outline">;
+
 /** A valid entry found by probe(): its outline now, the rest read when it is used. */
 export interface CacheHit {
   readonly key: string;
-  readonly outline: CircuitOutline;
+  /** The entry's outline, as bytes (src/run/outline-store.ts keeps it, or spills it to disk). */
+  readonly outline: OutlineText;
   /** The header line as read (a replaced entry has another). */
   readonly header: Buffer;
   /** Offsets of the parts in the entry (PARTS + 1 values). */
@@ -198,7 +202,6 @@ export interface CacheHit {
 
 /** An entry's parts as a report uses them (read again, and verified again, when used). */
 export interface CachedParts {
-  readonly outline: CircuitOutline;
   /** The text of the circuit in the JSON report (jsonCircuit(result, true)), as bytes. */
   readonly json: Buffer;
   /** The whole result, parsed on first call. */
@@ -221,7 +224,8 @@ export class ResultCache {
 
   constructor(
     readonly dir: string,
-    private readonly runKeyHex: string,
+    /** The run's policy key (see runKey): a worker opens the same cache with it. */
+    readonly runKeyHex: string,
   ) {
     this.root = join(dir, FORMAT_DIR);
   }
@@ -263,7 +267,7 @@ export class ResultCache {
    * entry may have been removed or replaced since); null when it no longer holds (the caller
    * checks the file).
    */
-  parts(hit: CacheHit, display: string): CachedParts | null {
+  parts(hit: CacheEntryPlace, display: string): CachedParts | null {
     const path = this.entryPath(hit.key);
     const why = withFile(path, (fd) => {
       const header = readAt(fd, 0, hit.header.length);
@@ -278,7 +282,6 @@ export class ResultCache {
     }
     let result: CircuitResult | undefined;
     return {
-      outline: hit.outline,
       json: why,
       result: () => {
         if (result) return result;
@@ -341,7 +344,14 @@ export class ResultCache {
       }
       if (light === null || typeof light !== "object" || light.file !== display || !Array.isArray(light.findings)) return "holds no result";
       // Copies: a slice would keep the whole read in memory for as long as the run keeps the outline.
-      const outline = outlineFromBytes(light, Buffer.from(bytes.subarray(at[LIGHT], at[RESULT])), at[OPERATING_POINT]! - at[LIGHT]!, at[GAINS]! - at[LIGHT]!);
+      const outline: OutlineText = {
+        file: light.file,
+        name: light.name,
+        status: light.status,
+        text: Buffer.from(bytes.subarray(at[LIGHT], at[RESULT])),
+        lightEnd: at[OPERATING_POINT]! - at[LIGHT]!,
+        operatingPointEnd: at[GAINS]! - at[LIGHT]!,
+      };
       return { key, outline, header: Buffer.from(head.subarray(0, eol + 1)), at, crc };
     });
     if (typeof got === "string") {
@@ -429,7 +439,7 @@ function readAt(fd: number, position: number, length: number): Buffer {
 }
 
 /** One part of an entry found by probe(), checked against its checksum. */
-function readPart(fd: number, hit: CacheHit, i: number): Buffer | string {
+function readPart(fd: number, hit: CacheEntryPlace, i: number): Buffer | string {
   const bytes = readAt(fd, hit.at[i]!, hit.at[i + 1]! - hit.at[i]!);
   if (bytes.length !== hit.at[i + 1]! - hit.at[i]!) return "is cut short";
   return crc32(bytes) === hit.crc[i] ? bytes : "is damaged (a checksum does not match)";

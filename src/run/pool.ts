@@ -1,5 +1,6 @@
 // Checks files on workers (`--jobs N`: worker threads, see lane.ts), or in this
-// process alone for one job. Results are placed by file position, so their order never depends on
+// process alone for one job. With a PrepareSpec, each lane also prepares what it checked for the
+// reports (src/run/prepare.ts), so the thread that writes them does not serialise every circuit. Results are placed by file position, so their order never depends on
 // scheduling. A worker that dies takes only the file it was checking with it: that file gets an
 // `internal` error result, the worker is replaced, and the run goes on. If workers cannot start
 // at all, this process checks the rest.
@@ -7,7 +8,11 @@ import { checkFile, type CheckContext, type CheckContextOptions } from "../pipel
 import type { CircuitResult } from "../report/document.js";
 import type { CircuitFile } from "./discover.js";
 import { startLane, type Lane } from "./lane.js";
-import type { FromWorker, ToWorker, WorkerStart } from "./protocol.js";
+import { prepareResult, type CacheStore, type PrepareSpec } from "./prepare.js";
+import type { FromWorker, LaneOutput, ToWorker, WorkerStart } from "./protocol.js";
+
+/** A file for the pool: with its cache key when the run stores results (the lane that checks it writes the entry). */
+export type PoolFile = CircuitFile & { readonly key?: string };
 
 /**
  * When the user did not choose `--jobs`, one lane per this many files at most. A worker's fixed
@@ -51,11 +56,16 @@ export interface PoolOptions {
   readonly minFilesPerWorker?: number;
   /** Default true. Tests set false so that every file goes through a worker. */
   readonly mainThreadLane?: boolean;
+  /** Lanes prepare each result for the reports (needs onResult). Without it they hand on raw results. */
+  readonly prepare?: PrepareSpec;
+  /** This thread's cache, for the files it checks itself (with prepare.cache). */
+  readonly store?: CacheStore;
   /**
    * Each result as it arrives (any order; `index` is the file's position). When given, the pool
    * keeps no result: the array it returns is empty, and memory stays with the caller's choice.
+   * A file whose worker died comes raw even with a PrepareSpec (its internal-error result).
    */
-  readonly onResult?: (index: number, result: CircuitResult) => void;
+  readonly onResult?: (index: number, output: LaneOutput) => void;
 }
 
 export function internalErrorResult(file: CircuitFile, message: string): CircuitResult {
@@ -87,17 +97,19 @@ export function internalErrorResult(file: CircuitFile, message: string): Circuit
   };
 }
 
-export async function checkFiles(files: readonly CircuitFile[], options: PoolOptions): Promise<CircuitResult[]> {
+export async function checkFiles(files: readonly PoolFile[], options: PoolOptions): Promise<CircuitResult[]> {
+  if (options.prepare && !options.onResult) throw new Error("checkFiles: prepared results need onResult");
   const results: (CircuitResult | undefined)[] = options.onResult ? [] : new Array(files.length);
+  const prepare = options.prepare;
   const total = files.length;
   let next = 0;
   /** Files handed back by a dead worker that it had not started yet. */
   const requeued: number[] = [];
   let done = 0;
   const take = (): number | undefined => (requeued.length > 0 ? requeued.shift() : next < total ? next++ : undefined);
-  const finish = (i: number, result: CircuitResult): void => {
-    if (options.onResult) options.onResult(i, result);
-    else results[i] = result;
+  const finish = (i: number, output: LaneOutput): void => {
+    if (options.onResult) options.onResult(i, output);
+    else if ("raw" in output) results[i] = output.raw;
     done++;
     options.onProgress?.(done, total);
   };
@@ -105,13 +117,14 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
   const inProcess = async (): Promise<void> => {
     for (let i = take(); i !== undefined; i = take()) {
       const file = files[i]!;
-      let result: CircuitResult;
+      let output: LaneOutput;
       try {
-        result = await checkFile(file.abs, options.ctx, file.display);
+        const raw = await checkFile(file.abs, options.ctx, file.display);
+        output = prepare ? { prepared: prepareResult(raw, prepare, options.store, file.key) } : { raw };
       } catch (err) {
-        result = internalErrorResult(file, `the check stopped: ${err instanceof Error ? err.message : String(err)}`);
+        output = { raw: internalErrorResult(file, `the check stopped: ${err instanceof Error ? err.message : String(err)}`) };
       }
-      finish(i, result);
+      finish(i, output);
       // A check never waits on I/O (files are read synchronously), so its awaits only run
       // microtasks: without this turn of the event loop, workers' results and requests for more
       // files would wait until this lane had checked every file itself.
@@ -130,7 +143,11 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
   // This thread is one of the lanes: it is warm already, while a worker first has to load the
   // whole pipeline. So `--jobs N` runs N − 1 workers beside it.
   await new Promise<void>((resolveAll) => {
-    const start: WorkerStart = { context: options.context, ...(options.crashOn !== undefined ? { crashOn: options.crashOn } : {}) };
+    const start: WorkerStart = {
+      context: options.context,
+      ...(prepare ? { prepare } : {}),
+      ...(options.crashOn !== undefined ? { crashOn: options.crashOn } : {}),
+    };
     const live = new Set<Lane>();
     const mainLane = options.mainThreadLane ?? true;
     let respawns = 0;
@@ -163,7 +180,7 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
           if (i === undefined) break;
           inFlight.push(i);
           const f = files[i]!;
-          const message: ToWorker = { type: "check", id: i, abs: f.abs, display: f.display };
+          const message: ToWorker = { type: "check", id: i, abs: f.abs, display: f.display, ...(f.key !== undefined ? { key: f.key } : {}) };
           lane.send(message);
         }
         if (inFlight.length === 0) {
@@ -183,7 +200,7 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
           const at = inFlight.indexOf(m.id);
           if (at < 0) return;
           inFlight.splice(at, 1);
-          finish(m.id, m.type === "result" ? m.result : internalErrorResult(files[m.id]!, `the check stopped: ${m.message}`));
+          finish(m.id, m.type === "result" ? m.output : { raw: internalErrorResult(files[m.id]!, `the check stopped: ${m.message}`) });
           fill();
         }
       };
@@ -193,7 +210,7 @@ export async function checkFiles(files: readonly CircuitFile[], options: PoolOpt
         const [dying, ...untouched] = inFlight;
         if (dying !== undefined) {
           const f = files[dying]!;
-          finish(dying, internalErrorResult(f, `the check of this file stopped unexpectedly (its worker exited with ${code === null ? "a signal" : `code ${code}`}${lastError ? `: ${lastError}` : ""})`));
+          finish(dying, { raw: internalErrorResult(f, `the check of this file stopped unexpectedly (its worker exited with ${code === null ? "a signal" : `code ${code}`}${lastError ? `: ${lastError}` : ""})`) });
           options.onNotice?.(`a worker died while checking ${f.display}; it was replaced`);
         }
         // The files queued behind the one that crashed were never started: someone else takes them.

@@ -3,15 +3,21 @@
 // (sorted by file) as soon as it and every file before it are done, then dropped. What the run
 // keeps is each circuit's outline (src/report/outline.ts): the whole-run reports and the exit
 // code are drawn from those, and the JSON and JUnit reports are written while results arrive.
+// The lane that checks a file also prepares it in the forms the sink declared it needs
+// (src/run/prepare.ts) and writes its cache entry; this thread only places and writes them.
 import { checkFile, type CheckContext, type CheckContextOptions } from "../pipeline/check-file.js";
-import { compareText, documentHead, normaliseCircuit, summarise } from "../report/build.js";
+import { compareText, documentHead, summarise } from "../report/build.js";
 import type { CircuitResult } from "../report/document.js";
 import { jsonCircuit } from "../report/json.js";
-import { outlineFrom, outlineParts, type CircuitOutline, type DocumentHead, type ReportDocument } from "../report/outline.js";
+import { junitSuite, type JunitSuite } from "../report/junit.js";
+import type { CircuitOutline, DocumentHead, ReportDocument } from "../report/outline.js";
 import { shardProvenance } from "../report/merge.js";
-import { resultDependencies, type CacheHit, type ResultCache } from "./cache.js";
+import type { CacheEntryPlace, ResultCache } from "./cache.js";
 import type { CircuitFile } from "./discover.js";
-import { checkFiles, internalErrorResult } from "./pool.js";
+import { OutlineStore } from "./outline-store.js";
+import { checkFiles, internalErrorResult, type PoolFile } from "./pool.js";
+import { NO_NEEDS, prepareResult, type CacheStore, type Needs, type Prepared, type PrepareSpec } from "./prepare.js";
+import type { LaneOutput } from "./protocol.js";
 import { selectShard, type Shard } from "./shard.js";
 import { toolVersion } from "./version.js";
 
@@ -32,6 +38,8 @@ export interface RunOptions {
   readonly mainThreadLane?: boolean;
   /** Result cache (check --cache): unchanged files are taken from it, the rest checked and stored. */
   readonly cache?: ResultCache;
+  /** Tests only: outline bytes kept in memory before the rest go to a file (default SPILL_AFTER). */
+  readonly spillOutlinesAfter?: number;
 }
 
 /** One circuit's result as the sink gets it, in document order. */
@@ -39,14 +47,21 @@ export interface RunItem {
   /** Position in the document (0 for the first circuit). */
   readonly index: number;
   readonly outline: CircuitOutline;
-  /** The whole normalised result (for a cached file, read from its entry on first call). */
+  /**
+   * The whole normalised result (for a cached file, read from its entry on first call). Only for
+   * a sink whose `needs.whole` is set: lanes do not send it otherwise.
+   */
   result(): CircuitResult;
   /** The circuit's text in the JSON report: jsonCircuit(result, true) (for a cached file, its stored bytes). */
   json(): string | Buffer;
+  /** Its JUnit suite: junitSuite(result, failOn). */
+  junit(): JunitSuite;
 }
 
 /** Where results go as they arrive: the streamed reports. A throw ends the run (after the pool stops). */
 export interface RunSink {
+  /** The forms of each result the sink reads (default none: outlines only); lanes make them. */
+  readonly needs?: Needs;
   /** Called once, before any circuit, with the document's head. */
   start?(head: DocumentHead): void;
   circuit(item: RunItem): void;
@@ -55,7 +70,7 @@ export interface RunSink {
 /** The run without a sink: every whole result kept, as one results document (tests, `inspect`-like callers). */
 export async function runCheckDocument(allFiles: readonly CircuitFile[], options: RunOptions): Promise<ReportDocument & { circuits: CircuitResult[] }> {
   const circuits: CircuitResult[] = [];
-  const doc = await runCheck(allFiles, options, { circuit: (item) => void circuits.push(item.result()) });
+  const doc = await runCheck(allFiles, options, { needs: { ...NO_NEEDS, whole: true }, circuit: (item) => void circuits.push(item.result()) });
   return { ...doc, circuits };
 }
 
@@ -77,32 +92,54 @@ export async function runCheck(allFiles: readonly CircuitFile[], options: RunOpt
   // From the cache: which files are unchanged (their outlines are read now, the rest of their
   // entries when they are written out); only the others go to the lanes.
   const cache = options.cache;
+  const store = new OutlineStore(options.spillOutlinesAfter);
   const keys: (string | null)[] = [];
-  const hits: (CacheHit | undefined)[] = [];
+  const hits: (CacheEntryPlace | undefined)[] = [];
+  /** The outline of each hit, kept from the moment it is read. */
+  const hitOutlines: (CircuitOutline | undefined)[] = [];
   const toCheck: number[] = [];
   files.forEach((f, i) => {
     const found = cache ? cache.probe(f) : null;
     keys.push(found?.key ?? null);
-    hits.push(found?.hit);
-    if (!found?.hit) toCheck.push(i);
+    const hit = found?.hit;
+    if (hit) {
+      const { outline, ...place } = hit;
+      hitOutlines[i] = store.keep(outline);
+      hits.push(place);
+    } else {
+      hits.push(undefined);
+      toCheck.push(i);
+    }
   });
 
   const outlines: CircuitOutline[] = [];
   /** Checked results waiting for a file before them. */
-  const waiting = new Map<number, CircuitResult>();
+  const waiting = new Map<number, Prepared>();
   let next = 0;
   let failure: unknown;
 
-  const emitChecked = (i: number, raw: CircuitResult): void => {
-    const result = normaliseCircuit(raw, failOn);
-    const key = keys[i];
-    // A file that could not be read has no key: nothing to store.
-    const parts = outlineParts(result);
-    if (cache && key) cache.store(key, result, resultDependencies(result, options.ctx.root), parts);
-    const outline = outlineFrom(parts);
+  const spec: PrepareSpec = { failOn, needs: sink?.needs ?? NO_NEEDS, ...(cache ? { cache: { dir: cache.dir, runKey: cache.runKeyHex } } : {}) };
+  const cacheStore: CacheStore | undefined = cache ? { cache, root: options.ctx.root } : undefined;
+  /** A result as the sink reads it, prepared here when its lane did not (a file whose worker died, a vanished cache entry). */
+  const prepared = (i: number, output: LaneOutput): Prepared => {
+    if ("raw" in output) return prepareResult(output.raw, spec, cacheStore, keys[i]);
+    if (cache && output.prepared.cacheWriteFailed !== undefined) cache.stats.writeFailed ??= output.prepared.cacheWriteFailed;
+    return output.prepared;
+  };
+  const emitChecked = (i: number, p: Prepared): void => {
+    const outline = store.keep(p.outline);
     outlines.push(outline);
-    let json: string | undefined;
-    sink?.circuit({ index: i, outline, result: () => result, json: () => (json ??= jsonCircuit(result, true)) });
+    const result = (): CircuitResult => {
+      if (!p.result) throw new Error(`internal: the whole result of ${p.outline.file} was not kept (the run's sink did not declare needs.whole)`);
+      return p.result;
+    };
+    sink?.circuit({
+      index: i,
+      outline,
+      result,
+      json: () => p.json ?? jsonCircuit(result(), true),
+      junit: () => p.junit ?? junitSuite(result(), failOn),
+    });
   };
   /** Writes out every file that is ready, in order; a cached file whose entry went away is checked here. */
   const flush = async (): Promise<void> => {
@@ -111,13 +148,15 @@ export async function runCheck(allFiles: readonly CircuitFile[], options: RunOpt
       const hit = hits[i];
       if (hit) {
         const parts = cache!.parts(hit, files[i]!.display);
+        const outline = hitOutlines[i]!;
+        hitOutlines[i] = undefined;
         if (parts) {
-          outlines.push(parts.outline);
-          sink?.circuit({ index: i, outline: parts.outline, result: parts.result, json: () => parts.json });
+          outlines.push(outline);
+          sink?.circuit({ index: i, outline, result: parts.result, json: () => parts.json, junit: () => junitSuite(parts.result(), failOn) });
         } else {
           // Removed or replaced since it was looked up: check the file after all, here.
           hits[i] = undefined;
-          waiting.set(i, await checkOne(files[i]!, options));
+          waiting.set(i, prepared(i, { raw: await checkOne(files[i]!, options) }));
           continue;
         }
       } else {
@@ -139,7 +178,10 @@ export async function runCheck(allFiles: readonly CircuitFile[], options: RunOpt
 
   schedule();
   await checkFiles(
-    toCheck.map((i) => files[i]!),
+    toCheck.map((i): PoolFile => {
+      const key = keys[i];
+      return key ? { ...files[i]!, key } : files[i]!;
+    }),
     {
       jobs: options.jobs,
       ...(options.autoJobs ? { autoJobs: true } : {}),
@@ -150,8 +192,11 @@ export async function runCheck(allFiles: readonly CircuitFile[], options: RunOpt
       ...(options.crashOn !== undefined ? { crashOn: options.crashOn } : {}),
       ...(options.minFilesPerWorker !== undefined ? { minFilesPerWorker: options.minFilesPerWorker } : {}),
       ...(options.mainThreadLane !== undefined ? { mainThreadLane: options.mainThreadLane } : {}),
-      onResult: (k, result) => {
-        waiting.set(toCheck[k]!, result);
+      prepare: spec,
+      ...(cacheStore ? { store: cacheStore } : {}),
+      onResult: (k, output) => {
+        const i = toCheck[k]!;
+        waiting.set(i, prepared(i, output));
         schedule();
       },
     },

@@ -1,10 +1,13 @@
 // A lane of the pool (lane.ts), a worker thread: builds its own
 // CheckContext from the plain options it was started with, then checks the files it is sent, one
-// at a time, and sends back plain CircuitResults.
+// at a time, and sends back each result prepared for the reports (src/run/prepare.ts; its cache
+// entry written here), or raw when the pool asked for raw results.
 import { parentPort, workerData } from "node:worker_threads";
 import { checkFile } from "../pipeline/check-file.js";
+import { ResultCache } from "./cache.js";
 import { makeCheckContext } from "./context.js";
-import type { FromWorker, ToWorker, WorkerStart } from "./protocol.js";
+import { prepareResult, type CacheStore } from "./prepare.js";
+import type { FromWorker, LaneOutput, ToWorker, WorkerStart } from "./protocol.js";
 
 interface Transport {
   readonly start: WorkerStart;
@@ -25,13 +28,16 @@ const lane = transport();
 const queue: ToWorker[] = [];
 let busy = false;
 
-async function drain(ctx: Awaited<ReturnType<typeof makeCheckContext>>): Promise<void> {
+async function drain(ctx: Awaited<ReturnType<typeof makeCheckContext>>, store: CacheStore | undefined): Promise<void> {
+  const spec = lane.start.prepare;
   if (busy) return;
   busy = true;
   for (let message = queue.shift(); message; message = queue.shift()) {
     if (lane.start.crashOn !== undefined && message.display === lane.start.crashOn) process.exit(70);
     try {
-      lane.send({ type: "result", id: message.id, result: await checkFile(message.abs, ctx, message.display) });
+      const raw = await checkFile(message.abs, ctx, message.display);
+      const output: LaneOutput = spec ? { prepared: prepareResult(raw, spec, store, message.key) } : { raw };
+      lane.send({ type: "result", id: message.id, output });
     } catch (err) {
       lane.send({ type: "failed", id: message.id, message: err instanceof Error ? err.message : String(err) });
     }
@@ -41,10 +47,12 @@ async function drain(ctx: Awaited<ReturnType<typeof makeCheckContext>>): Promise
 
 try {
   const ctx = await makeCheckContext(lane.start.context);
+  const cache = lane.start.prepare?.cache;
+  const store: CacheStore | undefined = cache ? { cache: new ResultCache(cache.dir, cache.runKey), root: ctx.root } : undefined;
   lane.onMessage((message) => {
     if (message.type !== "check") return;
     queue.push(message);
-    void drain(ctx);
+    void drain(ctx, store);
   });
   lane.send({ type: "ready" });
 } catch (err) {

@@ -88,12 +88,31 @@ describe("streamed reports", () => {
     expect(read("out/s.sarif")).toBe(renderSarif(whole));
   }, 120_000);
 
+  it("a run whose outlines go to a temporary file gives the same whole-run reports as one that keeps them in memory, on one lane and on workers", async () => {
+    const ctx = await makeCheckContext({ cwd: repo.dir });
+    const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude, circuitsOnly: true });
+    const base = { ctx, contextOptions: { cwd: repo.dir } };
+    const inMemory = await runCheck(files, { ...base, jobs: 1 });
+    // Every outline goes to the file (none fits in 1 byte), on one lane and then on workers.
+    const spilled = await runCheck(files, { ...base, jobs: 1, spillOutlinesAfter: 1 });
+    const workers = await runCheck(files, { ...base, jobs: 2, minFilesPerWorker: 1, mainThreadLane: false, spillOutlinesAfter: 0 });
+    expect(files.length).toBeGreaterThan(2);
+    for (const doc of [spilled, workers]) {
+      expect(renderMarkdown(doc)).toBe(renderMarkdown(inMemory));
+      expect(renderSarif(doc)).toBe(renderSarif(inMemory));
+      expect(doc.summary).toEqual(inMemory.summary);
+      expect(doc.circuits.map((c) => [c.file, c.status, c.findings, c.scenarios, c.operatingPoint, c.gains])).toEqual(
+        inMemory.circuits.map((c) => [c.file, c.status, c.findings, c.scenarios, c.operatingPoint, c.gains]),
+      );
+    }
+  }, 120_000);
+
   it("reports a file whose worker dies mid-run in every streamed report, and the files after it", async () => {
     const ctx = await makeCheckContext({ cwd: repo.dir });
     const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude, circuitsOnly: true });
     const victim = files[2]!.display;
     const io = { cwd: repo.dir, env: {}, isTTY: false, stdout: () => undefined, stderr: () => undefined };
-    const writers = openReportWriters({ json: "out/crash.json", junit: "out/crash.xml" }, io, { failOn: ctx.config.failOn });
+    const writers = openReportWriters({ json: "out/crash.json", junit: "out/crash.xml" }, io);
     let doc;
     try {
       doc = await runCheck(files, { ctx, contextOptions: { cwd: repo.dir }, jobs: 2, minFilesPerWorker: 1, mainThreadLane: false, crashOn: victim }, writers);
