@@ -36,7 +36,7 @@ const COPY_CHUNK = 1 << 20;
  * of 64 KiB wrote 83 MB in half the time of one write per piece; 256 KiB and 1 MiB were slower
  * than no batching at all on this machine.
  */
-const WRITE_BATCH = Number(process.env.OPGATE_WB ?? 1 << 16);
+const WRITE_BATCH = 1 << 16;
 
 /** What the whole-run reports need beyond the results: the baseline comparison, SARIF's paths. */
 export interface ReportOptions {
