@@ -112,6 +112,15 @@ export function outlineParts(c: CircuitOutline): OutlineParts {
 }
 
 /**
+ * A copy of a string that holds no other: a name read from a circuit file is a slice of the
+ * file's whole text, and an outline kept for the run would keep that text alive with it (1,957
+ * source texts, 10 MB, in a heap snapshot 11 s into an 8,000-file run, 2026-12-02).
+ */
+function ownString(s: string): string {
+  return Buffer.from(s, "utf8").toString("utf8");
+}
+
+/**
  * An outline from its parts as one run of UTF-8 bytes: the light fields' JSON, then the operating
  * point's, then the gains' (`lightEnd` and `operatingPointEnd` are byte offsets). The file, name
  * and status are kept as values; everything else is parsed afresh on every read. A run keeps one
@@ -127,8 +136,8 @@ export function outlineFromBytes(
   const read = typeof source === "function" ? source : () => source;
   const rest = (): OutlineParts["light"] => parseTagged(read().toString("utf8", 0, lightEnd)) as OutlineParts["light"];
   return {
-    file: light.file,
-    name: light.name,
+    file: ownString(light.file),
+    name: light.name === null ? null : ownString(light.name),
     status: light.status,
     get scenarios() {
       return rest().scenarios;

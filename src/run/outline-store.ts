@@ -10,8 +10,8 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { outlineFromBytes, type CircuitOutline, type OutlineText } from "../report/outline.js";
 
-/** Outline bytes kept in memory before the rest go to a file: about 4,500 example-sized circuits. */
-export const SPILL_AFTER = 16 * 1024 * 1024;
+/** Outline bytes kept in memory before the rest go to a file: about 1,100 example-sized circuits. */
+export const SPILL_AFTER = 4 * 1024 * 1024;
 
 /** Closes a store's file once nothing refers to the store (its outlines hold it). */
 const closer = new FinalizationRegistry<number>((fd) => {

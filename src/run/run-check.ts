@@ -9,14 +9,14 @@ import { checkFile, type CheckContext, type CheckContextOptions } from "../pipel
 import { compareText, documentHead, summarise } from "../report/build.js";
 import type { CircuitResult } from "../report/document.js";
 import { jsonCircuit } from "../report/json.js";
-import { junitSuite, type JunitSuite } from "../report/junit.js";
+import { junitSuite } from "../report/junit.js";
 import type { CircuitOutline, DocumentHead, ReportDocument } from "../report/outline.js";
 import { shardProvenance } from "../report/merge.js";
 import type { CacheEntryPlace, ResultCache } from "./cache.js";
 import type { CircuitFile } from "./discover.js";
 import { OutlineStore } from "./outline-store.js";
 import { checkFiles, internalErrorResult, type PoolFile } from "./pool.js";
-import { NO_NEEDS, prepareResult, type CacheStore, type Needs, type Prepared, type PrepareSpec } from "./prepare.js";
+import { asBytes, NO_NEEDS, prepareResult, type CacheStore, type JunitPiece, type Needs, type Prepared, type PrepareSpec } from "./prepare.js";
 import type { LaneOutput } from "./protocol.js";
 import { selectShard, type Shard } from "./shard.js";
 import { toolVersion } from "./version.js";
@@ -52,10 +52,10 @@ export interface RunItem {
    * a sink whose `needs.whole` is set: lanes do not send it otherwise.
    */
   result(): CircuitResult;
-  /** The circuit's text in the JSON report: jsonCircuit(result, true) (for a cached file, its stored bytes). */
-  json(): string | Buffer;
-  /** Its JUnit suite: junitSuite(result, failOn). */
-  junit(): JunitSuite;
+  /** The circuit's text in the JSON report: jsonCircuit(result, true), as text or UTF-8 bytes (a worker's, a cached file's). */
+  json(): string | Uint8Array;
+  /** Its JUnit suite: junitSuite(result, failOn), its XML as text or UTF-8 bytes. */
+  junit(): JunitPiece;
 }
 
 /** Where results go as they arrive: the streamed reports. A throw ends the run (after the pool stops). */
@@ -196,7 +196,9 @@ export async function runCheck(allFiles: readonly CircuitFile[], options: RunOpt
       ...(cacheStore ? { store: cacheStore } : {}),
       onResult: (k, output) => {
         const i = toCheck[k]!;
-        waiting.set(i, prepared(i, output));
+        const p = prepared(i, output);
+        // A result that must wait for files before it (on the other lanes) waits as bytes (asBytes).
+        waiting.set(i, i === next ? p : asBytes(p).prepared);
         schedule();
       },
     },

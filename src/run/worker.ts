@@ -6,19 +6,19 @@ import { parentPort, workerData } from "node:worker_threads";
 import { checkFile } from "../pipeline/check-file.js";
 import { ResultCache } from "./cache.js";
 import { makeCheckContext } from "./context.js";
-import { prepareResult, type CacheStore } from "./prepare.js";
-import type { FromWorker, LaneOutput, ToWorker, WorkerStart } from "./protocol.js";
+import { asBytes, prepareResult, type CacheStore } from "./prepare.js";
+import type { FromWorker, ToWorker, WorkerStart } from "./protocol.js";
 
 interface Transport {
   readonly start: WorkerStart;
-  send(message: FromWorker): void;
+  send(message: FromWorker, transfer?: ArrayBuffer[]): void;
   onMessage(handler: (message: ToWorker) => void): void;
 }
 
 function transport(): Transport {
   const port = parentPort;
   if (!port) throw new Error("opgate: src/run/worker is started by the pool, not run directly");
-  return { start: workerData as WorkerStart, send: (m) => port.postMessage(m), onMessage: (h) => void port.on("message", h) };
+  return { start: workerData as WorkerStart, send: (m, transfer) => port.postMessage(m, transfer), onMessage: (h) => void port.on("message", h) };
 }
 
 const lane = transport();
@@ -36,8 +36,10 @@ async function drain(ctx: Awaited<ReturnType<typeof makeCheckContext>>, store: C
     if (lane.start.crashOn !== undefined && message.display === lane.start.crashOn) process.exit(70);
     try {
       const raw = await checkFile(message.abs, ctx, message.display);
-      const output: LaneOutput = spec ? { prepared: prepareResult(raw, spec, store, message.key) } : { raw };
-      lane.send({ type: "result", id: message.id, output });
+      if (spec) {
+        const { prepared, transfer } = asBytes(prepareResult(raw, spec, store, message.key));
+        lane.send({ type: "result", id: message.id, output: { prepared } }, transfer);
+      } else lane.send({ type: "result", id: message.id, output: { raw } });
     } catch (err) {
       lane.send({ type: "failed", id: message.id, message: err instanceof Error ? err.message : String(err) });
     }
