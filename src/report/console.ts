@@ -43,8 +43,8 @@ const STATUS_WORD: Readonly<Record<CircuitStatus, [string, Colour]>> = {
 };
 const SEVERITY_COLOUR: Readonly<Record<Finding["severity"], Colour>> = { error: "red", warning: "yellow", note: "cyan" };
 
-function scenarioText(c: CircuitOutline, id: string): string {
-  const s = c.scenarios.find((x) => x.id === id);
+function scenarioText(scenarios: CircuitOutline["scenarios"], id: string): string {
+  const s = scenarios.find((x) => x.id === id);
   return t(s && s.label && s.label !== id ? `${id} (${s.label})` : id);
 }
 
@@ -52,14 +52,14 @@ function scenarioText(c: CircuitOutline, id: string): string {
  * Line 1: where, how bad, which rule, what, and the numbers once (the message when the finding has
  * no numbers). Line 2 (indented): the fix and the worst scenario, when there are any.
  */
-function findingLines(c: CircuitOutline, f: Finding, paint: (t: string, c: Colour) => string): string[] {
+function findingLines(scenarios: () => CircuitOutline["scenarios"], f: Finding, paint: (t: string, c: Colour) => string): string[] {
   const numbers = measuredLimitMargin(f);
   const head = `  ${t(f.file)}:${f.line}:${f.column}  ${paint(f.severity.padEnd(7), SEVERITY_COLOUR[f.severity])} ${t(f.rule)}  ${t(f.subject)}  ${numbers ? t(numbers) : t(f.message)}`;
   const detail: string[] = [];
   if (f.hint) detail.push(`fix: ${t(f.hint.trim().replace(/[.;]$/, ""))}`);
   // A worst scenario says something only when scenarios were compared.
-  if (f.scenario && (c.scenarios.length > 1 || f.scenario !== "nominal")) {
-    const where = scenarioText(c, f.scenario);
+  if (f.scenario && (f.scenario !== "nominal" || scenarios().length > 1)) {
+    const where = scenarioText(scenarios(), f.scenario);
     // A Monte Carlo sample's label says only its number: its parameter set follows.
     const set = f.corner ? t(f.corner.label) : "";
     detail.push(`worst: ${where}${set && !where.includes(set) ? `: ${set}` : ""}`);
@@ -103,9 +103,12 @@ export function renderConsole(doc: ReportDocument, options: ConsoleOptions): str
     if (options.quiet && c.status === "pass") continue;
     const [word, colour] = STATUS_WORD[c.status];
     lines.push(`${paint(word, colour)} ${t(c.file)}${c.name ? `  (${t(c.name)})` : ""}`);
+    // An outline parses its fields afresh on every read: each is read once per circuit here.
+    let scenarios: CircuitOutline["scenarios"] | undefined;
+    const scenariosOnce = (): CircuitOutline["scenarios"] => (scenarios ??= c.scenarios);
     for (const f of c.findings) {
       if (options.quiet && c.status !== "error" && !reaches(f.severity, doc.summary.failOn)) continue;
-      lines.push(...findingLines(c, f, paint));
+      lines.push(...findingLines(scenariosOnce, f, paint));
     }
   }
   if (options.baseline && !options.quiet) lines.push("", ...baselineLines(options.baseline));
