@@ -7,7 +7,6 @@
 import { realpathSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 import { processIo, type CliIo } from "../cli/io.js";
-import { boundHeapGrowth } from "../run/heap-growth.js";
 import { toolVersion } from "../run/version.js";
 import { codeCacheDir, loadBundled } from "./code-cache.js";
 
@@ -35,8 +34,6 @@ function isMain(): boolean {
 }
 
 if (isMain()) {
-  // Before cli.js and its code cache are loaded (see src/run/heap-growth.ts).
-  boundHeapGrowth(process.execArgv);
   void run(process.argv.slice(2), processIo()).then((code) => {
     process.exitCode = code;
   });

@@ -19,6 +19,7 @@ import { createHash, randomBytes } from "node:crypto";
 import { mkdirSync, readdirSync, readFileSync, renameSync, rmSync, statSync, writeFileSync } from "node:fs";
 import Module, { createRequire } from "node:module";
 import { basename, dirname, join } from "node:path";
+import { flagsSetHere } from "../run/heap-growth.js";
 import { Script, constants as vmConstants } from "node:vm";
 import { crc32 } from "node:zlib";
 import { defaultCacheDir } from "../run/cache.js";
@@ -62,7 +63,7 @@ function entryBytes(payload: Buffer): Buffer {
 export const outcomes = new Map<string, CodeCacheOutcome>();
 
 /** Scripts whose entry is missing or was refused: written when the process ends. */
-const pending: { readonly script: Script; readonly entry: string }[] = [];
+const pending: { readonly script: Script; readonly entry: string; readonly flags: string }[] = [];
 let writeAtExit = false;
 
 function entryPrefix(file: string): string {
@@ -72,7 +73,8 @@ function entryPrefix(file: string): string {
 function entryName(file: string, bytes: Buffer): string {
   // Node's options too: V8 refuses an entry made under other engine flags, and two ways of
   // starting opgate (with and without NODE_OPTIONS) would otherwise replace each other's entry.
-  const flags = `${process.execArgv.join(" ")}\0${process.env.NODE_OPTIONS ?? ""}`;
+  // And the flags set while running (src/run/heap-growth.ts), for files loaded after that.
+  const flags = `${process.execArgv.join(" ")}\0${process.env.NODE_OPTIONS ?? ""}\0${flagsSetHere.join(" ")}`;
   const key = createHash("sha256").update(`${file}\0${bytes.length}\0${crc32(bytes)}\0${process.version}\0${process.versions.v8}\0${process.arch}\0${flags}`).digest("hex");
   return `${entryPrefix(file)}${key.slice(0, 32)}.v8`;
 }
@@ -109,7 +111,7 @@ export function loadBundled(file: string, dir: string | undefined, require: Node
   const outcome: CodeCacheOutcome = entry === undefined ? "off" : damaged || script.cachedDataRejected ? "refused" : !cachedData ? "miss" : "hit";
   outcomes.set(file, outcome);
   if (entry !== undefined && outcome !== "hit") {
-    pending.push({ script, entry });
+    pending.push({ script, entry, flags: flagsSetHere.join(" ") });
     if (!writeAtExit) {
       writeAtExit = true;
       process.once("exit", writePending);
@@ -124,7 +126,10 @@ export function loadBundled(file: string, dir: string | undefined, require: Node
 
 /** Writes the entries of the files this process missed or had refused (temporary file, then rename). */
 export function writePending(): void {
-  for (const { script, entry } of pending.splice(0)) {
+  for (const { script, entry, flags } of pending.splice(0)) {
+    // Made now, the data would carry flags set since the file was loaded: V8 would refuse it
+    // under the entry's key (src/run/heap-growth.ts). Another run writes it.
+    if (flags !== flagsSetHere.join(" ")) continue;
     const temp = `${entry}.${process.pid}.${randomBytes(4).toString("hex")}.tmp`;
     try {
       const data = script.createCachedData();

@@ -23,6 +23,7 @@ import { makeCheckContext } from "../run/context.js";
 import { discover, DiscoveryError, type Discovery } from "../run/discover.js";
 import { changesSince, ChangedSinceError, selectChanged, type Changes } from "../run/changed.js";
 import { configModels, defaultCacheDir, ResultCache, runKey } from "../run/cache.js";
+import { boundHeapGrowth, LARGE_RUN_FILES } from "../run/heap-growth.js";
 import { runCheck } from "../run/run-check.js";
 import { toolVersion } from "../run/version.js";
 import { parseShard, type Shard } from "../run/shard.js";
@@ -352,6 +353,8 @@ export const checkCommand: CommandSpec = {
       );
       files = picked.files;
     }
+    // A long run keeps its memory bounded (src/run/heap-growth.ts).
+    if (files.length >= LARGE_RUN_FILES) boundHeapGrowth(process.execArgv);
     const cache = openCache(args, ctx, io);
     // The bar is drawn on stderr: whether stderr is a terminal decides, not stdout.
     const showProgress = io.stderrIsTTY === true && io.env.CI !== "true" && !io.env.GITHUB_ACTIONS && files.length >= PROGRESS_MIN_FILES;

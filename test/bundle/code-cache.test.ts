@@ -70,6 +70,39 @@ describe("code cache", () => {
     expect(readdirSync(cache)).toHaveLength(2);
   });
 
+  it("a V8 flag set while running (a long run's heap bound) keys the files loaded after it, and voids no entry", () => {
+    module("helper.cjs", "exports.twice = (x) => 2 * x;\n");
+    const before = module("before.js", BODY);
+    const after = module("after.js", BODY);
+    const cache = join(dir, "cache");
+    const heap = pathToFileURL(fileURLToPath(new URL("../../dist/src/run/heap-growth.js", import.meta.url))).href;
+    // Loads `before`, sets the flag as a run of 1,000 files does (with TEST_SET_FLAG=1), then loads `after`.
+    const script = `import { loadBundled, outcomes } from ${JSON.stringify(pathToFileURL(BUILT).href)};
+import { boundHeapGrowth } from ${JSON.stringify(heap)};
+const { TEST_BEFORE: before, TEST_AFTER: after, TEST_CACHE: cache, TEST_SET_FLAG: flag } = process.env;
+loadBundled(before, cache);
+if (flag === "1") boundHeapGrowth([]);
+loadBundled(after, cache);
+console.log(JSON.stringify([outcomes.get(before), outcomes.get(after)]));`;
+    const run = (setFlag: boolean): string[] => {
+      const env = { ...process.env, TEST_BEFORE: before, TEST_AFTER: after, TEST_CACHE: cache, TEST_SET_FLAG: setFlag ? "1" : "0" };
+      const r = spawnSync(process.execPath, ["--input-type=module", "-e", script], { encoding: "utf8", env });
+      if (r.status !== 0) throw new Error(r.stderr);
+      return JSON.parse(r.stdout) as string[];
+    };
+    const entries = (prefix: string): number => readdirSync(cache).filter((n) => n.startsWith(prefix)).length;
+    expect(run(true)).toEqual(["miss", "miss"]);
+    // `before` was loaded under other flags than its data would be made with: no entry for it.
+    expect(entries("before.js-")).toBe(0);
+    expect(run(true)).toEqual(["miss", "hit"]);
+    // A run without the flag has its own entry for `after` and leaves the other one alone.
+    expect(run(false)).toEqual(["miss", "miss"]);
+    expect([entries("before.js-"), entries("after.js-")]).toEqual([1, 2]);
+    expect(run(false)).toEqual(["hit", "hit"]);
+    expect(run(true)).toEqual(["hit", "hit"]);
+    expect(run(false)).toEqual(["hit", "hit"]);
+  });
+
   it("misses when the file changes", () => {
     module("helper.cjs", "exports.twice = (x) => 2 * x;\n");
     const file = module("lib.js", BODY);
