@@ -1,6 +1,6 @@
 // Benchmark of a whole repository run, the figures of issue 15: circuit files generated from the
-// examples (resistor values varied ±10 %, names made unique), checked by the built CLI as CI
-// would run it (dist/bundle/bin.js; needs `npm run build`).
+// examples (resistor values varied ±10 %, names made unique; the examples' model library beside
+// them), checked by the built CLI as CI would run it (dist/bundle/bin.js; needs `npm run build`).
 //
 // - 2,000 files: --jobs 1 and --jobs 2 interleaved over several rounds, each beside the machine's
 //   own 2-thread references measured in the same round (this shared machine's spare capacity
@@ -80,10 +80,15 @@ function variant(text: string, index: number, random: () => number): string {
 export function generateRepository(dir: string, files = REPO_FILES): number {
   const examples = exampleTexts();
   const random = lcg(60062);
+  // The model library the reference example names (`libraries: [lib/…]`, relative to the circuit).
+  const libraries = join(PACKAGE_ROOT, "examples", "lib");
   for (let i = 0; i < files; i++) {
     const ex = examples[i % examples.length]!;
     const folder = join(dir, "boards", `group-${String(Math.floor(i / FILES_PER_FOLDER)).padStart(2, "0")}`);
-    mkdirSync(folder, { recursive: true });
+    if (!existsSync(folder)) {
+      mkdirSync(join(folder, "lib"), { recursive: true });
+      for (const f of readdirSync(libraries)) writeFileSync(join(folder, "lib", f), readFileSync(join(libraries, f)));
+    }
     writeFileSync(join(folder, `${ex.name}-${String(i).padStart(4, "0")}.yaml`), variant(ex.text, i, random));
   }
   return files;
@@ -219,7 +224,7 @@ const WORKLOAD_FILES = 300;
 export async function workloadParallelism(dir: string): Promise<number> {
   const { Worker } = await import("node:worker_threads");
   const fg = (await import("fast-glob")).default;
-  const files = (await fg("boards/**/*.yaml", { cwd: dir, absolute: true })).sort().slice(0, WORKLOAD_FILES);
+  const files = (await fg("boards/**/*.yaml", { cwd: dir, absolute: true, ignore: ["**/lib/**"] })).sort().slice(0, WORKLOAD_FILES);
   const url = (rel: string) => pathToFileURL(join(PACKAGE_ROOT, "dist", "src", rel)).href;
   const code = `
     (async () => {
@@ -385,7 +390,8 @@ function repository(files: number): { dir: string; done(): void } {
   const keep = process.env.OPGATE_BENCH_REPO_DIR;
   if (keep) {
     const dir = join(keep, `repo-${files}`);
-    const marker = join(dir, "generated");
+    // The marker names the generator's version: a repository made before the library was copied is made again.
+    const marker = join(dir, "generated-2");
     if (!existsSync(marker)) {
       rmSync(dir, { recursive: true, force: true });
       mkdirSync(dir, { recursive: true });
