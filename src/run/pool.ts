@@ -1,9 +1,10 @@
 // Checks files on workers (`--jobs N`: worker threads, see lane.ts), or in this
 // process alone for one job. With a PrepareSpec, each lane also prepares what it checked for the
-// reports (src/run/prepare.ts), so the thread that writes them does not serialise every circuit. Results are placed by file position, so their order never depends on
-// scheduling. A worker that dies takes only the file it was checking with it: that file gets an
-// `internal` error result, the worker is replaced, and the run goes on. If workers cannot start
-// at all, this process checks the rest.
+// reports (src/run/prepare.ts), so the thread that writes them does not serialise every circuit.
+// Results are placed by file position, so their order never depends on scheduling. A worker that
+// dies takes only the file it was checking with it: that file gets an `internal` error result,
+// the worker is replaced, and the run goes on. If workers cannot start at all, this process
+// checks the rest.
 import { checkFile, type CheckContext, type CheckContextOptions } from "../pipeline/check-file.js";
 import type { CircuitResult } from "../report/document.js";
 import type { CircuitFile } from "./discover.js";

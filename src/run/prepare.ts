@@ -3,7 +3,7 @@
 // report, its JUnit suite, and its cache entry. Done here rather than in the thread that writes
 // the reports, because that thread is also a lane: serialising every circuit there (4.2 s of its
 // 13.6 s at 8,000 files, measured 2026-12-02) left the worker waiting on it. What crosses to the
-// writing thread is text and a few plain fields, cheaper to copy than the whole result.
+// writing thread is the report texts as bytes (asBytes) and a few plain fields.
 import { normaliseCircuit } from "../report/build.js";
 import type { CircuitResult, Severity } from "../report/document.js";
 import { jsonCircuit } from "../report/json.js";
