@@ -24,6 +24,7 @@ import { discover, DiscoveryError, type Discovery } from "../run/discover.js";
 import { changesSince, ChangedSinceError, selectChanged, type Changes } from "../run/changed.js";
 import { configModels, defaultCacheDir, ResultCache, runKey } from "../run/cache.js";
 import { boundHeapGrowth, LARGE_RUN_FILES } from "../run/heap-growth.js";
+import { openLane } from "../run/lane.js";
 import { runCheck } from "../run/run-check.js";
 import { toolVersion } from "../run/version.js";
 import { parseShard, type Shard } from "../run/shard.js";
@@ -178,6 +179,19 @@ function progressWriter(io: CliIo): (done: number, total: number) => void {
   };
 }
 
+/** How many files `patterns` name when each is an existing file (a plain path, not a folder or glob); otherwise Infinity. */
+function namedFiles(patterns: readonly string[], cwd: string): number {
+  if (patterns.length === 0) return Infinity;
+  for (const p of patterns) {
+    try {
+      if (!statSync(resolve(cwd, p)).isFile()) return Infinity;
+    } catch {
+      return Infinity;
+    }
+  }
+  return patterns.length;
+}
+
 /** `--jobs N` as given, or (auto) one lane per core at most, added only where they pay (pool.ts). */
 function parseJobs(value: unknown, io: CliIo): { jobs: number; auto: boolean } {
   if (value === undefined) return { jobs: availableParallelism(), auto: true };
@@ -304,105 +318,116 @@ export const checkCommand: CommandSpec = {
       ...(args.rule !== undefined ? { ruleFlags: stringList(args.rule) } : {}),
       ...(typeof args["fail-on"] === "string" ? { failOn: args["fail-on"] as Severity } : {}),
     };
-    const ctx = await buildContext(contextOptions);
-    // Which policy judged this run: the same files give different verdicts under different configs.
-    io.stderr(`opgate: ${policyLine(ctx.config.file, io.cwd)}\n`);
-    const baselineDoc = typeof args.baseline === "string" ? readBaseline(args.baseline, io) : undefined;
-
-    const patterns = stringList(args.paths);
-    const targets = outputTargets(args, ctx);
-    const outputPaths = Object.values(targets).filter((t): t is string => typeof t === "string" && t !== "-").map((t) => resolve(io.cwd, t));
-    let found: Discovery;
+    // With an explicit --jobs N the workers start now and load while this thread reads the policy
+    // and looks for files (0.4–0.5 s at 8,000 files); the pool takes them over (src/run/lane.ts).
+    // Not when the files are named one by one and fewer than the lanes: the pool would stop them.
+    const early = autoJobs ? 0 : Math.min(jobs, namedFiles(stringList(args.paths), io.cwd)) - 1;
+    const started = Array.from({ length: Math.max(0, early) }, () => openLane({ context: contextOptions }));
     try {
-      found = await discover(patterns, {
-        cwd: io.cwd,
-        root: ctx.root,
-        include: ctx.config.include,
-        exclude: ctx.config.exclude,
-        circuitsOnly: true,
-        outputs: outputPaths,
-      });
-    } catch (err) {
-      if (err instanceof DiscoveryError) throw new CliExit(EXIT_INPUT, err.message);
-      throw err;
-    }
-    let files = found.files;
-    checkOutputTargets(targets, runInputs(files, ctx, typeof args.baseline === "string" ? resolve(io.cwd, args.baseline) : undefined), io.cwd);
-    if (found.skipped.length > 0) {
-      if (args.strict === true || ctx.config.nonCircuitFiles === "error")
-        throw new CliExit(EXIT_INPUT, `${skippedLine(found.skipped).replace(/^opgate: skipped/, "found").trimEnd()} — ${args.strict === true ? "--strict" : "the config's nonCircuitFiles: error"} makes that an error: exclude them, or add \`format: opgate-circuit/1\` if they are circuits`);
-      io.stderr(skippedLine(found.skipped));
-    }
-    if (files.length === 0) {
-      throw new CliExit(EXIT_INPUT, `no circuit files (.json, .yaml, .yml declaring format: opgate-circuit/…) match ${patterns.length ? patterns.join(" ") : ctx.config.include.join(" ")}`);
-    }
+      const ctx = await buildContext(contextOptions);
+      // Which policy judged this run: the same files give different verdicts under different configs.
+      io.stderr(`opgate: ${policyLine(ctx.config.file, io.cwd)}\n`);
+      const baselineDoc = typeof args.baseline === "string" ? readBaseline(args.baseline, io) : undefined;
 
-    let changes: Changes | undefined;
-    if (typeof args["changed-since"] === "string") {
+      const patterns = stringList(args.paths);
+      const targets = outputTargets(args, ctx);
+      const outputPaths = Object.values(targets).filter((t): t is string => typeof t === "string" && t !== "-").map((t) => resolve(io.cwd, t));
+      let found: Discovery;
       try {
-        changes = changesSince(args["changed-since"], io.cwd);
+        found = await discover(patterns, {
+          cwd: io.cwd,
+          root: ctx.root,
+          include: ctx.config.include,
+          exclude: ctx.config.exclude,
+          circuitsOnly: true,
+          outputs: outputPaths,
+        });
       } catch (err) {
-        if (err instanceof ChangedSinceError) throw new CliExit(EXIT_INPUT, err.message);
+        if (err instanceof DiscoveryError) throw new CliExit(EXIT_INPUT, err.message);
         throw err;
       }
-      const picked = selectChanged(files, changes, ctx.config);
-      io.stderr(
-        picked.everything
-          ? `opgate: changed since ${changes.ref}: ${relative(io.cwd, picked.everything) || picked.everything} (policy), so all ${files.length} circuit files\n`
-          : `opgate: changed since ${changes.ref}: ${picked.files.length} of ${files.length} circuit files (changed, or using a changed model library)\n`,
-      );
-      files = picked.files;
-    }
-    // A long run keeps its memory bounded (src/run/heap-growth.ts).
-    if (files.length >= LARGE_RUN_FILES) boundHeapGrowth(process.execArgv);
-    const cache = openCache(args, ctx, io);
-    // The bar is drawn on stderr: whether stderr is a terminal decides, not stdout.
-    const showProgress = io.stderrIsTTY === true && io.env.CI !== "true" && !io.env.GITHUB_ACTIONS && files.length >= PROGRESS_MIN_FILES;
-    // Reports are written while results arrive (src/cli/stream-reports.ts) and moved into place at the end.
-    const writers = openReportWriters(targets, io, {
-      ...(typeof args.charts === "string" ? { charts: { dir: resolve(io.cwd, args.charts), shown: args.charts } } : {}),
-    });
-    let doc: ReportDocument;
-    let reportOnStdout: boolean;
-    let reportOptions: ReportOptions;
-    try {
-      doc = await runCheck(
-        files,
-        {
-          ctx,
-          contextOptions,
-          jobs,
-          autoJobs,
-          ...(shard ? { shard } : {}),
-          ...(args.timestamp === true ? { timestamp: new Date().toISOString() } : {}),
-          ...(showProgress ? { onProgress: progressWriter(io) } : {}),
-          onNotice: (message) => io.stderr(`opgate: ${message}\n`),
-          ...(cache ? { cache } : {}),
-        },
-        writers,
-      );
-      if (showProgress) io.stderr("\n");
-      if (cache) io.stderr(`opgate: ${cache.summary()}\n`);
-      if (shard && doc.circuits.length === 0) io.stderr(`opgate: shard ${shard.index}/${shard.count} has no files (${files.length} in all)\n`);
+      let files = found.files;
+      checkOutputTargets(targets, runInputs(files, ctx, typeof args.baseline === "string" ? resolve(io.cwd, args.baseline) : undefined), io.cwd);
+      if (found.skipped.length > 0) {
+        if (args.strict === true || ctx.config.nonCircuitFiles === "error")
+          throw new CliExit(EXIT_INPUT, `${skippedLine(found.skipped).replace(/^opgate: skipped/, "found").trimEnd()} — ${args.strict === true ? "--strict" : "the config's nonCircuitFiles: error"} makes that an error: exclude them, or add \`format: opgate-circuit/1\` if they are circuits`);
+        io.stderr(skippedLine(found.skipped));
+      }
+      if (files.length === 0) {
+        throw new CliExit(EXIT_INPUT, `no circuit files (.json, .yaml, .yml declaring format: opgate-circuit/…) match ${patterns.length ? patterns.join(" ") : ctx.config.include.join(" ")}`);
+      }
 
-      // With --changed-since the baseline is compared on what this run checked and what was deleted.
-      const baselineFor = baselineDoc && changes ? limitBaseline(baselineDoc, doc, changes, ctx.root) : baselineDoc;
-      reportOptions = {
-        ...(baselineFor ? { baseline: diffDocuments(baselineFor, doc) } : {}),
-        ...(targets.sarif ? { sarif: sarifOptionsFor(ctx.root, io.env) } : {}),
-      };
-      reportOnStdout = writers.finish(doc, reportOptions);
+      let changes: Changes | undefined;
+      if (typeof args["changed-since"] === "string") {
+        try {
+          changes = changesSince(args["changed-since"], io.cwd);
+        } catch (err) {
+          if (err instanceof ChangedSinceError) throw new CliExit(EXIT_INPUT, err.message);
+          throw err;
+        }
+        const picked = selectChanged(files, changes, ctx.config);
+        io.stderr(
+          picked.everything
+            ? `opgate: changed since ${changes.ref}: ${relative(io.cwd, picked.everything) || picked.everything} (policy), so all ${files.length} circuit files\n`
+            : `opgate: changed since ${changes.ref}: ${picked.files.length} of ${files.length} circuit files (changed, or using a changed model library)\n`,
+        );
+        files = picked.files;
+      }
+      // A long run keeps its memory bounded (src/run/heap-growth.ts).
+      if (files.length >= LARGE_RUN_FILES) boundHeapGrowth(process.execArgv);
+      const cache = openCache(args, ctx, io);
+      // The bar is drawn on stderr: whether stderr is a terminal decides, not stdout.
+      const showProgress = io.stderrIsTTY === true && io.env.CI !== "true" && !io.env.GITHUB_ACTIONS && files.length >= PROGRESS_MIN_FILES;
+      // Reports are written while results arrive (src/cli/stream-reports.ts) and moved into place at the end.
+      const writers = openReportWriters(targets, io, {
+        ...(typeof args.charts === "string" ? { charts: { dir: resolve(io.cwd, args.charts), shown: args.charts } } : {}),
+      });
+      let doc: ReportDocument;
+      let reportOnStdout: boolean;
+      let reportOptions: ReportOptions;
+      try {
+        doc = await runCheck(
+          files,
+          {
+            ctx,
+            contextOptions,
+            jobs,
+            autoJobs,
+            ...(shard ? { shard } : {}),
+            ...(args.timestamp === true ? { timestamp: new Date().toISOString() } : {}),
+            ...(showProgress ? { onProgress: progressWriter(io) } : {}),
+            onNotice: (message) => io.stderr(`opgate: ${message}\n`),
+            ...(cache ? { cache } : {}),
+            ...(started.length > 0 ? { started } : {}),
+          },
+          writers,
+        );
+        if (showProgress) io.stderr("\n");
+        if (cache) io.stderr(`opgate: ${cache.summary()}\n`);
+        if (shard && doc.circuits.length === 0) io.stderr(`opgate: shard ${shard.index}/${shard.count} has no files (${files.length} in all)\n`);
+
+        // With --changed-since the baseline is compared on what this run checked and what was deleted.
+        const baselineFor = baselineDoc && changes ? limitBaseline(baselineDoc, doc, changes, ctx.root) : baselineDoc;
+        reportOptions = {
+          ...(baselineFor ? { baseline: diffDocuments(baselineFor, doc) } : {}),
+          ...(targets.sarif ? { sarif: sarifOptionsFor(ctx.root, io.env) } : {}),
+        };
+        reportOnStdout = writers.finish(doc, reportOptions);
+      } finally {
+        writers.abort();
+      }
+      const consoleText = renderConsole(doc, {
+        color: colourEnabled(io.env, reportOnStdout ? io.stderrIsTTY === true : io.isTTY),
+        quiet: args.quiet === true,
+        ...(reportOptions.baseline ? { baseline: reportOptions.baseline } : {}),
+      });
+      if (reportOnStdout) io.stderr(consoleText);
+      else io.stdout(consoleText);
+      if (args.annotations !== false) writeCiOutputs(doc, io, reportOptions, reportOnStdout);
+      return exitCodeFor(doc);
     } finally {
-      writers.abort();
+      // Those the run did not take (it ended early, or had fewer files than lanes).
+      for (const lane of started) lane.stop();
     }
-    const consoleText = renderConsole(doc, {
-      color: colourEnabled(io.env, reportOnStdout ? io.stderrIsTTY === true : io.isTTY),
-      quiet: args.quiet === true,
-      ...(reportOptions.baseline ? { baseline: reportOptions.baseline } : {}),
-    });
-    if (reportOnStdout) io.stderr(consoleText);
-    else io.stdout(consoleText);
-    if (args.annotations !== false) writeCiOutputs(doc, io, reportOptions, reportOnStdout);
-    return exitCodeFor(doc);
   },
 };

@@ -26,6 +26,18 @@ export interface Lane {
   stop(): void;
 }
 
+/**
+ * A worker started before the pool that will use it (`check` starts its workers before it looks
+ * for files, so that they load while it searches). Its events wait until `attach`; until then it
+ * does not keep the process alive, so a run that ends early cannot hang on it.
+ */
+export interface OpenLane {
+  /** Hands the lane its events (those that came before are delivered now, in order). Once only. */
+  attach(on: LaneEvents): Lane;
+  /** Ends the lane if it was never attached (after attach, the pool stops it). */
+  stop(): void;
+}
+
 const here = fileURLToPath(import.meta.url);
 /** Under the test runner this file is TypeScript and so is the worker next to it. */
 const fromSource = here.endsWith(".ts");
@@ -48,18 +60,63 @@ function threadEntry(): { entry: URL | string; eval: boolean } {
   return { entry: `import { register } from ${JSON.stringify(tsxEsmApi())};\nregister();\nawait import(${JSON.stringify(worker)});\n`, eval: true };
 }
 
-function startThread(start: WorkerStart, on: LaneEvents): Lane {
+/** The part of a worker thread a lane uses (tests stand in for it). */
+export interface LaneThread {
+  on(event: "message", listener: (message: FromWorker) => void): unknown;
+  on(event: "error", listener: (err: Error) => void): unknown;
+  on(event: "exit", listener: (code: number) => void): unknown;
+  postMessage(message: ToWorker): void;
+  terminate(): unknown;
+  ref(): void;
+  unref(): void;
+}
+
+function workerThread(start: WorkerStart): LaneThread {
   const entry = threadEntry();
-  const worker = new Worker(entry.entry, { workerData: start, eval: entry.eval });
-  worker.on("message", on.message);
-  worker.on("error", (err) => on.error(err.message));
-  worker.on("exit", (code) => on.exit(code));
-  return {
+  return new Worker(entry.entry, { workerData: start, eval: entry.eval });
+}
+
+/** Starts a worker thread (`thread`: tests only); see OpenLane. */
+export function openLane(start: WorkerStart, thread: (start: WorkerStart) => LaneThread = workerThread): OpenLane {
+  const worker = thread(start);
+  worker.unref();
+  let on: LaneEvents | undefined;
+  let stopped = false;
+  /** Events before attach, in the order they came. */
+  const early: ((events: LaneEvents) => void)[] = [];
+  const deliver = (event: (events: LaneEvents) => void): void => {
+    if (on && early.length === 0) event(on);
+    else early.push(event);
+  };
+  worker.on("message", (message: FromWorker) => deliver((e) => e.message(message)));
+  worker.on("error", (err) => deliver((e) => e.error(err.message)));
+  worker.on("exit", (code) => deliver((e) => e.exit(code)));
+  const lane: Lane = {
     send: (message) => worker.postMessage(message),
     stop: () => void worker.terminate(),
+  };
+  return {
+    attach: (events) => {
+      if (on) throw new Error("internal: a lane was attached twice");
+      on = events;
+      worker.ref();
+      // The events that came before are delivered once the caller holds the lane (a `ready`
+      // delivered inside attach would have the pool send files to a lane it does not have yet),
+      // and before any later one: a microtask runs before the next event can arrive.
+      if (early.length > 0)
+        queueMicrotask(() => {
+          for (const event of early.splice(0)) event(events);
+        });
+      return lane;
+    },
+    stop: () => {
+      if (on || stopped) return;
+      stopped = true;
+      void worker.terminate();
+    },
   };
 }
 
 export function startLane(start: WorkerStart, on: LaneEvents): Lane {
-  return startThread(start, on);
+  return openLane(start).attach(on);
 }

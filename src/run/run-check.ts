@@ -14,6 +14,7 @@ import type { CircuitOutline, DocumentHead, ReportDocument } from "../report/out
 import { shardProvenance } from "../report/merge.js";
 import type { CacheEntryPlace, ResultCache } from "./cache.js";
 import type { CircuitFile } from "./discover.js";
+import type { OpenLane } from "./lane.js";
 import { OutlineStore } from "./outline-store.js";
 import { checkFiles, internalErrorResult, type PoolFile } from "./pool.js";
 import { asBytes, NO_NEEDS, prepareResult, type CacheStore, type JunitPiece, type Needs, type Prepared, type PrepareSpec } from "./prepare.js";
@@ -36,6 +37,8 @@ export interface RunOptions {
   readonly crashOn?: string;
   readonly minFilesPerWorker?: number;
   readonly mainThreadLane?: boolean;
+  /** Workers started ahead with `contextOptions` (see PoolOptions.started). */
+  readonly started?: readonly OpenLane[];
   /** Result cache (check --cache): unchanged files are taken from it, the rest checked and stored. */
   readonly cache?: ResultCache;
   /** Tests only: outline bytes kept in memory before the rest go to a file (default SPILL_AFTER). */
@@ -192,6 +195,7 @@ export async function runCheck(allFiles: readonly CircuitFile[], options: RunOpt
       ...(options.crashOn !== undefined ? { crashOn: options.crashOn } : {}),
       ...(options.minFilesPerWorker !== undefined ? { minFilesPerWorker: options.minFilesPerWorker } : {}),
       ...(options.mainThreadLane !== undefined ? { mainThreadLane: options.mainThreadLane } : {}),
+      ...(options.started ? { started: options.started } : {}),
       prepare: spec,
       ...(cacheStore ? { store: cacheStore } : {}),
       onResult: (k, output) => {

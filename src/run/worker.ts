@@ -1,13 +1,14 @@
 // A lane of the pool (lane.ts), a worker thread: builds its own
-// CheckContext from the plain options it was started with, then checks the files it is sent, one
-// at a time, and sends back each result prepared for the reports (src/run/prepare.ts; its cache
-// entry written here), or raw when the pool asked for raw results.
+// CheckContext from the plain options it was started with, learns the run it is part of (a `run`
+// message: it may have been started before the run's files were found), then checks the files it
+// is sent, one at a time, and sends back each result prepared for the reports
+// (src/run/prepare.ts; its cache entry written here), or raw when the pool asked for raw results.
 import { parentPort, workerData } from "node:worker_threads";
 import { checkFile } from "../pipeline/check-file.js";
 import { ResultCache } from "./cache.js";
 import { makeCheckContext } from "./context.js";
 import { asBytes, prepareResult, type CacheStore } from "./prepare.js";
-import type { FromWorker, ToWorker, WorkerStart } from "./protocol.js";
+import type { FromWorker, ToWorker, WorkerRun, WorkerStart } from "./protocol.js";
 
 interface Transport {
   readonly start: WorkerStart;
@@ -25,19 +26,21 @@ const lane = transport();
 
 // Files are checked strictly one after another, in the order sent: the pool sends a few ahead,
 // and a crash must take only the file in progress with it.
-const queue: ToWorker[] = [];
+const queue: (ToWorker & { type: "check" })[] = [];
 let busy = false;
+/** The run, from the pool's first message. */
+let run: WorkerRun = {};
+let store: CacheStore | undefined;
 
-async function drain(ctx: Awaited<ReturnType<typeof makeCheckContext>>, store: CacheStore | undefined): Promise<void> {
-  const spec = lane.start.prepare;
+async function drain(ctx: Awaited<ReturnType<typeof makeCheckContext>>): Promise<void> {
   if (busy) return;
   busy = true;
   for (let message = queue.shift(); message; message = queue.shift()) {
-    if (lane.start.crashOn !== undefined && message.display === lane.start.crashOn) process.exit(70);
+    if (run.crashOn !== undefined && message.display === run.crashOn) process.exit(70);
     try {
       const raw = await checkFile(message.abs, ctx, message.display);
-      if (spec) {
-        const { prepared, transfer } = asBytes(prepareResult(raw, spec, store, message.key));
+      if (run.prepare) {
+        const { prepared, transfer } = asBytes(prepareResult(raw, run.prepare, store, message.key));
         lane.send({ type: "result", id: message.id, output: { prepared } }, transfer);
       } else lane.send({ type: "result", id: message.id, output: { raw } });
     } catch (err) {
@@ -49,12 +52,15 @@ async function drain(ctx: Awaited<ReturnType<typeof makeCheckContext>>, store: C
 
 try {
   const ctx = await makeCheckContext(lane.start.context);
-  const cache = lane.start.prepare?.cache;
-  const store: CacheStore | undefined = cache ? { cache: new ResultCache(cache.dir, cache.runKey), root: ctx.root } : undefined;
   lane.onMessage((message) => {
-    if (message.type !== "check") return;
-    queue.push(message);
-    void drain(ctx, store);
+    if (message.type === "run") {
+      run = message;
+      const cache = message.prepare?.cache;
+      store = cache ? { cache: new ResultCache(cache.dir, cache.runKey), root: ctx.root } : undefined;
+    } else if (message.type === "check") {
+      queue.push(message);
+      void drain(ctx);
+    }
   });
   lane.send({ type: "ready" });
 } catch (err) {

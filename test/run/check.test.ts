@@ -77,6 +77,78 @@ describe("opgate check", () => {
     expect(asked[1]!.findings[0]!.rule).toBe("internal");
   }, 120_000);
 
+  it("takes over workers started ahead, and stops the ones it has no file for", async () => {
+    const { checkFiles } = await import("../../src/run/pool.js");
+    const { openLane } = await import("../../src/run/lane.js");
+    const { makeCheckContext } = await import("../../src/run/context.js");
+    const { discoverCircuitFiles } = await import("../../src/run/discover.js");
+    const ctx = await makeCheckContext({ cwd: repo.dir });
+    const files = (await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude, circuitsOnly: true })).slice(0, 3);
+    const attached: number[] = [];
+    const stopped: number[] = [];
+    // Three workers started ahead, as `check --jobs 4` does, for a run that turns out to have
+    // three files: it needs two workers beside this thread.
+    const started = [0, 1, 2].map((k) => {
+      const lane = openLane({ context: { cwd: repo.dir } });
+      return {
+        attach: (on: Parameters<typeof lane.attach>[0]) => (attached.push(k), lane.attach(on)),
+        stop: () => (stopped.push(k), lane.stop()),
+      };
+    });
+    // A worker started ahead learns the run (here: crash on this file) only when taken over.
+    const victim = files[2]!.display;
+    const results = await checkFiles(files, { jobs: 4, context: { cwd: repo.dir }, ctx, started, crashOn: victim, mainThreadLane: false });
+    expect(attached).toEqual([0, 1, 2]);
+    expect(stopped).toEqual([]);
+    expect(results[2]!.findings[0]!.rule).toBe("internal");
+    const alone = await checkFiles(files.slice(0, 2), { jobs: 1, context: { cwd: repo.dir }, ctx });
+    expect(results.slice(0, 2)).toEqual(alone);
+
+    const spare = [0, 1, 2].map((k) => {
+      const lane = openLane({ context: { cwd: repo.dir } });
+      return { attach: (on: Parameters<typeof lane.attach>[0]) => (attached.push(10 + k), lane.attach(on)), stop: () => (stopped.push(10 + k), lane.stop()) };
+    });
+    attached.length = 0;
+    const two = await checkFiles(files.slice(0, 2), { jobs: 4, context: { cwd: repo.dir }, ctx, started: spare });
+    // Two files: this thread and one worker; the other two are stopped before any file is sent.
+    expect(attached).toEqual([10]);
+    expect(stopped).toEqual([11, 12]);
+    expect(two).toEqual(alone);
+  }, 120_000);
+
+  it("stops its workers when the caller's handler throws, and says why", async () => {
+    const { checkFiles } = await import("../../src/run/pool.js");
+    const { openLane } = await import("../../src/run/lane.js");
+    const { makeCheckContext } = await import("../../src/run/context.js");
+    const { discoverCircuitFiles } = await import("../../src/run/discover.js");
+    const ctx = await makeCheckContext({ cwd: repo.dir });
+    const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude, circuitsOnly: true });
+    const stops: number[] = [];
+    const started = [0, 1].map((k) => {
+      const lane = openLane({ context: { cwd: repo.dir } });
+      return {
+        attach: (on: Parameters<typeof lane.attach>[0]) => {
+          const attached = lane.attach(on);
+          return { send: attached.send, stop: () => (stops.push(k), attached.stop()) };
+        },
+        stop: lane.stop,
+      };
+    });
+    const run = checkFiles(files, {
+      jobs: 2,
+      mainThreadLane: false,
+      context: { cwd: repo.dir },
+      ctx,
+      started,
+      prepare: { failOn: "error", needs: { json: false, junit: false, whole: false } },
+      onResult: () => {
+        throw new Error("the report disk is full");
+      },
+    });
+    await expect(run).rejects.toThrow("the report disk is full");
+    expect(stops.sort()).toEqual([0, 1]);
+  }, 120_000);
+
   it("reports a dead worker as an error for its file and finishes the rest", async () => {
     const { checkFiles } = await import("../../src/run/pool.js");
     const { makeCheckContext } = await import("../../src/run/context.js");
