@@ -15,6 +15,7 @@
 // keeps the generated repositories there between runs (they are otherwise made in a temporary
 // folder and removed). Run alone with `node dist/bench/repo.js`; `npm run bench` calls benchRepo().
 import { spawnSync } from "node:child_process";
+import { createHash } from "node:crypto";
 import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from "node:fs";
 import { availableParallelism, loadavg, tmpdir } from "node:os";
 import { join } from "node:path";
@@ -101,6 +102,7 @@ interface Timed {
   /** Peak resident memory of the CLI process, MiB (all its threads; process.resourceUsage().maxRSS). */
   readonly peakMiB: number;
   readonly exitCode: number | null;
+  /** SHA-256 of the JSON report (empty when none was written): runs are compared by it, not by holding 200 MB texts. */
   readonly json: string;
   /** Load average (1 minute) when the run ended. */
   readonly load: number;
@@ -131,7 +133,7 @@ function timeCheck(bin: string, dir: string, jobs: number, extra: readonly strin
     cpuSeconds: probed ? Number(probed[1]) : NaN,
     peakMiB: probed ? Number(probed[2]) / 1024 : NaN,
     exitCode: r.status,
-    json: existsSync(out) ? readFileSync(out, "utf8") : "",
+    json: existsSync(out) ? createHash("sha256").update(readFileSync(out)).digest("hex") : "",
     load: loadavg()[0]!,
   };
 }
