@@ -116,7 +116,3 @@ export function openLane(start: WorkerStart, thread: (start: WorkerStart) => Lan
     },
   };
 }
-
-export function startLane(start: WorkerStart, on: LaneEvents): Lane {
-  return openLane(start).attach(on);
-}

@@ -10,7 +10,7 @@ import type { CircuitResult } from "../report/document.js";
 import type { CircuitFile } from "./discover.js";
 import { openLane, type Lane, type OpenLane } from "./lane.js";
 import { prepareResult, type CacheStore, type PrepareSpec } from "./prepare.js";
-import type { FromWorker, LaneOutput, ToWorker, WorkerRun, WorkerStart } from "./protocol.js";
+import type { FromWorker, LaneOutput, ToWorker, WorkerStart } from "./protocol.js";
 
 /** A file for the pool: with its cache key when the run stores results (the lane that checks it writes the entry). */
 export type PoolFile = CircuitFile & { readonly key?: string };
@@ -167,11 +167,11 @@ export async function checkFiles(files: readonly PoolFile[], options: PoolOption
   // whole pipeline. So `--jobs N` runs N − 1 workers beside it.
   await new Promise<void>((resolveAll, rejectAll) => {
     const start: WorkerStart = { context: options.context };
-    const runOf: WorkerRun = {
+    const run: ToWorker = {
+      type: "run" as const,
       ...(prepare ? { prepare } : {}),
       ...(options.crashOn !== undefined ? { crashOn: options.crashOn } : {}),
     };
-    const run: ToWorker = { type: "run", ...runOf };
     const live = new Set<Lane>();
     let respawns = 0;
     let noticed = false;
