@@ -32,7 +32,7 @@ export interface Lane {
  * does not keep the process alive, so a run that ends early cannot hang on it.
  */
 export interface OpenLane {
-  /** Hands the lane its events (those that came before are delivered now, in order). Once only. */
+  /** Hands the lane its events (those that came before follow on a microtask, in order, before any later one). Once only. */
   attach(on: LaneEvents): Lane;
   /** Ends the lane if it was never attached (after attach, the pool stops it). */
   stop(): void;

@@ -15,6 +15,15 @@ beforeAll(() => {
 });
 afterAll(() => repo.cleanup());
 
+/** The test repository's context and circuit files, as `check` finds them. */
+async function repoFiles() {
+  const { makeCheckContext } = await import("../../src/run/context.js");
+  const { discoverCircuitFiles } = await import("../../src/run/discover.js");
+  const ctx = await makeCheckContext({ cwd: repo.dir });
+  const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude, circuitsOnly: true });
+  return { ctx, files };
+}
+
 function read(rel: string): string {
   return readFileSync(join(repo.dir, rel), "utf8");
 }
@@ -49,11 +58,8 @@ describe("opgate check", () => {
     // Seven files are too few for a worker to pay back its start-up: force workers (and keep
     // this process out of it) so that every file really crosses a process or thread boundary.
     const { runCheckDocument } = await import("../../src/run/run-check.js");
-    const { makeCheckContext } = await import("../../src/run/context.js");
-    const { discoverCircuitFiles } = await import("../../src/run/discover.js");
     const { renderJson } = await import("../../src/report/json.js");
-    const ctx = await makeCheckContext({ cwd: repo.dir });
-    const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude, circuitsOnly: true });
+    const { ctx, files } = await repoFiles();
     const notices: string[] = [];
     const onNotice = (m: string): void => void notices.push(m);
     const single = await runCheckDocument(files, { ctx, contextOptions: { cwd: repo.dir }, jobs: 1 });
@@ -65,10 +71,7 @@ describe("opgate check", () => {
 
   it("adds workers on its own only where they pay, and always when --jobs asks for them", async () => {
     const { checkFiles } = await import("../../src/run/pool.js");
-    const { makeCheckContext } = await import("../../src/run/context.js");
-    const { discoverCircuitFiles } = await import("../../src/run/discover.js");
-    const ctx = await makeCheckContext({ cwd: repo.dir });
-    const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude, circuitsOnly: true });
+    const { ctx, files } = await repoFiles();
     // A worker would crash on this file: a run in which it checks fine used no worker.
     const victim = files[1]!.display;
     const auto = await checkFiles(files, { jobs: 2, autoJobs: true, context: { cwd: repo.dir }, ctx, crashOn: victim });
@@ -80,10 +83,8 @@ describe("opgate check", () => {
   it("takes over workers started ahead, and stops the ones it has no file for", async () => {
     const { checkFiles } = await import("../../src/run/pool.js");
     const { openLane } = await import("../../src/run/lane.js");
-    const { makeCheckContext } = await import("../../src/run/context.js");
-    const { discoverCircuitFiles } = await import("../../src/run/discover.js");
-    const ctx = await makeCheckContext({ cwd: repo.dir });
-    const files = (await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude, circuitsOnly: true })).slice(0, 3);
+    const { ctx, files: all } = await repoFiles();
+    const files = all.slice(0, 3);
     const attached: number[] = [];
     const stopped: number[] = [];
     // Three workers started ahead, as `check --jobs 4` does, for a run that turns out to have
@@ -119,10 +120,7 @@ describe("opgate check", () => {
   it("stops its workers when the caller's handler throws, and says why", async () => {
     const { checkFiles } = await import("../../src/run/pool.js");
     const { openLane } = await import("../../src/run/lane.js");
-    const { makeCheckContext } = await import("../../src/run/context.js");
-    const { discoverCircuitFiles } = await import("../../src/run/discover.js");
-    const ctx = await makeCheckContext({ cwd: repo.dir });
-    const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude, circuitsOnly: true });
+    const { ctx, files } = await repoFiles();
     const stops: number[] = [];
     const started = [0, 1].map((k) => {
       const lane = openLane({ context: { cwd: repo.dir } });
@@ -151,10 +149,7 @@ describe("opgate check", () => {
 
   it("reports a dead worker as an error for its file and finishes the rest", async () => {
     const { checkFiles } = await import("../../src/run/pool.js");
-    const { makeCheckContext } = await import("../../src/run/context.js");
-    const { discoverCircuitFiles } = await import("../../src/run/discover.js");
-    const ctx = await makeCheckContext({ cwd: repo.dir });
-    const files = await discoverCircuitFiles(["boards"], { cwd: repo.dir, root: repo.dir, include: ctx.config.include, exclude: ctx.config.exclude, circuitsOnly: true });
+    const { ctx, files } = await repoFiles();
     const victim = files[1]!.display;
     const notices: string[] = [];
     const results = await checkFiles(files, { jobs: 2, minFilesPerWorker: 1, mainThreadLane: false, context: { cwd: repo.dir }, ctx, crashOn: victim, onNotice: (m) => notices.push(m) });
